@@ -1,0 +1,18 @@
+// Whole-molecule building: domain frames assembled into Cartesian coordinates, then refined.
+#pragma once
+
+#include "graph/molecule.hpp"
+
+namespace repel {
+
+struct BuildOptions {
+    bool refine = true;  // run the whole-molecule refinement after assembly
+};
+
+// 3D coordinates for a molecule whose hydrogens are explicit (Molecule::make_hydrogens_explicit()).
+// Atom order is kept. Charge and multiplicity come from the domain analysis. Throws InputError for a molecule that
+// cannot be built (a valence that cannot be satisfied, contradictory stereo), UnsupportedError for what is not
+// supported yet. Known weaknesses of the result are listed in Structure::warnings.
+Structure build_structure(const Molecule& molecule, const BuildOptions& options = {});
+
+}  // namespace repel

@@ -1,0 +1,64 @@
+// Electron domains of every atom: bonded domains, lone pairs and single electrons, the AXE class, the electron
+// geometry and the molecular shape, and their directions from the sphere solver.
+#pragma once
+
+#include <Eigen/Core>
+#include <string>
+#include <vector>
+
+#include "graph/molecule.hpp"
+
+namespace repel {
+
+enum class DomainKind : std::uint8_t { bond, lone_pair, single_electron };
+
+struct Domain {
+    DomainKind kind = DomainKind::bond;
+    int neighbor = -1;  // the bonded atom (kind == bond), else -1
+    int bond = -1;      // index into Molecule::bonds (kind == bond), else -1
+    int order = 0;      // bond order (kind == bond)
+    double weight = 1;  // repulsion weight from the domain model
+    double radius = 1;  // sphere radius from the domain model
+};
+
+// An ideal angle the model predicts between two bonded neighbours of a centre.
+struct PredictedAngle {
+    int a = -1, b = -1;  // neighbour atoms (0-based)
+    double degrees = 0;
+};
+
+struct CentreDomains {
+    int atom = -1;
+    int bonded = 0;            // X: bonded neighbours (one domain each, whatever the bond order)
+    int lone_pairs = 0;        // E: lone pairs
+    int single_electrons = 0;  // unpaired electron domains (0 or 1)
+    int steric_number = 0;     // bonded + lone_pairs + single_electrons
+    std::string axe;           // "AX4E2"; see axe_class()
+    std::string electron_geometry;  // "octahedral"
+    std::string shape;              // "square planar"
+    std::vector<Domain> domains;    // bonded domains first (in neighbour order), then lone pairs, then the electron
+    std::vector<Eigen::Vector3d> directions;  // unit vectors from the sphere solver, one per domain; empty if < 2
+    std::vector<PredictedAngle> angles;       // between bonded neighbours, from the directions
+};
+
+struct MoleculeDomains {
+    std::vector<CentreDomains> atoms;  // one per atom, in atom order
+    int charge = 0;                    // sum of formal charges
+    int unpaired_electrons = 0;        // single-electron domains in the Lewis structure
+    int multiplicity = 1;              // 2S+1 (with the ground-state triplets handled, see domains.cpp)
+    std::vector<std::string> warnings;
+};
+
+// The domains of every atom of a molecule whose hydrogens are explicit. Throws InputError for a valence that
+// cannot be satisfied (more bonds than valence electrons allow), UnsupportedError for transition-metal centres.
+// With solve=false the directions and angles are left empty (counting only).
+MoleculeDomains analyse_domains(const Molecule& molecule, bool solve = true);
+
+// Names of the trade, by steric number and by (bonded, lone pairs + single electrons).
+std::string electron_geometry_name(int steric_number);
+std::string shape_name(int bonded, int nonbonded);
+// "AX3E2": X bonded neighbours, E lone pairs (E0 omitted). A single-electron domain is written as a trailing
+// "+e" ("AX2+e" for the nitrogen of NO2), since it is a domain of its own, smaller than a lone pair.
+std::string axe_class(int bonded, int lone_pairs, int single_electrons);
+
+}  // namespace repel

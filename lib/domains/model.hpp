@@ -1,0 +1,29 @@
+// The constants of the domain repulsion model, named once. Their values are fitted by least squares to a
+// training table of gas-phase structures (tests/test_model_fit.cpp); README.md reports the fit.
+#pragma once
+
+#include "graph/molecule.hpp"
+#include "sphere/sphere.hpp"
+
+namespace repel {
+
+struct DomainModel {
+    double exponent;                // p in w_i w_j / d^p
+    double lone_pair_weight;        // weight of a lone pair
+    double lone_pair_radius;        // radius of the inner sphere lone pairs sit on (bonding domains: 1)
+    double single_electron_weight;  // weight of a single-electron domain
+    double single_electron_radius;  // its radius
+    double multiple_bond_weight;    // added to a bonding domain's weight per bond order above 1
+    double electronegativity_slope; // Bent's rule: weight factor exp(-slope * (chi_ligand - chi_centre))
+    double period_slope;            // larger centres: bonding weight factor exp(-slope * (period - 2)) for period > 2
+};
+
+// The fitted model.
+const DomainModel& domain_model();
+
+// The sphere domain for a bond from centre to ligand of the given order, under a model.
+SphereDomain bonding_domain(const DomainModel& model, int centre_z, int ligand_z, int order);
+SphereDomain lone_pair_domain(const DomainModel& model, int centre_z);
+SphereDomain single_electron_domain(const DomainModel& model, int centre_z);
+
+}  // namespace repel

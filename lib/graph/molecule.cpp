@@ -1,0 +1,101 @@
+#include "graph/molecule.hpp"
+
+#include <numeric>
+
+namespace repel {
+
+int Molecule::add_atom(const Atom& atom) {
+    atoms.push_back(atom);
+    adjacency_.emplace_back();
+    return atom_count() - 1;
+}
+
+int Molecule::add_bond(int a, int b, int order, bool aromatic) {
+    Bond bond;
+    bond.a = a;
+    bond.b = b;
+    bond.order = order;
+    bond.aromatic = aromatic;
+    bonds.push_back(bond);
+    int index = bond_count() - 1;
+    adjacency_[static_cast<size_t>(a)].push_back({b, index});
+    adjacency_[static_cast<size_t>(b)].push_back({a, index});
+    return index;
+}
+
+int Molecule::bond_between(int a, int b) const {
+    for (const Neighbor& n : neighbors(a))
+        if (n.atom == b) return n.bond;
+    return -1;
+}
+
+int Molecule::bond_order_sum(int atom) const {
+    int sum = 0;
+    for (const Neighbor& n : neighbors(atom)) sum += bonds[static_cast<size_t>(n.bond)].order;
+    return sum;
+}
+
+int Molecule::total_charge() const {
+    int q = 0;
+    for (const Atom& a : atoms) q += a.charge;
+    return q;
+}
+
+void Molecule::make_hydrogens_explicit() {
+    if (input_atoms_ < 0) input_atoms_ = atom_count();
+    const int n = atom_count();
+    for (int i = 0; i < n; ++i) {
+        int count = atoms[static_cast<size_t>(i)].hydrogens;
+        if (count <= 0) continue;
+        atoms[static_cast<size_t>(i)].hydrogens = 0;
+        bool first = true;
+        for (int k = 0; k < count; ++k) {
+            Atom h;
+            h.z = 1;
+            h.parent = i;
+            h.column = atoms[static_cast<size_t>(i)].column;
+            int hi = add_atom(h);
+            add_bond(i, hi, 1);
+            if (first) {
+                // The implicit hydrogen of a stereo mark ([C@H]) is the first one added for that atom.
+                for (int& s : atoms[static_cast<size_t>(i)].stereo_neighbors)
+                    if (s == kImplicitHydrogen) s = hi;
+                first = false;
+            }
+        }
+    }
+}
+
+std::vector<int> Molecule::components(int* count) const {
+    std::vector<int> comp(atoms.size(), -1);
+    int c = 0;
+    std::vector<int> stack;
+    for (int start = 0; start < atom_count(); ++start) {
+        if (comp[static_cast<size_t>(start)] >= 0) continue;
+        stack.push_back(start);
+        comp[static_cast<size_t>(start)] = c;
+        while (!stack.empty()) {
+            int v = stack.back();
+            stack.pop_back();
+            for (const Neighbor& nb : neighbors(v))
+                if (comp[static_cast<size_t>(nb.atom)] < 0) {
+                    comp[static_cast<size_t>(nb.atom)] = c;
+                    stack.push_back(nb.atom);
+                }
+        }
+        ++c;
+    }
+    if (count) *count = c;
+    return comp;
+}
+
+void Molecule::rebuild_adjacency() {
+    adjacency_.assign(atoms.size(), {});
+    for (int i = 0; i < bond_count(); ++i) {
+        const Bond& b = bonds[static_cast<size_t>(i)];
+        adjacency_[static_cast<size_t>(b.a)].push_back({b.b, i});
+        adjacency_[static_cast<size_t>(b.b)].push_back({b.a, i});
+    }
+}
+
+}  // namespace repel

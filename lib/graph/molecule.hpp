@@ -1,0 +1,105 @@
+// The molecular graph: atoms, bonds, stereo marks as written, and (once built) coordinates.
+#pragma once
+
+#include <Eigen/Core>
+#include <cstdint>
+#include <string>
+#include <vector>
+
+namespace repel {
+
+// OpenSMILES chirality classes. '@' is TH1 and '@@' is TH2 (anticlockwise / clockwise looking from the first
+// neighbour); the other classes carry their number in Atom::chiral_index.
+enum class ChiralClass : std::uint8_t { none, TH, AL, SP, TB, OH };
+
+// Stands in Atom::stereo_neighbors for the implicit hydrogen of a bracket atom ([C@H]) until hydrogens are explicit.
+constexpr int kImplicitHydrogen = -1;
+
+struct Atom {
+    int z = 0;                 // atomic number
+    int charge = 0;            // formal charge
+    int isotope = 0;           // mass number, 0 when not given
+    int hydrogens = 0;         // implicit hydrogens still to add (bracket H count, or organic-subset normal valence)
+    int atom_class = 0;        // OpenSMILES atom class (:n), 0 when not given
+    int radical_electrons = -1;// unpaired electrons when a file states them (SDF RAD); -1: derive from the valence
+    bool aromatic = false;     // written aromatic (lower case); kept after kekulization
+    bool bracket = false;      // written in brackets
+    int column = 0;            // 1-based column of the atom in the input line (0 when not from text)
+    int parent = -1;           // for a hydrogen added from an implicit count: its heavy atom; -1 otherwise
+
+    ChiralClass chiral_class = ChiralClass::none;
+    int chiral_index = 0;      // TH 1..2 (@, @@), AL 1..2, SP 1..3, TB 1..20, OH 1..30
+    // Neighbours in the order that the chirality refers to (OpenSMILES: the preceding atom, then an implicit H,
+    // then ring closures in the order written, then branches and the next atom). kImplicitHydrogen marks the
+    // implicit hydrogen until make_hydrogens_explicit() replaces it by the atom index.
+    std::vector<int> stereo_neighbors;
+};
+
+enum class BondStereo : std::uint8_t { none, cis, trans };
+
+struct Bond {
+    int a = 0, b = 0;          // atom indices; a is the atom written first
+    int order = 1;             // 1, 2, 3, 4 ('$'); kekulized for aromatic bonds
+    bool aromatic = false;     // written or perceived aromatic
+    // '/' or '\' on a single bond, as written from a to b: +1 for '/', -1 for '\', 0 for none.
+    int direction = 0;
+    // For a double bond: the configuration of ref_a (a neighbour of a) and ref_b (a neighbour of b).
+    BondStereo stereo = BondStereo::none;
+    int ref_a = -1, ref_b = -1;
+
+    int other(int atom) const { return atom == a ? b : a; }
+};
+
+struct Neighbor {
+    int atom;  // the neighbouring atom
+    int bond;  // index into Molecule::bonds
+};
+
+class Molecule {
+public:
+    std::string name;
+    std::vector<Atom> atoms;
+    std::vector<Bond> bonds;
+
+    int add_atom(const Atom& atom);
+    // Adds a bond and returns its index. Does not check for duplicates: readers check with bond_between() first.
+    int add_bond(int a, int b, int order = 1, bool aromatic = false);
+
+    int atom_count() const { return static_cast<int>(atoms.size()); }
+    int bond_count() const { return static_cast<int>(bonds.size()); }
+    const std::vector<Neighbor>& neighbors(int atom) const { return adjacency_[static_cast<size_t>(atom)]; }
+    int degree(int atom) const { return static_cast<int>(adjacency_[static_cast<size_t>(atom)].size()); }
+    // Index of the bond between a and b, or -1.
+    int bond_between(int a, int b) const;
+    // Sum of bond orders at the atom (explicit bonds only; add implicit hydrogens for the full valence).
+    int bond_order_sum(int atom) const;
+    int total_charge() const;
+
+    // Appends one H atom per implicit hydrogen, grouped by parent atom in parent order (the atom order of the
+    // command-line contract), bonds them, and replaces kImplicitHydrogen in stereo_neighbors by the new atom.
+    void make_hydrogens_explicit();
+
+    // Atoms as written in the input (the rest were added by make_hydrogens_explicit()).
+    int input_atom_count() const { return input_atoms_ < 0 ? atom_count() : input_atoms_; }
+
+    // Connected components: for each atom its component number (0-based, numbered by first atom).
+    std::vector<int> components(int* count = nullptr) const;
+
+    // Rebuilds the adjacency after bonds were edited in place or removed.
+    void rebuild_adjacency();
+
+private:
+    std::vector<std::vector<Neighbor>> adjacency_;
+    int input_atoms_ = -1;
+};
+
+// A molecule with coordinates: what the builder writes and what the checker reads.
+struct Structure {
+    Molecule molecule;
+    std::vector<Eigen::Vector3d> positions;  // Angstrom, one per atom
+    int charge = 0;                          // total charge
+    int multiplicity = 1;                    // 2S+1
+    std::vector<std::string> warnings;       // known weaknesses of this structure, for the user and the file
+};
+
+}  // namespace repel

@@ -1,0 +1,33 @@
+// Points on a sphere: the directions of a centre's electron domains, relaxed by a weighted repulsion energy.
+#pragma once
+
+#include <Eigen/Core>
+#include <span>
+#include <vector>
+
+namespace repel {
+
+// One domain as the solver sees it: a repulsion weight and the radius of the sphere it lives on (1 for bonding
+// domains; lone pairs sit on an inner sphere, held closer to the core).
+struct SphereDomain {
+    double weight = 1.0;
+    double radius = 1.0;
+    bool operator==(const SphereDomain&) const = default;
+};
+
+// Energy: sum over pairs of w_i w_j / d_ij^exponent, d_ij the distance between r_i u_i and r_j u_j.
+double sphere_energy(std::span<const SphereDomain> domains, std::span<const Eigen::Vector3d> directions,
+                     double exponent);
+
+// The global minimum arrangement for these domains: unit vectors, one per domain, in the order given. Found
+// deterministically by seeding from the ideal polyhedra for that count with every distinct placement of the
+// domain kinds (and deterministic extra starts beyond 8 domains), each relaxed by gradient minimisation.
+// The frame is canonical: the first domain along +z, the next not collinear with it in the xz half-plane x > 0.
+// Results are cached per weight pattern (per thread), so repeated centres cost a look-up. Bit-identical for
+// identical input. Up to 12 domains.
+std::vector<Eigen::Vector3d> solve_sphere(std::span<const SphereDomain> domains, double exponent);
+
+// The same without the cache (for benchmarks and tests of the cache).
+std::vector<Eigen::Vector3d> solve_sphere_uncached(std::span<const SphereDomain> domains, double exponent);
+
+}  // namespace repel

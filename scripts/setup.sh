@@ -1,0 +1,25 @@
+#!/usr/bin/env bash
+# Sets up a fresh Debian machine for repel: installs the Debian packages that are missing (and only those),
+# configures and builds in ./build, then builds the bundled sample library as a smoke run.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+
+packages=(build-essential cmake pkg-config libeigen3-dev libnlopt-cxx-dev libfmt-dev libspdlog-dev libcli11-dev
+          nlohmann-json3-dev libgtest-dev libgmock-dev libbenchmark-dev libtbb-dev python3 python3-ase python3-numpy xtb)
+missing=()
+for p in "${packages[@]}"; do
+  dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")
+done
+if [ ${#missing[@]} -gt 0 ]; then
+  echo "setup: installing ${missing[*]}"
+  SUDO=""; [ "$(id -u)" -eq 0 ] || SUDO="sudo"
+  $SUDO apt-get update -qq
+  DEBIAN_FRONTEND=noninteractive $SUDO apt-get install -y -qq --no-install-recommends "${missing[@]}"
+fi
+
+cmake -S . -B build -DCMAKE_BUILD_TYPE=Release ${REPEL_CMAKE_ARGS:-}
+cmake --build build -j "$(nproc)"
+
+echo "setup: built build/bin/repel; building the sample library samples/halide-lab.smi"
+build/bin/repel build -i samples/halide-lab.smi -o build/halide-lab.sdf --errors build/halide-lab.errors || true
+echo "setup: wrote build/halide-lab.sdf"
