@@ -1,0 +1,47 @@
+// Refinement of a whole molecule: one smooth energy over all coordinates (bonds, the angles each centre's domains
+// ask for, planarity, torsion preferences, kept stereochemistry, soft contacts), minimised with L-BFGS.
+#pragma once
+
+#include <Eigen/Core>
+#include <string>
+#include <vector>
+
+#include "domains/domains.hpp"
+#include "graph/molecule.hpp"
+
+namespace repel {
+
+// A stereocentre whose handedness must be kept: the signed volume (b-a)x(c-a).(d-a) of neighbours a, b, c, d... of
+// `centre`, taken as (pos[n1]-pos[centre]) . ((pos[n2]-pos[centre]) x (pos[n3]-pos[centre])), has sign `sign`.
+struct ChiralTarget {
+    int centre = -1;
+    int n1 = -1, n2 = -1, n3 = -1;
+    int sign = 0;  // +1 or -1
+};
+
+// A double bond whose configuration must be kept: the torsion a-b=c-d is near 0 (cis) or 180 degrees (trans).
+struct DoubleBondTarget {
+    int a = -1, b = -1, c = -1, d = -1;
+    bool cis = false;
+};
+
+struct RefineOptions {
+    int max_iterations = 2000;
+    double gradient_tolerance = 1e-4;  // stop when the RMS gradient (energy units per Angstrom) falls below this
+};
+
+struct RefineResult {
+    bool converged = false;
+    int iterations = 0;
+    double energy_before = 0;
+    double energy_after = 0;
+    std::string message;  // why it stopped, for warnings
+};
+
+// Refines positions in place. `domains` is the analysis of the same molecule (with solved directions), which gives
+// each centre's ideal angles and which centres are planar.
+RefineResult refine_structure(const Molecule& molecule, const MoleculeDomains& domains,
+                              const std::vector<ChiralTarget>& chiral, const std::vector<DoubleBondTarget>& double_bonds,
+                              std::vector<Eigen::Vector3d>& positions, const RefineOptions& options = {});
+
+}  // namespace repel
