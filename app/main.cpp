@@ -1,3 +1,77 @@
-// repel command-line front end: parses options, reads input, calls the library, writes output. No chemistry here.
+// repel command-line front end: option definitions and dispatch. No chemistry here.
+#include <CLI/CLI.hpp>
 #include <cstdio>
-int main() { std::puts("repel"); return 0; }
+#include <iostream>
+
+#include "commands.hpp"
+
+int main(int argc, char** argv) {
+    using namespace repel::app;
+    CLI::App app{"repel: 3D structures from electron domains (VSEPR). Builds coordinates from SMILES or a formula,\n"
+                 "explains each centre's electron-domain shape, and checks structures built elsewhere."};
+    app.set_version_flag("--version", std::string("repel ") + REPEL_VERSION);
+    app.require_subcommand(1);
+
+    BuildArgs build;
+    bool build_formula = false, build_smiles = false, no_refine = false;
+    CLI::App* cmd_build = app.add_subcommand("build", "3D coordinates for a molecule (XYZ on standard output by default)");
+    cmd_build->add_option("INPUT", build.input, "a SMILES string, or a formula of a single-centre species (XeF4, 'SO4 2-')");
+    cmd_build->add_option("-i,--input", build.input_file, "a .smi file (SMILES and an optional name a line), or - for standard input");
+    cmd_build->add_option("-o,--output", build.output_file, "output file; the format follows the extension (.xyz .pdb .sdf .mol .json)");
+    cmd_build->add_option("--format", build.format, "output format when not given by -o's extension")
+        ->check(CLI::IsMember({"xyz", "pdb", "sdf", "mol", "json"}));
+    cmd_build->add_option("--errors", build.errors_file, "write failed records here: line<TAB>name<TAB>reason");
+    cmd_build->add_option("--name", build.name, "a name for a single INPUT (written in the output's title)");
+    cmd_build->add_flag("--formula", build_formula, "read INPUT as a formula only");
+    cmd_build->add_flag("--smiles", build_smiles, "read INPUT as SMILES only");
+    cmd_build->add_flag("--no-refine", no_refine, "skip the whole-molecule refinement (assembled frames only)");
+    auto* in_opt = cmd_build->get_option("INPUT");
+    auto* file_opt = cmd_build->get_option("--input");
+    in_opt->excludes(file_opt);
+    cmd_build->get_option("--formula")->excludes(cmd_build->get_option("--smiles"));
+
+    ShapeArgs shape;
+    bool shape_formula = false, shape_smiles = false;
+    CLI::App* cmd_shape = app.add_subcommand("shape", "the electron-domain analysis of every centre");
+    cmd_shape->add_option("INPUT", shape.input, "a SMILES string or a formula of a single-centre species");
+    cmd_shape->add_option("-i,--input", shape.input_file, "a .smi file, or - for standard input");
+    cmd_shape->add_flag("--json", shape.json, "one JSON document instead of the table");
+    cmd_shape->add_flag("--formula", shape_formula, "read INPUT as a formula only");
+    cmd_shape->add_flag("--smiles", shape_smiles, "read INPUT as SMILES only");
+    cmd_shape->get_option("INPUT")->excludes(cmd_shape->get_option("--input"));
+
+    try {
+        app.parse(argc, argv);
+    } catch (const CLI::CallForHelp& e) {
+        return app.exit(e);
+    } catch (const CLI::CallForAllHelp& e) {
+        return app.exit(e);
+    } catch (const CLI::CallForVersion& e) {
+        return app.exit(e);
+    } catch (const CLI::ParseError& e) {
+        app.exit(e);
+        return 2;  // a usage error is exit status 2 (shared/docs/interface.md), whatever code the parser uses
+    }
+
+    auto notation = [](bool formula, bool smiles) {
+        return formula ? repel::Notation::formula : smiles ? repel::Notation::smiles : repel::Notation::automatic;
+    };
+    if (cmd_build->parsed()) {
+        if (build.input.empty() && build.input_file.empty()) {
+            std::cerr << "repel build: give a SMILES or formula, or -i FILE (see repel build --help)\n";
+            return 2;
+        }
+        build.notation = notation(build_formula, build_smiles);
+        build.refine = !no_refine;
+        return run_build(build);
+    }
+    if (cmd_shape->parsed()) {
+        if (shape.input.empty() && shape.input_file.empty()) {
+            std::cerr << "repel shape: give a SMILES or formula, or -i FILE (see repel shape --help)\n";
+            return 2;
+        }
+        shape.notation = notation(shape_formula, shape_smiles);
+        return run_shape(shape);
+    }
+    return 2;
+}

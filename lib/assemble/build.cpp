@@ -1,8 +1,142 @@
 #include "assemble/build.hpp"
 
+#include <algorithm>
+#include <cmath>
+#include <fmt/format.h>
+
+#include "assemble/assemble.hpp"
+#include "assemble/components.hpp"
+#include "assemble/grid.hpp"
+#include "assemble/ring_embed.hpp"
+#include "assemble/rings.hpp"
+#include "assemble/stereo.hpp"
+#include "core/element.hpp"
 #include "core/error.hpp"
+#include "domains/domains.hpp"
+#include "refine/refine.hpp"
 
 namespace repel {
-// Placeholder until assembly lands.
-Structure build_structure(const Molecule&, const BuildOptions&) { throw UnsupportedError("not implemented"); }
+
+using Eigen::Vector3d;
+
+namespace {
+
+// Two atoms more than two bonds apart closer than this are on top of each other: the structure is refused
+// (Angstrom; common practice: far below any bond).
+constexpr double kOverlapDistance = 0.5;
+// Closer than this fraction of the sum of van der Waals radii (and more than three bonds apart) is a close contact
+// worth a warning (common practice).
+constexpr double kContactWarningFraction = 0.5;
+// A ring angle this far (degrees) from its centre's domain angle marks a strained bridged or caged ring system
+// (common practice; cubane's 90-degree angles are 18 degrees from the tetrahedral frame, norbornane's tightest about
+// 15, adamantane's none).
+constexpr double kStrainWarningDegrees = 17.0;
+
+bool within_bonds(const Molecule& m, int a, int b, int depth) {
+    if (a == b) return true;
+    if (depth == 0) return false;
+    for (const Neighbor& n : m.neighbors(a))
+        if (within_bonds(m, n.atom, b, depth - 1)) return true;
+    return false;
+}
+
+struct Contact {
+    int a = -1, b = -1;
+    double distance = 0, fraction = 0;  // fraction of the van der Waals sum
+};
+
+// The closest pair more than two bonds apart (by distance), and the closest more than three bonds apart (by fraction
+// of the van der Waals sum); found through a neighbour grid.
+void closest_contacts(const Molecule& m, const std::vector<Vector3d>& pos, Contact* nearest, Contact* tightest) {
+    double max_vdw = 0;
+    for (const Atom& a : m.atoms) max_vdw = std::max(max_vdw, element(a.z).r_vdw);
+    NeighborGrid grid(std::max(2 * max_vdw * kContactWarningFraction, kOverlapDistance));
+    for (int i = 0; i < m.atom_count(); ++i) grid.insert(i, pos[static_cast<size_t>(i)]);
+    for (int i = 0; i < m.atom_count(); ++i) {
+        grid.for_each_near(pos[static_cast<size_t>(i)], [&](int j) {
+            if (j <= i) return;
+            const double d = (pos[static_cast<size_t>(i)] - pos[static_cast<size_t>(j)]).norm();
+            const double sum = element(m.atoms[static_cast<size_t>(i)].z).r_vdw + element(m.atoms[static_cast<size_t>(j)].z).r_vdw;
+            if (d >= sum * kContactWarningFraction && d >= kOverlapDistance) return;
+            if (within_bonds(m, i, j, 2)) return;
+            if (nearest->a < 0 || d < nearest->distance) *nearest = {i, j, d, d / sum};
+            if (!within_bonds(m, i, j, 3) && (tightest->a < 0 || d / sum < tightest->fraction))
+                *tightest = {i, j, d, d / sum};
+        });
+    }
+}
+
+}  // namespace
+
+Structure build_structure(const Molecule& molecule, const BuildOptions& options) {
+    Structure s;
+    s.molecule = molecule;
+    const int n = molecule.atom_count();
+    if (n == 0) throw InputError("nothing to build: the molecule has no atoms");
+    for (const Atom& a : molecule.atoms)
+        if (a.hydrogens > 0)
+            throw std::logic_error("build_structure needs explicit hydrogens (Molecule::make_hydrogens_explicit)");
+
+    const MoleculeDomains domains = analyse_domains(molecule);
+    s.charge = domains.charge;
+    s.multiplicity = domains.multiplicity;
+    s.warnings = domains.warnings;
+    for (int i = 0; i < n; ++i)
+        s.molecule.atoms[static_cast<size_t>(i)].radical_electrons = domains.atoms[static_cast<size_t>(i)].single_electrons;
+
+    const auto chiral = chiral_targets(molecule, s.warnings);
+    const auto double_bonds = double_bond_targets(molecule);
+
+    const RingInfo rings = perceive_rings(molecule);
+    std::vector<RingSystemCoordinates> ring_xyz;
+    ring_xyz.reserve(rings.systems.size());
+    for (size_t k = 0; k < rings.systems.size(); ++k) {
+        RingSystemEmbedding e = embed_ring_system(molecule, domains, rings, static_cast<int>(k), chiral);
+        const auto& atoms = rings.systems[k];
+        if (e.worst_angle_strain > kStrainWarningDegrees)
+            s.warnings.push_back(fmt::format(
+                "strained ring system (atoms {}..{}, {} atoms): ring angles up to {:.0f} degrees from the domain "
+                "angles; check the geometry with a quantum-chemistry optimisation",
+                atoms.front() + 1, atoms.back() + 1, atoms.size(), e.worst_angle_strain));
+        if (!e.satisfied)
+            s.warnings.push_back(fmt::format("ring system (atoms {}..{}) could not be embedded without strain or "
+                                             "violated constraints",
+                                             atoms.front() + 1, atoms.back() + 1));
+        ring_xyz.push_back(std::move(e.coordinates));
+    }
+
+    s.positions = assemble_positions(molecule, domains, rings, ring_xyz, chiral);
+    pack_components(molecule, s.positions);
+
+    if (options.refine && n > 1) {
+        const RefineResult r = refine_structure(molecule, domains, chiral, double_bonds, s.positions);
+        if (!r.converged && r.iterations > 0)
+            s.warnings.push_back(fmt::format("refinement not converged after {} iterations{}{}", r.iterations,
+                                             r.message.empty() ? "" : ": ", r.message));
+    }
+
+    for (const ChiralTarget& t : chiral)
+        if (!chirality_met(t, s.positions))
+            s.warnings.push_back(fmt::format("stereocentre at atom {} does not have the written handedness in 3D",
+                                             t.centre + 1));
+    for (const DoubleBondTarget& t : double_bonds)
+        if (!double_bond_met(t, s.positions))
+            s.warnings.push_back(fmt::format("double bond {}-{} does not have the written configuration in 3D",
+                                             t.b + 1, t.c + 1));
+
+    Contact nearest, tightest;
+    closest_contacts(molecule, s.positions, &nearest, &tightest);
+    if (nearest.a >= 0 && nearest.distance < kOverlapDistance)
+        throw UnsupportedError(fmt::format("could not build a structure without overlapping atoms: atoms {} and {} "
+                                           "end up {:.2f} A apart",
+                                           nearest.a + 1, nearest.b + 1, nearest.distance));
+    if (tightest.a >= 0)
+        s.warnings.push_back(fmt::format("close contact: atoms {} and {} are {:.2f} A apart ({:.0f}% of their van der "
+                                         "Waals contact)",
+                                         tightest.a + 1, tightest.b + 1, tightest.distance, 100 * tightest.fraction));
+    for (const Vector3d& p : s.positions)
+        if (!p.allFinite()) throw std::logic_error("assembly produced a non-finite coordinate");
+    return s;
+}
+
 }  // namespace repel

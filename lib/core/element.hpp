@@ -14,12 +14,13 @@ struct ElementData {
     int period = 0;               // 1..6
     int group = 0;                // IUPAC group 1..18; 3 for the lanthanides
     int valence_electrons = 0;    // electrons outside the noble-gas core (main group: group or group-10)
-    double electronegativity = 0; // Pauling scale (Allred 1961); 0 where none is tabulated (He, Ne, Ar)
+    double electronegativity = 0; // Pauling scale (Allred 1961); 0 where none is tabulated (He, Ne, Ar, Pm, Eu, Tb, Yb)
     double r_single = 0;          // covalent radius for a single bond, Angstrom (Pyykko and Atsumi 2009)
     double r_double = 0;          // covalent radius for a double bond, Angstrom; 0 where not tabulated
     double r_triple = 0;          // covalent radius for a triple bond, Angstrom; 0 where not tabulated
     double r_perception = 0;      // covalent radius for bond perception from coordinates (Cordero et al. 2008)
-    double r_vdw = 0;             // van der Waals radius, Angstrom (Bondi 1964, completed by Mantina et al. 2009)
+    double r_vdw = 0;             // van der Waals radius, Angstrom (main group: Bondi 1964 completed by Mantina et al.
+                                  // 2009; d and f block: Alvarez 2013); 0 where not tabulated (Pm)
     double mass = 0;              // standard atomic weight (IUPAC), for file formats that want it
 };
 

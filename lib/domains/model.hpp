@@ -8,12 +8,13 @@
 namespace repel {
 
 struct DomainModel {
-    double exponent;                // p in w_i w_j / d^p
+    double bond_exponent;           // steepness of a bonding domain's repulsion (pair exponent: the mean of the two)
+    double lone_pair_exponent;      // steepness of a lone pair's or single electron's repulsion
     double lone_pair_weight;        // weight of a lone pair
     double lone_pair_radius;        // radius of the inner sphere lone pairs sit on (bonding domains: 1)
     double single_electron_weight;  // weight of a single-electron domain
     double single_electron_radius;  // its radius
-    double multiple_bond_weight;    // added to a bonding domain's weight per bond order above 1
+    double multiple_bond_weight;    // a bonding domain's weight grows by this factor per bond order above 1
     double electronegativity_slope; // Bent's rule: weight factor exp(-slope * (chi_ligand - chi_centre))
     double period_slope;            // larger centres: bonding weight factor exp(-slope * (period - 2)) for period > 2
 };

@@ -9,15 +9,18 @@ namespace repel {
 
 // One domain as the solver sees it: a repulsion weight and the radius of the sphere it lives on (1 for bonding
 // domains; lone pairs sit on an inner sphere, held closer to the core).
+// The pair exponent is the mean of the two domains' exponents: bonding domains repel each other steeply (ligands
+// pack like hard spheres) while a lone pair's repulsion reaches further and softer.
 struct SphereDomain {
     double weight = 1.0;
     double radius = 1.0;
+    double exponent = 1.0;
     bool operator==(const SphereDomain&) const = default;
 };
 
-// Energy: sum over pairs of w_i w_j / d_ij^exponent, d_ij the distance between r_i u_i and r_j u_j.
-double sphere_energy(std::span<const SphereDomain> domains, std::span<const Eigen::Vector3d> directions,
-                     double exponent);
+// Energy: sum over pairs of w_i w_j / d_ij^p_ij, d_ij the distance between r_i u_i and r_j u_j and
+// p_ij = (exponent_i + exponent_j) / 2.
+double sphere_energy(std::span<const SphereDomain> domains, std::span<const Eigen::Vector3d> directions);
 
 // The global minimum arrangement for these domains: unit vectors, one per domain, in the order given. Found
 // deterministically by seeding from the ideal polyhedra for that count with every distinct placement of the
@@ -25,9 +28,9 @@ double sphere_energy(std::span<const SphereDomain> domains, std::span<const Eige
 // The frame is canonical: the first domain along +z, the next not collinear with it in the xz half-plane x > 0.
 // Results are cached per weight pattern (per thread), so repeated centres cost a look-up. Bit-identical for
 // identical input. Up to 12 domains.
-std::vector<Eigen::Vector3d> solve_sphere(std::span<const SphereDomain> domains, double exponent);
+std::vector<Eigen::Vector3d> solve_sphere(std::span<const SphereDomain> domains);
 
 // The same without the cache (for benchmarks and tests of the cache).
-std::vector<Eigen::Vector3d> solve_sphere_uncached(std::span<const SphereDomain> domains, double exponent);
+std::vector<Eigen::Vector3d> solve_sphere_uncached(std::span<const SphereDomain> domains);
 
 }  // namespace repel

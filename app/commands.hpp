@@ -1,0 +1,36 @@
+// The commands of the front end. Each parses nothing itself (main.cpp holds the option definitions) and returns the
+// process exit status of the contract: 0 all done, 1 some records failed or findings, 2 nothing could be done.
+#pragma once
+
+#include <string>
+
+#include "input/species.hpp"
+#include "output/writer.hpp"
+
+namespace repel::app {
+
+struct BuildArgs {
+    std::string input;        // a SMILES or formula given on the command line
+    std::string input_file;   // -i: a .smi file or "-"
+    std::string output_file;  // -o
+    std::string format;       // --format
+    std::string errors_file;  // --errors
+    Notation notation = Notation::automatic;
+    bool refine = true;
+    std::string name;         // --name for a single input
+};
+
+struct ShapeArgs {
+    std::string input;
+    std::string input_file;
+    Notation notation = Notation::automatic;
+    bool json = false;
+};
+
+int run_build(const BuildArgs& args);
+int run_shape(const ShapeArgs& args);
+
+// One line for the user about a failed record: "line 3 (name): column 5: ...\n  text\n  ^".
+std::string describe_failure(const std::string& where, const std::string& text, const std::exception& e);
+
+}  // namespace repel::app

@@ -1,0 +1,69 @@
+// `repel shape`: the electron-domain analysis of every centre, as a table or JSON.
+#include <fmt/format.h>
+
+#include <fstream>
+#include <iostream>
+
+#include "commands.hpp"
+#include "domains/domains.hpp"
+#include "input/records.hpp"
+#include "output/shape_report.hpp"
+
+namespace repel::app {
+
+int run_shape(const ShapeArgs& args) {
+    auto analyse = [&](const std::string& text, const std::string& name, nlohmann::json* doc, std::string* table) {
+        Molecule mol = read_species(text, args.notation);
+        mol.name = name;
+        mol.make_hydrogens_explicit();
+        MoleculeDomains d = analyse_domains(mol);
+        const std::string title = name.empty() ? text : name;
+        if (doc) *doc = shape_json(mol, d, title);
+        if (table) *table = shape_table(mol, d, title);
+    };
+    if (args.input_file.empty()) {
+        nlohmann::json doc;
+        std::string table;
+        try {
+            analyse(args.input, "", args.json ? &doc : nullptr, args.json ? nullptr : &table);
+        } catch (const std::exception& e) {
+            std::cerr << describe_failure("repel shape", args.input, e) << "\n";
+            return 2;
+        }
+        std::cout << (args.json ? doc.dump(2) + "\n" : table);
+        return 0;
+    }
+    std::ifstream file;
+    std::istream* in = &std::cin;
+    if (args.input_file != "-") {
+        file.open(args.input_file, std::ios::binary);
+        if (!file) {
+            std::cerr << "repel shape: cannot read " << args.input_file << "\n";
+            return 2;
+        }
+        in = &file;
+    }
+    SmiReader reader(*in);
+    nlohmann::json all = nlohmann::json::array();
+    long read = 0, failed = 0;
+    while (auto rec = reader.next()) {
+        ++read;
+        nlohmann::json doc;
+        std::string table;
+        try {
+            if (reader.too_long()) throw std::runtime_error("line too long");
+            analyse(rec->text, rec->name, args.json ? &doc : nullptr, args.json ? nullptr : &table);
+        } catch (const std::exception& e) {
+            ++failed;
+            std::cerr << describe_failure(fmt::format("line {}", rec->line), rec->text, e) << "\n";
+            continue;
+        }
+        if (args.json) all.push_back(doc);
+        else std::cout << table << "\n";
+    }
+    if (args.json) std::cout << all.dump(2) << "\n";
+    std::cerr << fmt::format("read {}, built {}, failed {}\n", read, read - failed, failed);
+    return failed > 0 ? 1 : 0;
+}
+
+}  // namespace repel::app

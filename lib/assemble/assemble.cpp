@@ -1,0 +1,417 @@
+#include "assemble/assemble.hpp"
+
+#include <Eigen/Geometry>
+#include <algorithm>
+#include <cmath>
+#include <stdexcept>
+#include <tuple>
+
+#include "assemble/grid.hpp"
+#include "assemble/place.hpp"
+#include "core/bond_length.hpp"
+#include "core/element.hpp"
+
+namespace repel {
+
+using Eigen::Matrix3d;
+using Eigen::Vector3d;
+
+namespace {
+
+// While assembling, two atoms more than two bonds apart that come closer than this fraction of the sum of their van
+// der Waals radii count as a clash, and the next torsion is tried (common practice: well below contact, well above
+// what a staggered or planar torsion gives for atoms three bonds apart).
+constexpr double kClashFraction = 0.7;
+// Cell of the neighbour grid: at least the largest clash distance (0.7 * 2 * 2.5 A for the largest radii).
+constexpr double kGridCell = 3.6;
+
+constexpr double kPi = M_PI;
+// Torsion offsets tried in order after the preferred one: staggered first for sp3 bonds, planar first between planar
+// centres.
+const std::vector<double> kStaggeredOffsets{0, 2 * kPi / 3, -2 * kPi / 3, kPi / 3, -kPi / 3, kPi, kPi / 2, -kPi / 2};
+const std::vector<double> kPlanarOffsets{0, kPi, kPi / 2, -kPi / 2, kPi / 3, -kPi / 3, 2 * kPi / 3, -2 * kPi / 3};
+const std::vector<double> kDoubleBondOffsets{0, kPi};
+const std::vector<double> kFixedOffset{0};
+
+double wrap(double a) {
+    while (a > kPi) a -= 2 * kPi;
+    while (a <= -kPi) a += 2 * kPi;
+    return a;
+}
+
+// The rotation angle about the axis from c towards p that brings the dihedral r-p-c-n (n at n0 for angle 0) to target.
+double angle_for_dihedral(const Vector3d& r, const Vector3d& p, const Vector3d& c, const Vector3d& n0, double target) {
+    const double phi0 = dihedral(r, p, c, n0);
+    double theta = wrap(phi0 - target);
+    const Vector3d axis = (p - c).normalized();
+    const Vector3d n1 = c + Eigen::AngleAxisd(theta, axis) * (n0 - c);
+    if (std::abs(wrap(dihedral(r, p, c, n1) - target)) > 1e-6) theta = -theta;
+    return theta;
+}
+
+int neighbor_index(const Molecule& m, int centre, int atom) {
+    const auto& nb = m.neighbors(centre);
+    for (size_t k = 0; k < nb.size(); ++k)
+        if (nb[k].atom == atom) return static_cast<int>(k);
+    return -1;
+}
+
+class Walk {
+public:
+    Walk(const Molecule& m, const MoleculeDomains& d, const RingInfo& rings,
+         const std::vector<RingSystemCoordinates>& ring_xyz, const std::vector<ChiralTarget>& chiral)
+        : m_(m), d_(d), rings_(rings), ring_xyz_(ring_xyz), chiral_(chiral) {
+        const size_t n = static_cast<size_t>(m.atom_count());
+        pos_.assign(n, Vector3d::Zero());
+        placed_.assign(n, 0);
+        chiral_of_.assign(n, -1);
+        for (size_t i = 0; i < chiral.size(); ++i) chiral_of_[static_cast<size_t>(chiral[i].centre)] = static_cast<int>(i);
+        local_.assign(n, -1);
+        for (const auto& sys : rings.systems)
+            for (size_t k = 0; k < sys.size(); ++k) local_[static_cast<size_t>(sys[k])] = static_cast<int>(k);
+        system_placed_.assign(rings.systems.size(), 0);
+        system_centre_.assign(rings.systems.size(), Vector3d::Zero());
+        vdw_.resize(n);
+        for (size_t i = 0; i < n; ++i) vdw_[i] = element(m.atoms[i].z).r_vdw;
+    }
+
+    std::vector<Vector3d> run() {
+        int count = 0;
+        const auto comp = m_.components(&count);
+        std::vector<std::vector<int>> members(static_cast<size_t>(count));
+        for (int i = 0; i < m_.atom_count(); ++i) members[static_cast<size_t>(comp[static_cast<size_t>(i)])].push_back(i);
+        for (const auto& atoms : members) build_component(atoms);
+        return pos_;
+    }
+
+private:
+    const Molecule& m_;
+    const MoleculeDomains& d_;
+    const RingInfo& rings_;
+    const std::vector<RingSystemCoordinates>& ring_xyz_;
+    const std::vector<ChiralTarget>& chiral_;
+    std::vector<Vector3d> pos_;
+    std::vector<char> placed_;
+    std::vector<int> chiral_of_;
+    std::vector<int> local_;
+    std::vector<char> system_placed_;
+    std::vector<Vector3d> system_centre_;
+    std::vector<double> vdw_;
+    NeighborGrid grid_{kGridCell};
+    std::vector<int> queue_;
+
+    size_t at(int i) const { return static_cast<size_t>(i); }
+
+    void place(int atom, const Vector3d& x) {
+        pos_[at(atom)] = x;
+        placed_[at(atom)] = 1;
+        grid_.insert(atom, x);
+        queue_.push_back(atom);
+    }
+
+    double bond_len(int a, const Neighbor& nb) const {
+        const Bond& b = m_.bonds[at(nb.bond)];
+        return bond_length(m_.atoms[at(a)].z, m_.atoms[at(nb.atom)].z, b.order, b.aromatic);
+    }
+
+    // One bond or one shared neighbour apart: their distance is fixed by the frames, not a clash.
+    bool near_in_graph(int a, int b) const {
+        if (a == b) return true;
+        for (const Neighbor& x : m_.neighbors(a)) {
+            if (x.atom == b) return true;
+            for (const Neighbor& y : m_.neighbors(x.atom))
+                if (y.atom == b) return true;
+        }
+        return false;
+    }
+
+    // Sum of squared overlaps of the proposed atoms with the atoms already placed.
+    double clash_score(const std::vector<int>& atoms, const std::vector<Vector3d>& xs) const {
+        double score = 0;
+        for (size_t k = 0; k < atoms.size(); ++k) {
+            const int a = atoms[k];
+            grid_.for_each_near(xs[k], [&](int b) {
+                const double limit = kClashFraction * (vdw_[at(a)] + vdw_[at(b)]);
+                const double dist = (pos_[at(b)] - xs[k]).norm();
+                if (dist < limit && !near_in_graph(a, b)) score += (limit - dist) * (limit - dist);
+            });
+        }
+        return score;
+    }
+
+    // The preferred partner for a torsion among candidates bonded to `centre`: heavy before hydrogen, single bonds
+    // before multiple ones (which makes amides trans and esters Z), then the lower index.
+    int preferred(int centre, const std::vector<int>& candidates) const {
+        int best = -1;
+        std::tuple<int, int, int> best_key{};
+        for (int a : candidates) {
+            const int bond = m_.bond_between(centre, a);
+            std::tuple<int, int, int> key{m_.atoms[at(a)].z == 1 ? 1 : 0, m_.bonds[at(bond)].order == 1 ? 0 : 1, a};
+            if (best < 0 || key < best_key) {
+                best = a;
+                best_key = key;
+            }
+        }
+        return best;
+    }
+
+    // Whether the frame of `centre` must be mirrored to give the written handedness.
+    bool stereo_mirror(int centre, const std::vector<Vector3d>& dirs) const {
+        const ChiralTarget& t = chiral_[at(chiral_of_[at(centre)])];
+        const int k1 = neighbor_index(m_, centre, t.n1), k2 = neighbor_index(m_, centre, t.n2),
+                  k3 = neighbor_index(m_, centre, t.n3);
+        const double v = signed_volume(Vector3d::Zero(), dirs[at(k1)], dirs[at(k2)], dirs[at(k3)]);
+        return v * t.sign < 0;
+    }
+
+    // The frame of a centre with placed neighbours `fixed` (indices into its neighbour list, at positions `targets`
+    // relative to the centre): the rotated bonded directions. Chooses the mirror image for a stereocentre as
+    // written; otherwise the better fit, and on a tie the one whose free positions clash less.
+    std::vector<Vector3d> fitted_frame(int centre, const std::vector<int>& fixed, const std::vector<Vector3d>& targets,
+                                       const std::vector<int>& free_atoms, const std::vector<double>& free_lengths,
+                                       const Vector3d& origin, const Vector3d& outward = Vector3d::Zero()) const {
+        const CentreDomains& cd = d_.atoms[at(centre)];
+        auto fit = [&](bool mirrored, double* residual) {
+            auto dirs = bonded_directions(m_, cd, centre, mirrored);
+            std::vector<Vector3d> a;
+            for (int k : fixed) a.push_back(dirs[at(k)]);
+            const Matrix3d r = kabsch_rotation(a, targets);
+            double res = 0;
+            for (size_t i = 0; i < a.size(); ++i) res += (r * a[i] - targets[i].normalized()).squaredNorm();
+            if (residual) *residual = res;
+            for (auto& v : dirs) v = r * v;
+            return dirs;
+        };
+        if (chiral_of_[at(centre)] >= 0) {
+            const bool mirror = stereo_mirror(centre, bonded_directions(m_, cd, centre, false));
+            return fit(mirror, nullptr);
+        }
+        double r0 = 0, r1 = 0;
+        auto plain = fit(false, &r0);
+        auto mirrored = fit(true, &r1);
+        if (r1 < r0 - 1e-6) return mirrored;
+        if (r0 < r1 - 1e-6 || free_atoms.empty()) return plain;
+        // Equal fits (two placed neighbours in a ring): heavy substituents equatorial, pointing away from the ring.
+        if (outward.squaredNorm() > 0) {
+            auto out_score = [&](const std::vector<Vector3d>& dirs) {
+                double sc = 0;
+                for (int a : free_atoms)
+                    if (m_.atoms[at(a)].z != 1) sc += dirs[at(neighbor_index(m_, centre, a))].dot(outward);
+                return sc;
+            };
+            const double s0 = out_score(plain), s1 = out_score(mirrored);
+            if (s1 > s0 + 1e-6) return mirrored;
+            if (s0 > s1 + 1e-6) return plain;
+        }
+        auto positions = [&](const std::vector<Vector3d>& dirs) {
+            std::vector<Vector3d> xs;
+            const auto& nb = m_.neighbors(centre);
+            for (size_t i = 0; i < free_atoms.size(); ++i)
+                xs.push_back(origin + dirs[at(neighbor_index(m_, centre, free_atoms[i]))] * free_lengths[i]);
+            (void)nb;
+            return xs;
+        };
+        return clash_score(free_atoms, positions(mirrored)) < clash_score(free_atoms, positions(plain)) ? mirrored
+                                                                                                        : plain;
+    }
+
+    // Offsets to try for the torsion about the bond p-c.
+    const std::vector<double>& offsets(int p, int c, int bond, bool stereo) const {
+        if (stereo) return kFixedOffset;
+        const Bond& b = m_.bonds[at(bond)];
+        if (b.order == 2 && !b.aromatic) return kDoubleBondOffsets;
+        if (planar_centre(m_, d_.atoms[at(p)], p) && planar_centre(m_, d_.atoms[at(c)], c)) return kPlanarOffsets;
+        return kStaggeredOffsets;
+    }
+
+    // The torsion reference pair for the bond p-c: r bonded to p (placed), n among `children` of c, with the target
+    // dihedral r-p-c-n. Returns false when there is no reference (p has no other placed neighbour).
+    bool torsion_reference(int p, int c, const std::vector<int>& children, int* r, int* n, double* target,
+                           bool* stereo) const {
+        const int bond = m_.bond_between(p, c);
+        const Bond& b = m_.bonds[at(bond)];
+        *stereo = false;
+        if (b.stereo != BondStereo::none && b.ref_a >= 0 && b.ref_b >= 0) {
+            const int rp = p == b.a ? b.ref_a : b.ref_b, rc = p == b.a ? b.ref_b : b.ref_a;
+            if (placed_[at(rp)] && std::find(children.begin(), children.end(), rc) != children.end()) {
+                *r = rp;
+                *n = rc;
+                *target = b.stereo == BondStereo::cis ? 0.0 : kPi;
+                *stereo = true;
+                return true;
+            }
+        }
+        std::vector<int> refs;
+        for (const Neighbor& x : m_.neighbors(p))
+            if (x.atom != c && placed_[at(x.atom)]) refs.push_back(x.atom);
+        *r = preferred(p, refs);
+        *n = preferred(c, children);
+        *target = kPi;  // anti
+        return *r >= 0 && *n >= 0;
+    }
+
+    // Places the unplaced neighbours of a placed atom.
+    void grow(int c) {
+        const auto& nb = m_.neighbors(c);
+        std::vector<int> fixed, free_idx, free_atoms;
+        std::vector<Vector3d> targets;
+        std::vector<double> lengths;
+        for (size_t k = 0; k < nb.size(); ++k) {
+            if (placed_[at(nb[k].atom)]) {
+                fixed.push_back(static_cast<int>(k));
+                targets.push_back((pos_[at(nb[k].atom)] - pos_[at(c)]).normalized());
+            } else {
+                free_idx.push_back(static_cast<int>(k));
+                free_atoms.push_back(nb[k].atom);
+                lengths.push_back(bond_len(c, nb[k]));
+            }
+        }
+        if (free_atoms.empty()) return;
+        std::vector<Vector3d> xs(free_atoms.size());
+        if (fixed.size() != 1) {
+            Vector3d outward = Vector3d::Zero();
+            const int sys = rings_.atom_system[at(c)];
+            if (sys >= 0 && fixed.size() == 2) {
+                const Vector3d away = pos_[at(c)] - system_centre_[at(sys)];
+                if (away.norm() > 1e-6) outward = away.normalized();
+            }
+            const auto dirs = fitted_frame(c, fixed, targets, free_atoms, lengths, pos_[at(c)], outward);
+            for (size_t i = 0; i < free_idx.size(); ++i) xs[i] = pos_[at(c)] + dirs[at(free_idx[i])] * lengths[i];
+        } else {
+            const int p = nb[at(fixed[0])].atom;
+            const CentreDomains& cd = d_.atoms[at(c)];
+            auto dirs = bonded_directions(m_, cd, c, false);
+            if (chiral_of_[at(c)] >= 0 && stereo_mirror(c, dirs)) dirs = bonded_directions(m_, cd, c, true);
+            const Vector3d axis = targets[0];
+            const Matrix3d r0 = rotation_between(dirs[at(fixed[0])], axis);
+            auto at_angle = [&](double theta) {
+                const Matrix3d r = Eigen::AngleAxisd(theta, axis).toRotationMatrix() * r0;
+                std::vector<Vector3d> out(free_idx.size());
+                for (size_t i = 0; i < free_idx.size(); ++i) out[i] = pos_[at(c)] + r * dirs[at(free_idx[i])] * lengths[i];
+                return out;
+            };
+            int r = -1, n = -1;
+            double target = 0;
+            bool stereo = false;
+            double base = 0;
+            if (torsion_reference(p, c, free_atoms, &r, &n, &target, &stereo)) {
+                const auto x0 = at_angle(0);
+                const size_t in = static_cast<size_t>(std::find(free_atoms.begin(), free_atoms.end(), n) - free_atoms.begin());
+                base = angle_for_dihedral(pos_[at(r)], pos_[at(p)], pos_[at(c)], x0[in], target);
+            }
+            xs = best_torsion(free_atoms, offsets(p, c, m_.bond_between(p, c), stereo), base, at_angle);
+        }
+        for (size_t i = 0; i < free_atoms.size(); ++i) {
+            const int u = free_atoms[i];
+            const int s = rings_.atom_system[at(u)];
+            if (s >= 0 && !system_placed_[at(s)]) enter_system(s, u, c, xs[i]);
+            else place(u, xs[i]);
+        }
+    }
+
+    // The first offset whose atoms do not clash, else the one that clashes least.
+    template <class F>
+    std::vector<Vector3d> best_torsion(const std::vector<int>& atoms, const std::vector<double>& offs, double base,
+                                       F&& at_angle) const {
+        std::vector<Vector3d> best;
+        double best_score = 0;
+        for (double off : offs) {
+            auto xs = at_angle(base + off);
+            const double score = clash_score(atoms, xs);
+            if (score == 0) return xs;
+            if (best.empty() || score < best_score) {
+                best = std::move(xs);
+                best_score = score;
+            }
+        }
+        return best;
+    }
+
+    // Places ring system s as a rigid unit: atom u goes to xu, bonded to the placed atom c outside the system.
+    void enter_system(int s, int u, int c, const Vector3d& xu) {
+        const auto& atoms = rings_.systems[at(s)];
+        const auto& local = ring_xyz_[at(s)];
+        const int lu = local_[at(u)];
+        const auto& nbu = m_.neighbors(u);
+        std::vector<int> fixed;
+        std::vector<Vector3d> targets;
+        for (size_t k = 0; k < nbu.size(); ++k)
+            if (rings_.atom_system[at(nbu[k].atom)] == s) {
+                fixed.push_back(static_cast<int>(k));
+                targets.push_back((local[at(local_[at(nbu[k].atom)])] - local[at(lu)]).normalized());
+            }
+        const auto dirs = fitted_frame(u, fixed, targets, {}, {}, local[at(lu)]);
+        const Vector3d e = dirs[at(neighbor_index(m_, u, c))];  // direction u -> c in the system's frame
+        const Vector3d axis = (pos_[at(c)] - xu).normalized();
+        const Matrix3d q0 = rotation_between(e, axis);
+        auto at_angle = [&](double theta) {
+            const Matrix3d q = Eigen::AngleAxisd(theta, axis).toRotationMatrix() * q0;
+            std::vector<Vector3d> out(atoms.size());
+            for (size_t k = 0; k < atoms.size(); ++k) out[k] = xu + q * (local[k] - local[at(lu)]);
+            return out;
+        };
+        std::vector<int> ring_nbrs;
+        for (int k : fixed) ring_nbrs.push_back(nbu[at(k)].atom);
+        int r = -1, n = -1;
+        double target = 0, base = 0;
+        bool stereo = false;
+        if (torsion_reference(c, u, ring_nbrs, &r, &n, &target, &stereo)) {
+            const auto x0 = at_angle(0);
+            base = angle_for_dihedral(pos_[at(r)], pos_[at(c)], xu, x0[at(local_[at(n)])], target);
+        }
+        const auto xs = best_torsion(atoms, offsets(c, u, m_.bond_between(c, u), stereo), base, at_angle);
+        system_placed_[at(s)] = 1;
+        for (const auto& x : xs) system_centre_[at(s)] += x / static_cast<double>(xs.size());
+        place(u, xs[at(lu)]);
+        for (size_t k = 0; k < atoms.size(); ++k)
+            if (atoms[k] != u) place(atoms[k], xs[k]);
+    }
+
+    int choose_root(const std::vector<int>& atoms) const {
+        int best_system = -1;
+        for (int a : atoms) {
+            const int s = rings_.atom_system[at(a)];
+            if (s >= 0 && (best_system < 0 || rings_.systems[at(s)].size() > rings_.systems[at(best_system)].size()))
+                best_system = s;
+        }
+        if (best_system >= 0) return rings_.systems[at(best_system)][0];
+        int best = atoms[0];
+        for (int a : atoms) {
+            const bool heavy = m_.atoms[at(a)].z != 1, best_heavy = m_.atoms[at(best)].z != 1;
+            if (heavy != best_heavy ? heavy : m_.degree(a) > m_.degree(best)) best = a;
+        }
+        return best;
+    }
+
+    void build_component(const std::vector<int>& atoms) {
+        queue_.clear();
+        grid_ = NeighborGrid(kGridCell);  // each component is built on its own around the origin
+        const int root = choose_root(atoms);
+        const int s = rings_.atom_system[at(root)];
+        if (s >= 0) {
+            system_placed_[at(s)] = 1;
+            const auto& sys = rings_.systems[at(s)];
+            for (size_t k = 0; k < sys.size(); ++k) {
+                place(sys[k], ring_xyz_[at(s)][k]);
+                system_centre_[at(s)] += ring_xyz_[at(s)][k] / static_cast<double>(sys.size());
+            }
+        } else {
+            place(root, Vector3d::Zero());
+        }
+        for (size_t head = 0; head < queue_.size(); ++head) grow(queue_[head]);
+        for (int a : atoms)
+            if (!placed_[at(a)]) throw std::logic_error("assembly: an atom was not reached");
+    }
+};
+
+}  // namespace
+
+std::vector<Vector3d> assemble_positions(const Molecule& molecule, const MoleculeDomains& domains,
+                                         const RingInfo& rings, const std::vector<RingSystemCoordinates>& ring_coordinates,
+                                         const std::vector<ChiralTarget>& chiral) {
+    if (static_cast<int>(domains.atoms.size()) != molecule.atom_count())
+        throw std::logic_error("assembly: the domain analysis does not match the molecule");
+    return Walk(molecule, domains, rings, ring_coordinates, chiral).run();
+}
+
+}  // namespace repel

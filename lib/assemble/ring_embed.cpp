@@ -1,0 +1,734 @@
+#include "assemble/ring_embed.hpp"
+
+#include <Eigen/Geometry>
+#include <algorithm>
+#include <cmath>
+#include <unordered_map>
+#include <cstdio>
+#include <cstdlib>
+
+#include "assemble/distance_geometry.hpp"
+#include "assemble/place.hpp"
+#include "core/bond_length.hpp"
+#include "core/element.hpp"
+
+namespace repel {
+
+using Eigen::Vector3d;
+using Matrix3 = Eigen::Matrix3d;
+
+namespace {
+
+constexpr double kDeg = M_PI / 180.0;
+
+// Ring-shape choices (common practice; ring conformations as in any organic chemistry text):
+// - a cyclohexane chair has ring torsions of about +-55 degrees; bonds between two sp3 atoms in a six-membered ring
+//   are held between these torsions so that the embedding gives chairs, not boats;
+// - five-membered rings pucker by up to about 45 degrees (envelope and twist);
+// - seven-membered rings by up to about 100;
+// - the envelope's flap is folded 35 degrees out of the plane of the other four atoms.
+constexpr double kChairTorsionMin = 45, kChairTorsionMax = 70;
+constexpr double kOtherSixTorsionMax = 65;
+constexpr double kFiveTorsionMax = 45;
+constexpr double kSevenTorsionMax = 100;
+constexpr double kEnvelopeFlap = 35;
+// Tolerances of the bounds: bond lengths, angles forced by a small or planar ring, other angles, planar torsions.
+constexpr double kBondTolerance = 0.01;        // Angstrom
+constexpr double kRingAngleTolerance = 3;      // degrees
+constexpr double kFrameAngleTolerance = 5;     // degrees
+constexpr double kPlanarTorsionTolerance = 8;  // degrees
+// Non-bonded atoms of a ring system more than three bonds apart stay at least this fraction of their van der Waals
+// sum apart (common practice; lets the para atoms of a benzene ring, 2.8 A, stay where they are).
+constexpr double kFarFraction = 0.7;
+// Unmarked double bonds in rings up to this size are cis (trans cycloalkenes below it are strained; common practice).
+constexpr int kLargestCisOnlyRing = 11;
+// Largest spread of bond lengths (Angstrom) in a ring built from a plain template without the embedding.
+constexpr double kTemplateBondSpread = 0.03;
+// Flat rings up to this size have the angles of the regular polygon; larger flat rings (the inner ring of a porphyrin)
+// take their angles from the centres' frames.
+constexpr int kLargestPolygonRing = 8;
+// A planar centre whose three ring angles add up to less than this (degrees) is curved (fullerenes, bowls): it is not
+// held flat.
+constexpr double kCurvedAngleSum = 355;
+// Embedding attempts and the accepted bound violation.
+constexpr int kAttempts = 6;
+constexpr double kAcceptedViolation = 0.1;
+
+size_t at(int i) { return static_cast<size_t>(i); }
+
+double law_of_cosines(double a, double b, double theta) { return std::sqrt(std::max(0.0, a * a + b * b - 2 * a * b * std::cos(theta))); }
+
+// Distance between the ends of i-j-k-l with bond lengths b1, b2, b3, angles t1 (ijk), t2 (jkl) and torsion phi.
+double distance14(double b1, double b2, double b3, double t1, double t2, double phi) {
+    const Vector3d i(b1 * std::cos(t1), b1 * std::sin(t1), 0);
+    const Vector3d l(b2 - b3 * std::cos(t2), b3 * std::sin(t2) * std::cos(phi), b3 * std::sin(t2) * std::sin(phi));
+    return (i - l).norm();
+}
+
+class SystemEmbedder {
+public:
+    SystemEmbedder(const Molecule& m, const MoleculeDomains& d, const RingInfo& rings, int system,
+                   const std::vector<ChiralTarget>& chiral)
+        : m_(m), d_(d), rings_(rings), atoms_(rings.systems[at(system)]), chiral_(chiral) {
+        const size_t n = atoms_.size();
+        local_.reserve(n);
+        for (size_t k = 0; k < n; ++k) local_[atoms_[k]] = static_cast<int>(k);
+        nbrs_.resize(n);
+        for (size_t k = 0; k < n; ++k)
+            for (const Neighbor& nb : m.neighbors(atoms_[k]))
+                if (local_.count(nb.atom)) nbrs_[k].push_back(local_.at(nb.atom));
+        for (int r : rings.system_rings[at(system)]) {
+            std::vector<int> ring;
+            for (int a : rings.rings[at(r)]) ring.push_back(local_.at(a));
+            rings_local_.push_back(std::move(ring));
+        }
+        planar_.resize(n);
+        dirs_.resize(n);
+        for (size_t k = 0; k < n; ++k) {
+            planar_[k] = planar_centre(m, d.atoms[at(atoms_[k])], atoms_[k]);
+            dirs_[k] = bonded_directions(m, d.atoms[at(atoms_[k])], atoms_[k]);
+        }
+        for (const auto& ring : rings_local_) {
+            const int size = static_cast<int>(ring.size());
+            bool flat = true;
+            for (int a : ring) flat = flat && planar_[at(a)];
+            for (int s = 0; s < size; ++s) {
+                const int a = ring[at(s)], b = ring[at((s + 1) % size)], c = ring[at((s + 2) % size)],
+                          e = ring[at((s + 3) % size)];
+                note(triples_, key3(a, b, c), size, flat);
+                if (size > 3) note(quads_, key4(a, b, c, e), size, flat);
+            }
+        }
+        curved_.assign(n, 0);
+        for (size_t j = 0; j < n; ++j) {
+            const auto& nb = nbrs_[j];
+            if (!planar_[j] || nb.size() != 3) continue;
+            double sum = 0;
+            int ring_angles = 0;
+            for (size_t x = 0; x < 3; ++x)
+                for (size_t y = x + 1; y < 3; ++y) {
+                    const double a = polygon_angle(lookup3(nb[x], static_cast<int>(j), nb[y]));
+                    if (a > 0) {
+                        sum += a;
+                        ++ring_angles;
+                    }
+                }
+            curved_[j] = ring_angles == 3 && sum < kCurvedAngleSum;
+        }
+    }
+
+    RingSystemEmbedding run() {
+        RingSystemEmbedding out = shape();
+        prefer_equatorial(out.coordinates);
+        return out;
+    }
+
+private:
+    RingSystemEmbedding shape() {
+        if (rings_local_.size() == 1) {
+            const auto& ring = rings_local_[0];
+            const int size = static_cast<int>(ring.size());
+            bool all_planar = true, all_sp3 = true, marked_double = false;
+            for (int a : ring) {
+                all_planar = all_planar && planar_[at(a)];
+                all_sp3 = all_sp3 && !planar_[at(a)] && d_.atoms[at(atoms_[at(a)])].steric_number == 4;
+            }
+            for (size_t s = 0; s < ring.size(); ++s) {
+                const int b = m_.bond_between(atoms_[at(ring[s])], atoms_[at(ring[(s + 1) % ring.size()])]);
+                marked_double = marked_double || m_.bonds[at(b)].stereo != BondStereo::none;
+            }
+            // The plain templates need bonds of one length; rings with heteroatoms or mixed bonds go through the
+            // embedding, which starts from the same template.
+            double shortest = 1e9, longest = 0;
+            for (size_t s = 0; s < ring.size(); ++s) {
+                const double len = bond_len(ring[s], ring[(s + 1) % ring.size()]);
+                shortest = std::min(shortest, len);
+                longest = std::max(longest, len);
+            }
+            const bool uniform = longest - shortest < kTemplateBondSpread;
+            if (!marked_double && uniform && (size <= 4 || (all_planar && size <= 8))) return polygon(ring, 0, "polygon");
+            if (uniform && size == 6 && all_sp3) return chair(ring);
+            if (uniform && size == 5 && all_sp3) return envelope(ring);
+        }
+        return distance_geometry();
+    }
+
+    // How far the heavy substituents of the system's stereocentres (those with two ring neighbours, whose frames the
+    // assembly mirrors to the written handedness) point away from the system's centre: equatorial rather than axial.
+    double outwardness(const std::vector<Vector3d>& x) const {
+        Vector3d centre = Vector3d::Zero();
+        for (const auto& p : x) centre += p;
+        centre /= static_cast<double>(x.size());
+        double score = 0;
+        for (const ChiralTarget& t : chiral_) {
+            auto it = local_.find(t.centre);
+            if (it == local_.end() || nbrs_[at(it->second)].size() != 2) continue;
+            const int c = it->second;
+            const CentreDomains& cd = d_.atoms[at(t.centre)];
+            auto dirs = bonded_directions(m_, cd, t.centre, false);
+            const auto& nb = m_.neighbors(t.centre);
+            auto index_of = [&](int a) {
+                for (size_t k = 0; k < nb.size(); ++k)
+                    if (nb[k].atom == a) return k;
+                return size_t{0};
+            };
+            const double v = signed_volume(Vector3d::Zero(), dirs[index_of(t.n1)], dirs[index_of(t.n2)], dirs[index_of(t.n3)]);
+            if (v * t.sign < 0) dirs = bonded_directions(m_, cd, t.centre, true);
+            std::vector<Vector3d> a, b;
+            for (int r : nbrs_[at(c)]) {
+                a.push_back(dirs[index_of(atom(r))]);
+                b.push_back((x[at(r)] - x[at(c)]).normalized());
+            }
+            const Eigen::Matrix3d rot = kabsch_rotation(a, b);
+            const Vector3d out = (x[at(c)] - centre).normalized();
+            for (size_t k = 0; k < nb.size(); ++k)
+                if (!local_.count(nb[k].atom) && m_.atoms[at(nb[k].atom)].z != 1) score += (rot * dirs[k]).dot(out);
+        }
+        return score;
+    }
+
+    // Ring systems without handedness of their own may be taken as their mirror image (for a chair: the other
+    // chair); take the one that puts the substituents of stereocentres equatorial.
+    void prefer_equatorial(std::vector<Vector3d>& x) const {
+        for (const VolumeCondition& v : volume_conditions({}))
+            if (v.sign != 0) return;
+        auto mirrored = x;
+        for (auto& p : mirrored) p.x() = -p.x();
+        if (outwardness(mirrored) > outwardness(x) + 1e-6) x = std::move(mirrored);
+    }
+
+    const Molecule& m_;
+    const MoleculeDomains& d_;
+    const RingInfo& rings_;
+    const std::vector<int>& atoms_;
+    const std::vector<ChiralTarget>& chiral_;
+    std::unordered_map<int, int> local_;
+    std::vector<std::vector<int>> nbrs_;
+    std::vector<std::vector<int>> rings_local_;
+    std::vector<char> planar_;
+    std::vector<char> curved_;  // planar centres that three small rings bend out of plane
+    std::vector<std::vector<Vector3d>> dirs_;
+    // Smallest ring size holding a consecutive triple / quadruple of atoms, and whether that ring is planar.
+    struct RingNote {
+        int size = 0;
+        bool flat = false;
+    };
+    std::unordered_map<std::uint64_t, RingNote> triples_, quads_;
+
+    std::uint64_t key3(int a, int b, int c) const {
+        if (a > c) std::swap(a, c);
+        return (static_cast<std::uint64_t>(a) << 42) | (static_cast<std::uint64_t>(b) << 21) | static_cast<std::uint64_t>(c);
+    }
+    std::uint64_t key4(int a, int b, int c, int e) const {
+        if (a > e) {
+            std::swap(a, e);
+            std::swap(b, c);
+        }
+        return (static_cast<std::uint64_t>(a) << 48) | (static_cast<std::uint64_t>(b) << 32) |
+               (static_cast<std::uint64_t>(c) << 16) | static_cast<std::uint64_t>(e);
+    }
+    static void note(std::unordered_map<std::uint64_t, RingNote>& map, std::uint64_t key, int size, bool flat) {
+        auto it = map.find(key);
+        if (it == map.end() || size < it->second.size) map[key] = {size, flat};
+    }
+    RingNote lookup3(int a, int b, int c) const {
+        auto it = triples_.find(key3(a, b, c));
+        return it == triples_.end() ? RingNote{} : it->second;
+    }
+    RingNote lookup4(int a, int b, int c, int e) const {
+        auto it = quads_.find(key4(a, b, c, e));
+        return it == quads_.end() ? RingNote{} : it->second;
+    }
+
+    int atom(int local) const { return atoms_[at(local)]; }
+
+    double bond_len(int a, int b) const {
+        const Bond& bond = m_.bonds[at(m_.bond_between(atom(a), atom(b)))];
+        return bond_length(m_.atoms[at(atom(a))].z, m_.atoms[at(atom(b))].z, bond.order, bond.aromatic);
+    }
+
+    int neighbor_slot(int centre_local, int other_local) const {
+        const auto& nb = m_.neighbors(atom(centre_local));
+        for (size_t k = 0; k < nb.size(); ++k)
+            if (nb[k].atom == atom(other_local)) return static_cast<int>(k);
+        return -1;
+    }
+
+    // The angle the centre's frame puts between two of its neighbours, radians.
+    double frame_angle(int i, int j, int k) const {
+        const Vector3d& a = dirs_[at(j)][at(neighbor_slot(j, i))];
+        const Vector3d& b = dirs_[at(j)][at(neighbor_slot(j, k))];
+        return std::acos(std::clamp(a.dot(b), -1.0, 1.0));
+    }
+
+    // The angle (degrees) a small or flat ring fixes at a consecutive triple, or 0 when it fixes none.
+    static double polygon_angle(const RingNote& q) {
+        if (q.size == 3) return 60;
+        if (q.size == 4) return 90;
+        if (q.size > 0 && q.flat && q.size <= kLargestPolygonRing) return 180.0 * (q.size - 2) / q.size;
+        return 0;
+    }
+
+    // The ring angle i-j-k the embedding aims at, with its tolerance (radians).
+    std::pair<double, double> target_angle(int i, int j, int k) const {
+        const RingNote r = lookup3(i, j, k);
+        if (r.size == 3) return {60 * kDeg, kRingAngleTolerance * kDeg};
+        if (r.size == 4) return {90 * kDeg, kRingAngleTolerance * kDeg};
+        if (r.size > 0 && r.flat && r.size <= kLargestPolygonRing) return {M_PI * (r.size - 2) / r.size, kRingAngleTolerance * kDeg};
+        if (planar_[at(j)] && !curved_[at(j)] && nbrs_[at(j)].size() == 3) {
+            // A planar centre with three ring neighbours: the angles its small rings do not fix share what those
+            // leave of 360 degrees (indole's fusion atom: 360-108-120; a porphyrin's alpha carbon: (360-108)/2).
+            double sum = 0;
+            int known = 0;
+            const auto& nb = nbrs_[at(j)];
+            for (size_t x = 0; x < 3; ++x)
+                for (size_t y = x + 1; y < 3; ++y) {
+                    const double a = polygon_angle(lookup3(nb[x], j, nb[y]));
+                    if (a > 0) {
+                        sum += a;
+                        ++known;
+                    }
+                }
+            if (known > 0) return {std::clamp((360 - sum) / (3 - known), 90.0, 160.0) * kDeg, kRingAngleTolerance * kDeg};
+        }
+        double theta = frame_angle(i, j, k);
+        if (r.size == 5) theta = std::min(theta, 106 * kDeg);  // five-membered rings close their sp3 angles a little
+        return {theta, kFrameAngleTolerance * kDeg};
+    }
+
+    // Torsion range (absolute, radians) for i-j-k-l inside the system, or {0, pi} when free.
+    std::pair<double, double> torsion_range(int i, int j, int k, int l) const {
+        const Bond& b = m_.bonds[at(m_.bond_between(atom(j), atom(k)))];
+        const bool planar_bond = (b.order == 2 && !b.aromatic) || b.aromatic || (planar_[at(j)] && planar_[at(k)]);
+        const RingNote r = lookup4(i, j, k, l);
+        const double tol = kPlanarTorsionTolerance * kDeg;
+        if (planar_bond && (curved_[at(j)] || curved_[at(k)])) {
+            if (r.size > 0) return {0, 2 * tol};
+            return {0, M_PI};
+        }
+        if (planar_bond) {
+            const int cis = planar_relation(i, j, k, l, b);
+            if (cis > 0) return {0, tol};
+            if (cis < 0) return {M_PI - tol, M_PI};
+            return {0, M_PI};
+        }
+        const bool sp3j = !planar_[at(j)] && d_.atoms[at(atom(j))].steric_number == 4;
+        const bool sp3k = !planar_[at(k)] && d_.atoms[at(atom(k))].steric_number == 4;
+        switch (r.size) {
+            case 5: return {0, kFiveTorsionMax * kDeg};
+            case 6:
+                if (sp3j && sp3k) return {kChairTorsionMin * kDeg, kChairTorsionMax * kDeg};
+                return {0, kOtherSixTorsionMax * kDeg};
+            case 7: return {0, kSevenTorsionMax * kDeg};
+            default: return {0, M_PI};
+        }
+    }
+
+    // +1 when i and l are cis across the planar bond j-k, -1 when trans, 0 when nothing says.
+    int planar_relation(int i, int j, int k, int l, const Bond& b) const {
+        // Sides: a neighbour of j (other than k) is on side +1 if it is the first such neighbour, else -1.
+        auto side = [&](int centre, int other, int x) {
+            for (int y : nbrs_[at(centre)])
+                if (y != other) return y == x ? 1 : -1;
+            return 1;
+        };
+        // A written configuration decides.
+        if (b.stereo != BondStereo::none && b.ref_a >= 0 && b.ref_b >= 0 && local_.count(b.ref_a) &&
+            local_.count(b.ref_b)) {
+            const int ja = local_.at(b.a) == j ? j : k;
+            const int ra = local_.at(b.ref_a), rb = local_.at(b.ref_b);
+            const int ka = ja == j ? k : j;
+            const int ref_j = ja == j ? ra : rb, ref_k = ja == j ? rb : ra;
+            (void)ka;
+            const int relation = (b.stereo == BondStereo::cis ? 1 : -1) * side(j, k, ref_j) * side(k, j, ref_k);
+            return relation * side(j, k, i) * side(k, j, l);
+        }
+        // Else a ring that runs through a neighbour of each end: cis in rings up to kLargestCisOnlyRing (and in any
+        // aromatic or planar ring), trans beyond.
+        for (int a : nbrs_[at(j)]) {
+            if (a == k) continue;
+            for (int c : nbrs_[at(k)]) {
+                if (c == j || c == a) continue;
+                const RingNote r = lookup4(a, j, k, c);
+                if (r.size == 0) continue;
+                const bool ring_cis = r.size <= kLargestCisOnlyRing || r.flat || b.aromatic;
+                const int relation = (ring_cis ? 1 : -1) * side(j, k, a) * side(k, j, c);
+                return relation * side(j, k, i) * side(k, j, l);
+            }
+        }
+        return 0;
+    }
+
+    // Signed-volume conditions: the written stereocentres of the system, and planarity of planar fusion atoms.
+    std::vector<VolumeCondition> volume_conditions(const std::vector<Vector3d>& ideal_unused) const {
+        (void)ideal_unused;
+        std::vector<VolumeCondition> out;
+        for (const ChiralTarget& t : chiral_) {
+            auto it = local_.find(t.centre);
+            if (it == local_.end()) continue;
+            const int c = it->second;
+            if (nbrs_[at(c)].size() < 3) continue;  // two ring neighbours: the assembly mirrors the frame instead
+            VolumeCondition v;
+            v.centre = c;
+            const double b = 1.5;  // typical bond; the minimum is half an ideal tetrahedron's volume
+            v.minimum = 0.5 * b * b * b * 0.77;
+            if (local_.count(t.n1) && local_.count(t.n2) && local_.count(t.n3)) {
+                v.b = local_.at(t.n1);
+                v.d = local_.at(t.n2);
+                v.e = local_.at(t.n3);
+                v.sign = t.sign;
+            } else {
+                // One neighbour is outside the system: it sits opposite the three inside, so the handedness of the
+                // three inside follows from an ideal tetrahedron.
+                const auto& in = nbrs_[at(c)];
+                const double s = std::sqrt(8.0 / 9.0), h = -1.0 / 3.0;
+                const Vector3d t1(0, 0, 1), t2(s, 0, h), t3(-s / 2, std::sqrt(2.0 / 3.0), h);
+                const Vector3d t4 = -(t1 + t2 + t3);
+                auto dir = [&](int atom_index) {
+                    if (local_.count(atom_index)) {
+                        const int li = local_.at(atom_index);
+                        if (li == in[0]) return t1;
+                        if (li == in[1]) return t2;
+                        if (li == in[2]) return t3;
+                    }
+                    return t4;
+                };
+                const double vt = dir(t.n1).dot(dir(t.n2).cross(dir(t.n3)));
+                const double v0 = t1.dot(t2.cross(t3));
+                v.b = in[0];
+                v.d = in[1];
+                v.e = in[2];
+                v.sign = (vt * t.sign > 0) == (v0 > 0) ? 1 : -1;
+            }
+            out.push_back(v);
+        }
+        for (size_t c = 0; c < atoms_.size(); ++c)
+            if (planar_[c] && !curved_[c] && nbrs_[c].size() == 3)
+                out.push_back({static_cast<int>(c), nbrs_[c][0], nbrs_[c][1], nbrs_[c][2], 0, 0});
+        return out;
+    }
+
+    RingSystemEmbedding distance_geometry() {
+        const int n = static_cast<int>(atoms_.size());
+        DistanceBounds bounds(n);
+        // 1-2
+        for (int a = 0; a < n; ++a)
+            for (int b : nbrs_[at(a)])
+                if (a < b) {
+                    const double len = bond_len(a, b);
+                    bounds.narrow(a, b, len - kBondTolerance, len + kBondTolerance);
+                }
+        std::vector<std::vector<char>> close(at(n), std::vector<char>(at(n), 0));
+        for (int a = 0; a < n; ++a)
+            for (int b : nbrs_[at(a)]) close[at(a)][at(b)] = 1;
+        // 1-3
+        for (int j = 0; j < n; ++j) {
+            const auto& nb = nbrs_[at(j)];
+            for (size_t x = 0; x < nb.size(); ++x)
+                for (size_t y = x + 1; y < nb.size(); ++y) {
+                    const int i = nb[x], k = nb[y];
+                    if (close[at(i)][at(k)] == 1) continue;
+                    const auto [theta, tol] = target_angle(i, j, k);
+                    const double a = bond_len(i, j), c = bond_len(j, k);
+                    bounds.narrow(i, k, law_of_cosines(a, c, std::max(0.0, theta - tol)),
+                                  law_of_cosines(a, c, std::min(M_PI, theta + tol)));
+                    close[at(i)][at(k)] = close[at(k)][at(i)] = 2;
+                }
+        }
+        // 1-4: distance bounds from the torsion range, and the range itself as a torsion condition.
+        std::vector<TorsionCondition> torsions;
+        for (int j = 0; j < n; ++j)
+            for (int k : nbrs_[at(j)]) {
+                if (k < j) continue;
+                for (int i : nbrs_[at(j)]) {
+                    if (i == k) continue;
+                    for (int l : nbrs_[at(k)]) {
+                        if (l == j || l == i || close[at(i)][at(l)] == 1) continue;
+                        const auto [lo, hi] = torsion_range(i, j, k, l);
+                        if (lo > 0 || hi < M_PI) torsions.push_back({i, j, k, l, lo, hi});
+                        if (close[at(i)][at(l)] == 2) continue;
+                        const double b1 = bond_len(i, j), b2 = bond_len(j, k), b3 = bond_len(k, l);
+                        const double t1 = target_angle(i, j, k).first, t2 = target_angle(j, k, l).first;
+                        bounds.narrow(i, l, distance14(b1, b2, b3, t1, t2, lo), distance14(b1, b2, b3, t1, t2, hi));
+                        close[at(i)][at(l)] = close[at(l)][at(i)] = 3;
+                    }
+                }
+            }
+        // Far pairs: not closer than a fraction of the van der Waals contact.
+        for (int a = 0; a < n; ++a)
+            for (int b = a + 1; b < n; ++b)
+                if (!close[at(a)][at(b)]) {
+                    const double sum = element(m_.atoms[at(atom(a))].z).r_vdw + element(m_.atoms[at(atom(b))].z).r_vdw;
+                    bounds.narrow(a, b, kFarFraction * sum, 1e6);
+                }
+        const auto volumes = volume_conditions({});
+        bounds.smooth();
+        // The first try starts from ring templates fused one ring at a time (chairs stay chairs, aromatic systems
+        // start flat, macrocycles start as an open crown and cannot come out knotted); then metric-matrix embeddings.
+        const std::vector<Vector3d> start = fused_start(bounds, torsions, volumes);
+        const EmbedResult e = embed_points(bounds, volumes, torsions, kAttempts, kAcceptedViolation, start);
+        RingSystemEmbedding out;
+        out.coordinates = e.coordinates;
+        out.satisfied = e.volumes_met && e.worst_violation < 0.3 && e.worst_torsion < 20 * kDeg;
+        out.method = "distance geometry";
+        out.worst_angle_strain = bridged() ? angle_strain(out.coordinates) : 0.0;
+        return out;
+    }
+
+    // Template coordinates of one ring, by position in the ring: chair, envelope, polygon, or a crown for larger rings.
+    std::vector<Vector3d> ring_template(const std::vector<int>& ring) const {
+        bool all_planar = true, all_sp3 = true;
+        for (int a : ring) {
+            all_planar = all_planar && planar_[at(a)];
+            all_sp3 = all_sp3 && !planar_[at(a)] && d_.atoms[at(atom(a))].steric_number == 4;
+        }
+        RingSystemEmbedding e;
+        (void)all_sp3;
+        // Any ring with an sp3 atom starts puckered: the refinement flattens what must be flat (a half-chair from a
+        // chair), but cannot pucker a flat start the right way.
+        if (ring.size() == 6 && !all_planar) e = chair(ring);
+        else if (ring.size() == 5 && !all_planar) e = envelope(ring);
+        else e = polygon(ring, ring.size() >= 7 && !all_planar ? 0.4 : 0.0, "");
+        std::vector<Vector3d> out;
+        for (int a : ring) out.push_back(e.coordinates[at(a)]);
+        return out;
+    }
+
+    // How badly new ring atoms (positions `y` for atoms `fresh`) fit the bounds, torsions and volumes with what is
+    // placed.
+    double fit_score(const DistanceBounds& b, const std::vector<TorsionCondition>& torsions,
+                     const std::vector<VolumeCondition>& volumes, std::vector<Vector3d>& x, std::vector<char>& placed,
+                     const std::vector<int>& fresh, const std::vector<Vector3d>& y) const {
+        double score = 0;
+        for (size_t q = 0; q < fresh.size(); ++q)
+            for (size_t a = 0; a < x.size(); ++a) {
+                if (!placed[a]) continue;
+                const double d = (y[q] - x[a]).norm();
+                const double lo = b.lower(fresh[q], static_cast<int>(a)), hi = b.upper(fresh[q], static_cast<int>(a));
+                if (d < lo) score += (lo - d) * (lo - d);
+                if (d > hi) score += (d - hi) * (d - hi);
+            }
+        for (size_t q = 0; q < fresh.size(); ++q) {
+            x[at(fresh[q])] = y[q];
+            placed[at(fresh[q])] = 2;
+        }
+        auto ready = [&](std::initializer_list<int> list, bool* touches) {
+            bool all = true;
+            *touches = false;
+            for (int a : list) {
+                all = all && placed[at(a)];
+                *touches = *touches || placed[at(a)] == 2;
+            }
+            return all;
+        };
+        for (const TorsionCondition& t : torsions) {
+            bool touches = false;
+            if (!ready({t.i, t.j, t.k, t.l}, &touches) || !touches) continue;
+            const double a = std::abs(dihedral(x[at(t.i)], x[at(t.j)], x[at(t.k)], x[at(t.l)]));
+            const double v = std::max({0.0, t.lower - a, a - t.upper});
+            score += v * v;
+        }
+        for (const VolumeCondition& v : volumes) {
+            bool touches = false;
+            if (v.sign == 0 || !ready({v.centre, v.b, v.d, v.e}, &touches) || !touches) continue;
+            if (v.sign * signed_volume(x[at(v.centre)], x[at(v.b)], x[at(v.d)], x[at(v.e)]) <= 0) score += 10;
+        }
+        for (int a : fresh) placed[at(a)] = 0;
+        return score;
+    }
+
+    std::vector<Vector3d> fused_start(const DistanceBounds& b, const std::vector<TorsionCondition>& torsions,
+                                      const std::vector<VolumeCondition>& volumes) const {
+        const size_t n = atoms_.size();
+        std::vector<Vector3d> x(n, Vector3d::Zero());
+        std::vector<char> placed(n, 0), ring_done(rings_local_.size(), 0);
+        {
+            const auto t = ring_template(rings_local_[0]);
+            for (size_t s = 0; s < t.size(); ++s) {
+                x[at(rings_local_[0][s])] = t[s];
+                placed[at(rings_local_[0][s])] = 1;
+            }
+            ring_done[0] = 1;
+        }
+        for (size_t step = 1; step < rings_local_.size(); ++step) {
+            int next = -1, best_shared = 0;
+            for (size_t r = 0; r < rings_local_.size(); ++r) {
+                if (ring_done[r]) continue;
+                int shared = 0;
+                for (int a : rings_local_[r]) shared += placed[at(a)] ? 1 : 0;
+                if (shared > best_shared) {
+                    best_shared = shared;
+                    next = static_cast<int>(r);
+                }
+            }
+            if (next < 0) break;  // cannot happen: a ring system is connected through its rings
+            ring_done[at(next)] = 1;
+            const auto& ring = rings_local_[at(next)];
+            std::vector<int> shared_pos, fresh_pos, fresh;
+            for (size_t s = 0; s < ring.size(); ++s) {
+                if (placed[at(ring[s])]) shared_pos.push_back(static_cast<int>(s));
+                else {
+                    fresh_pos.push_back(static_cast<int>(s));
+                    fresh.push_back(ring[s]);
+                }
+            }
+            if (fresh.empty()) continue;
+            std::vector<Vector3d> best;
+            double best_score = 0;
+            for (int mirror = 0; mirror < 2; ++mirror) {
+                auto t = ring_template(ring);
+                if (mirror)
+                    for (auto& v : t) v.z() = -v.z();
+                std::vector<std::vector<Vector3d>> candidates;
+                auto transform = [&](const Matrix3 & r, const Vector3d& from, const Vector3d& to) {
+                    std::vector<Vector3d> y;
+                    for (int s : fresh_pos) y.push_back(to + r * (t[at(s)] - from));
+                    candidates.push_back(std::move(y));
+                };
+                if (shared_pos.size() >= 3) {
+                    Vector3d ct = Vector3d::Zero(), cx = Vector3d::Zero();
+                    for (int s : shared_pos) {
+                        ct += t[at(s)];
+                        cx += x[at(ring[at(s)])];
+                    }
+                    ct /= static_cast<double>(shared_pos.size());
+                    cx /= static_cast<double>(shared_pos.size());
+                    std::vector<Vector3d> a, c;
+                    for (int s : shared_pos) {
+                        a.push_back(t[at(s)] - ct);
+                        c.push_back(x[at(ring[at(s)])] - cx);
+                    }
+                    transform(kabsch_rotation(a, c), ct, cx);
+                } else {
+                    Vector3d from, to, axis_t, axis_x;
+                    if (shared_pos.size() == 2) {
+                        const int p = shared_pos[0], q = shared_pos[1];
+                        from = 0.5 * (t[at(p)] + t[at(q)]);
+                        to = 0.5 * (x[at(ring[at(p)])] + x[at(ring[at(q)])]);
+                        axis_t = (t[at(q)] - t[at(p)]).normalized();
+                        axis_x = (x[at(ring[at(q)])] - x[at(ring[at(p)])]).normalized();
+                    } else {
+                        const int p = shared_pos[0];
+                        Vector3d centre = Vector3d::Zero();
+                        for (const auto& v : t) centre += v;
+                        centre /= static_cast<double>(t.size());
+                        from = t[at(p)];
+                        to = x[at(ring[at(p)])];
+                        axis_t = (centre - from).normalized();
+                        Vector3d away = Vector3d::Zero();
+                        for (int nb : nbrs_[at(ring[at(p)])])
+                            if (placed[at(nb)]) away -= (x[at(nb)] - to).normalized();
+                        axis_x = away.norm() > 1e-6 ? away.normalized() : Vector3d::UnitZ();
+                    }
+                    const Matrix3 r0 = rotation_between(axis_t, axis_x);
+                    constexpr int kSteps = 24;
+                    for (int k = 0; k < kSteps; ++k)
+                        transform(Eigen::AngleAxisd(2 * M_PI * k / kSteps, axis_x).toRotationMatrix() * r0, from, to);
+                }
+                for (const auto& y : candidates) {
+                    const double score = fit_score(b, torsions, volumes, x, placed, fresh, y);
+                    if (best.empty() || score < best_score - 1e-9) {
+                        best = y;
+                        best_score = score;
+                    }
+                }
+            }
+            for (size_t q = 0; q < fresh.size(); ++q) {
+                x[at(fresh[q])] = best[q];
+                placed[at(fresh[q])] = 1;
+            }
+        }
+        return x;
+    }
+
+    // True when two rings of the system share more than two atoms (bridged) or an atom lies in three rings (caged,
+    // or peri-fused like pyrene, whose angles are unstrained and so never warned about).
+    bool bridged() const {
+        std::vector<int> count(atoms_.size(), 0);
+        for (const auto& ring : rings_local_)
+            for (int a : ring)
+                if (++count[at(a)] >= 3) return true;
+        for (size_t r = 0; r < rings_local_.size(); ++r)
+            for (size_t s = r + 1; s < rings_local_.size(); ++s) {
+                int shared = 0;
+                for (int a : rings_local_[r])
+                    if (std::find(rings_local_[s].begin(), rings_local_[s].end(), a) != rings_local_[s].end()) ++shared;
+                if (shared > 2) return true;
+            }
+        return false;
+    }
+
+    double angle_strain(const std::vector<Vector3d>& x) const {
+        double worst = 0;
+        for (size_t j = 0; j < atoms_.size(); ++j) {
+            const auto& nb = nbrs_[j];
+            for (size_t p = 0; p < nb.size(); ++p)
+                for (size_t q = p + 1; q < nb.size(); ++q) {
+                    const Vector3d u = (x[at(nb[p])] - x[j]).normalized(), v = (x[at(nb[q])] - x[j]).normalized();
+                    const double got = std::acos(std::clamp(u.dot(v), -1.0, 1.0));
+                    worst = std::max(worst, std::abs(got - frame_angle(nb[p], static_cast<int>(j), nb[q])) / kDeg);
+                }
+        }
+        return worst;
+    }
+
+    double mean_ring_bond(const std::vector<int>& ring) const {
+        double sum = 0;
+        for (size_t s = 0; s < ring.size(); ++s) sum += bond_len(ring[s], ring[(s + 1) % ring.size()]);
+        return sum / static_cast<double>(ring.size());
+    }
+
+    // A regular polygon in the xy plane (pucker > 0: alternate atoms that far above and below it).
+    RingSystemEmbedding polygon(const std::vector<int>& ring, double pucker, const char* method) const {
+        RingSystemEmbedding out;
+        out.coordinates.assign(atoms_.size(), Vector3d::Zero());
+        const double n = static_cast<double>(ring.size());
+        const double radius = mean_ring_bond(ring) / (2 * std::sin(M_PI / n));
+        for (size_t s = 0; s < ring.size(); ++s) {
+            const double phi = 2 * M_PI * static_cast<double>(s) / n;
+            out.coordinates[at(ring[s])] =
+                Vector3d(radius * std::cos(phi), radius * std::sin(phi), (s % 2 ? -pucker : pucker));
+        }
+        out.method = method;
+        return out;
+    }
+
+    // Cyclohexane chair: atoms on a circle of radius R, alternately h above and below, so that every bond has the
+    // mean length b and every ring angle the mean frame angle theta: 3R^2 = 2b^2(1 - cos theta), R^2 + 4h^2 = b^2.
+    RingSystemEmbedding chair(const std::vector<int>& ring) const {
+        const double b = mean_ring_bond(ring);
+        double theta = 0;
+        for (size_t s = 0; s < 6; ++s) theta += frame_angle(ring[(s + 5) % 6], ring[s], ring[(s + 1) % 6]);
+        theta = std::min(theta / 6, 118 * kDeg);
+        const double r2 = 2 * b * b * (1 - std::cos(theta)) / 3;
+        const double h = std::sqrt(std::max(0.0, (b * b - r2) / 4));
+        RingSystemEmbedding out;
+        out.coordinates.assign(atoms_.size(), Vector3d::Zero());
+        for (size_t s = 0; s < 6; ++s) {
+            const double phi = M_PI / 3 * static_cast<double>(s);
+            out.coordinates[at(ring[s])] = Vector3d(std::sqrt(r2) * std::cos(phi), std::sqrt(r2) * std::sin(phi), s % 2 ? -h : h);
+        }
+        out.method = "chair";
+        return out;
+    }
+
+    // Envelope: a regular pentagon with its first atom folded out of the plane about the line through its two
+    // neighbours, which keeps both of its bond lengths.
+    RingSystemEmbedding envelope(const std::vector<int>& ring) const {
+        RingSystemEmbedding out = polygon(ring, 0, "envelope");
+        const Vector3d a = out.coordinates[at(ring[1])], b = out.coordinates[at(ring[4])];
+        const Vector3d axis = (b - a).normalized();
+        Vector3d& flap = out.coordinates[at(ring[0])];
+        flap = a + Eigen::AngleAxisd(kEnvelopeFlap * kDeg, axis) * (flap - a);
+        return out;
+    }
+};
+
+}  // namespace
+
+RingSystemEmbedding embed_ring_system(const Molecule& molecule, const MoleculeDomains& domains, const RingInfo& rings,
+                                      int system, const std::vector<ChiralTarget>& chiral) {
+    return SystemEmbedder(molecule, domains, rings, system, chiral).run();
+}
+
+}  // namespace repel

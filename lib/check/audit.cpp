@@ -1,0 +1,352 @@
+// The audit: perceive what the file does not state, then compare the measured structure with what the engine's
+// domain analysis, the bond-length table and the van der Waals radii expect.
+#include "check/audit.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+#include <numeric>
+#include <set>
+#include <unordered_map>
+
+#include "core/bond_length.hpp"
+#include "core/element.hpp"
+#include "core/error.hpp"
+#include "domains/domains.hpp"
+
+namespace repel {
+namespace {
+
+double angle_deg(const Eigen::Vector3d& u, const Eigen::Vector3d& v) {
+    const double c = u.normalized().dot(v.normalized());
+    return std::acos(std::clamp(c, -1.0, 1.0)) * 180.0 / M_PI;
+}
+
+std::string label(const Molecule& m, int i) {
+    return fmt::format("{}{}", element(m.atoms[static_cast<size_t>(i)].z).symbol, i + 1);
+}
+
+Severity severity_of(double ratio) { return ratio >= 2.0 ? Severity::error : Severity::warning; }
+
+// Pairs of neighbours of a centre whose angle a ring of three or four atoms fixes (a-b bonded, or a and b sharing a
+// neighbour other than the centre): such angles are far from any domain prediction by construction.
+bool small_ring_pair(const Molecule& m, int centre, int a, int b) {
+    if (m.bond_between(a, b) >= 0) return true;
+    for (const Neighbor& na : m.neighbors(a))
+        if (na.atom != centre && m.bond_between(na.atom, b) >= 0) return true;
+    return false;
+}
+
+struct AngleFit {
+    double rms = 0;
+    int pairs = 0;
+    int worst_a = -1, worst_b = -1;
+    double worst_measured = 0, worst_predicted = 0;
+};
+
+// Compares the measured angles at a centre with the predicted ones, under the best assignment of the predicted
+// directions to neighbours of the same element and bond order (the solver's numbering of equivalent domains is
+// arbitrary: which F of SF4 is axial is the structure's choice).
+AngleFit fit_angles(const Molecule& m, const std::vector<Eigen::Vector3d>& pos, const CentreDomains& c) {
+    AngleFit fit;
+    const auto& nbs = m.neighbors(c.atom);
+    const int k = static_cast<int>(nbs.size());
+    std::unordered_map<int, int> slot;
+    for (int i = 0; i < k; ++i) slot[nbs[static_cast<size_t>(i)].atom] = i;
+    std::vector<double> P(static_cast<size_t>(k * k), 0), M(static_cast<size_t>(k * k), 0);
+    std::vector<char> use(static_cast<size_t>(k * k), 0);
+    for (const PredictedAngle& a : c.angles) {
+        auto ia = slot.find(a.a), ib = slot.find(a.b);
+        if (ia == slot.end() || ib == slot.end()) continue;
+        P[static_cast<size_t>(ia->second * k + ib->second)] = a.degrees;
+        P[static_cast<size_t>(ib->second * k + ia->second)] = a.degrees;
+    }
+    const Eigen::Vector3d& o = pos[static_cast<size_t>(c.atom)];
+    for (int i = 0; i < k; ++i)
+        for (int j = i + 1; j < k; ++j) {
+            const int a = nbs[static_cast<size_t>(i)].atom, b = nbs[static_cast<size_t>(j)].atom;
+            M[static_cast<size_t>(i * k + j)] = angle_deg(pos[static_cast<size_t>(a)] - o, pos[static_cast<size_t>(b)] - o);
+            use[static_cast<size_t>(i * k + j)] = !small_ring_pair(m, c.atom, a, b);
+        }
+    auto cls = [&](int i) {
+        const Neighbor& nb = nbs[static_cast<size_t>(i)];
+        return m.atoms[static_cast<size_t>(nb.atom)].z * 8 + m.bonds[static_cast<size_t>(nb.bond)].order;
+    };
+    std::vector<int> perm(static_cast<size_t>(k)), best(static_cast<size_t>(k));
+    std::iota(perm.begin(), perm.end(), 0);
+    best = perm;
+    double best_cost = 1e300;
+    do {
+        bool ok = true;
+        for (int i = 0; i < k && ok; ++i) ok = cls(i) == cls(perm[static_cast<size_t>(i)]);
+        if (!ok) continue;
+        double cost = 0;
+        for (int i = 0; i < k; ++i)
+            for (int j = i + 1; j < k; ++j)
+                if (use[static_cast<size_t>(i * k + j)]) {
+                    const double d = M[static_cast<size_t>(i * k + j)] -
+                                     P[static_cast<size_t>(perm[static_cast<size_t>(i)] * k + perm[static_cast<size_t>(j)])];
+                    cost += d * d;
+                }
+        if (cost < best_cost) {
+            best_cost = cost;
+            best = perm;
+        }
+    } while (k <= 8 && std::next_permutation(perm.begin(), perm.end()));
+    double worst = -1;
+    for (int i = 0; i < k; ++i)
+        for (int j = i + 1; j < k; ++j) {
+            if (!use[static_cast<size_t>(i * k + j)]) continue;
+            const double p = P[static_cast<size_t>(best[static_cast<size_t>(i)] * k + best[static_cast<size_t>(j)])];
+            const double d = std::fabs(M[static_cast<size_t>(i * k + j)] - p);
+            ++fit.pairs;
+            if (d > worst) {
+                worst = d;
+                fit.worst_a = nbs[static_cast<size_t>(i)].atom;
+                fit.worst_b = nbs[static_cast<size_t>(j)].atom;
+                fit.worst_measured = M[static_cast<size_t>(i * k + j)];
+                fit.worst_predicted = p;
+            }
+        }
+    fit.rms = fit.pairs > 0 ? std::sqrt(best_cost / fit.pairs) : 0;
+    return fit;
+}
+
+void check_valences(const ReadStructure& in, Audit& out, const ValenceResult& v, int unpaired_allowed,
+                    bool multiplicity_known) {
+    const Molecule& m = out.structure.molecule;
+    for (int i : v.overbonded) {
+        out.findings.push_back({"neighbours", {i + 1},
+                                fmt::format("{} has {} neighbours, more than any normal valence of {} allows", label(m, i),
+                                            m.degree(i), element(m.atoms[static_cast<size_t>(i)].z).symbol),
+                                m.degree(i), std::nullopt, "", Severity::error, 100});
+    }
+    if (v.total_unpaired > unpaired_allowed || (!multiplicity_known && v.total_unpaired > 0)) {
+        for (int i = 0; i < m.atom_count(); ++i) {
+            const int u = v.unpaired[static_cast<size_t>(i)];
+            if (u <= 0) continue;
+            out.findings.push_back(
+                {"radical", {i + 1},
+                 fmt::format("{} is {} short of a normal valence: {} (a radical), or a missing hydrogen or neighbour{}",
+                             label(m, i), u == 1 ? "one bond" : fmt::format("{} bonds", u),
+                             u == 1 ? "an unpaired electron" : fmt::format("{} unpaired electrons", u),
+                             multiplicity_known ? "" : "; give --multiplicity if the structure is open-shell"),
+                 m.bond_order_sum(i), m.bond_order_sum(i) + u, "", Severity::error, 50});
+        }
+    }
+    (void)in;
+}
+
+}  // namespace
+
+Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
+    Audit out;
+    out.title = in.title;
+    out.line = in.line;
+    out.structure = in.structure;
+    Molecule& m = out.structure.molecule;
+    const auto& pos = out.structure.positions;
+    const int n = m.atom_count();
+    out.charge = opt.charge ? *opt.charge : in.has_charge ? in.structure.charge : 0;
+    std::optional<int> multiplicity = opt.multiplicity;
+    if (!multiplicity && in.has_multiplicity) multiplicity = in.structure.multiplicity;
+    const int unpaired_allowed = multiplicity ? *multiplicity - 1 : 0;
+
+    // 1. What the file does not state.
+    std::vector<char> excluded(static_cast<size_t>(n), 0);
+    if (!in.has_bonds) {
+        out.bonds_from_coordinates = true;
+        for (const Overlap& o : perceive_bonds(m, pos, opt.perception)) {
+            excluded[static_cast<size_t>(o.b)] = 1;
+            out.findings.push_back({"overlap", {o.a + 1, o.b + 1},
+                                    fmt::format("{} and {} are {:.2f} A apart: overlapping atoms (one is misplaced or "
+                                                "duplicated); {} is left out of the bond perception",
+                                                label(m, o.a), label(m, o.b), o.distance, label(m, o.b)),
+                                    o.distance, std::nullopt, "angstrom", Severity::error, 200});
+        }
+    }
+    ValenceResult valence;
+    if (!in.has_orders || !in.needs_orders.empty()) {
+        out.orders_assigned = true;
+        valence = in.has_orders ? assign_valences(m, pos, out.charge, unpaired_allowed, &in.needs_orders, true)
+                                : assign_valences(m, pos, out.charge, unpaired_allowed);
+    } else {
+        valence.unpaired.assign(static_cast<size_t>(n), 0);
+        std::vector<int> shortfall = valence_shortfall(m);
+        for (int i = 0; i < n; ++i) {
+            if (shortfall[static_cast<size_t>(i)] < 0) valence.overbonded.push_back(i);
+            else valence.unpaired[static_cast<size_t>(i)] = shortfall[static_cast<size_t>(i)];
+            valence.total_unpaired += std::max(0, shortfall[static_cast<size_t>(i)]);
+        }
+        valence.charge = m.total_charge();
+    }
+    for (int i : valence.overbonded) excluded[static_cast<size_t>(i)] = 1;
+    check_valences(in, out, valence, unpaired_allowed, multiplicity.has_value());
+    if (valence.charge != out.charge)
+        out.findings.push_back({"charge", {},
+                                fmt::format("the formal charges add up to {:+d}, but the total charge is {:+d}{}",
+                                            valence.charge, out.charge,
+                                            opt.charge ? "" : " (give --charge, or check for missing or extra hydrogens)"),
+                                valence.charge, out.charge, "", Severity::error, 40});
+    {
+        std::string charges;
+        for (int i = 0; i < n; ++i)
+            if (m.atoms[static_cast<size_t>(i)].charge != 0)
+                charges += fmt::format(" {}{:+d}", label(m, i), m.atoms[static_cast<size_t>(i)].charge);
+        if (!charges.empty() && out.orders_assigned) out.notes.push_back("formal charges assigned:" + charges);
+    }
+    int electrons = -out.charge;
+    for (const Atom& a : m.atoms) electrons += a.z;
+    if (multiplicity && (electrons % 2 == 0) != (*multiplicity % 2 == 1))
+        out.findings.push_back({"multiplicity", {},
+                                fmt::format("{} electrons cannot have multiplicity {} (an {} count needs an {} "
+                                            "multiplicity)",
+                                            electrons, *multiplicity, electrons % 2 ? "odd" : "even",
+                                            electrons % 2 ? "even" : "odd"),
+                                *multiplicity, std::nullopt, "", Severity::error, 40});
+    out.multiplicity = multiplicity ? *multiplicity : valence.total_unpaired + 1;
+
+    // 2. The centres against the domain analysis. Atoms with impossible valences lose their bonds in this copy
+    //    (so that the analysis can run), and neither they nor their neighbours are judged.
+    Molecule analysed = m;
+    std::vector<char> skip = excluded;
+    {
+        std::vector<Bond> kept;
+        for (const Bond& b : analysed.bonds) {
+            if (excluded[static_cast<size_t>(b.a)] || excluded[static_cast<size_t>(b.b)]) {
+                skip[static_cast<size_t>(b.a)] = skip[static_cast<size_t>(b.b)] = 1;
+                continue;
+            }
+            kept.push_back(b);
+        }
+        analysed.bonds = kept;
+        analysed.rebuild_adjacency();
+        for (Atom& a : analysed.atoms) a.hydrogens = 0;
+    }
+    try {
+        MoleculeDomains d = analyse_domains(analysed);
+        if (!multiplicity) out.multiplicity = std::max(out.multiplicity, d.multiplicity);
+        for (const std::string& w : d.warnings) out.notes.push_back(w);
+        for (int i = 0; i < n; ++i) {
+            if (skip[static_cast<size_t>(i)]) continue;
+            const CentreDomains& c = d.atoms[static_cast<size_t>(i)];
+            if (c.bonded < 2 || c.angles.empty()) continue;
+            AngleFit fit = fit_angles(analysed, pos, c);
+            if (fit.pairs > 0 && fit.rms > opt.angle_rms) {
+                const double ratio = fit.rms / opt.angle_rms;
+                out.findings.push_back(
+                    {"geometry", {i + 1},
+                     fmt::format("{} ({}, {} {}): its angles deviate from the predicted ones by {:.1f} degrees RMS; "
+                                 "worst {}-{}-{} measured {:.1f}, predicted {:.1f}",
+                                 label(m, i), c.axe, c.electron_geometry, c.shape == c.electron_geometry ? "" : "-> " + c.shape,
+                                 fit.rms, label(m, fit.worst_a), label(m, i), label(m, fit.worst_b), fit.worst_measured,
+                                 fit.worst_predicted),
+                     fit.worst_measured, fit.worst_predicted, "degrees", severity_of(ratio), ratio});
+                continue;
+            }
+            // An sp2-like centre (three bonds, no lone pair) must be flat; the RMS alone misses a mild pyramid.
+            if (c.bonded == 3 && c.steric_number == 3) {
+                const auto& nbs = analysed.neighbors(i);
+                const Eigen::Vector3d& o = pos[static_cast<size_t>(i)];
+                double sum = 0;
+                bool ring = false;
+                for (int a = 0; a < 3; ++a)
+                    for (int b = a + 1; b < 3; ++b) {
+                        sum += angle_deg(pos[static_cast<size_t>(nbs[static_cast<size_t>(a)].atom)] - o,
+                                         pos[static_cast<size_t>(nbs[static_cast<size_t>(b)].atom)] - o);
+                        ring = ring || small_ring_pair(analysed, i, nbs[static_cast<size_t>(a)].atom,
+                                                       nbs[static_cast<size_t>(b)].atom);
+                    }
+                if (!ring && sum < 360.0 - opt.planarity) {
+                    const double ratio = (360.0 - sum) / opt.planarity;
+                    out.findings.push_back(
+                        {"planarity", {i + 1},
+                         fmt::format("{} ({}, trigonal planar) is pyramidal: its three angles sum to {:.1f} degrees, "
+                                     "not 360",
+                                     label(m, i), c.axe, sum),
+                         sum, 360.0, "degrees", severity_of(ratio), ratio});
+                }
+            }
+        }
+    } catch (const UnsupportedError& e) {
+        out.notes.push_back(std::string("no shape check: ") + e.what());
+    } catch (const InputError& e) {
+        out.notes.push_back(std::string("no shape check: ") + e.what());
+    }
+
+    // 3. Bond lengths.
+    for (const Bond& b : m.bonds) {
+        if (excluded[static_cast<size_t>(b.a)] || excluded[static_cast<size_t>(b.b)]) continue;
+        const int za = m.atoms[static_cast<size_t>(b.a)].z, zb = m.atoms[static_cast<size_t>(b.b)].z;
+        const double expected = bond_length(za, zb, std::clamp(b.order, 1, 3));
+        const double measured = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm();
+        const double dev = measured - expected;
+        if (std::fabs(dev) <= opt.bond_deviation) continue;
+        const double ratio = std::fabs(dev) / opt.bond_deviation;
+        static const char* kOrder[] = {"", "single", "double", "triple"};
+        out.findings.push_back({"bond length", {b.a + 1, b.b + 1},
+                                fmt::format("{}-{} {} bond is {:.3f} A, {:.2f} A too {} (expected {:.3f} A)",
+                                            label(m, b.a), label(m, b.b), kOrder[std::clamp(b.order, 1, 3)], measured,
+                                            std::fabs(dev), dev > 0 ? "long" : "short", expected),
+                                measured, expected, "angstrom", severity_of(ratio), ratio});
+    }
+
+    // 4. Contacts between atoms neither bonded nor sharing a neighbour, through a cell grid.
+    {
+        double vmax = 0;
+        for (const Atom& a : m.atoms) vmax = std::max(vmax, element(a.z).r_vdw);
+        const double reach = opt.contact_fraction * 2 * vmax;
+        if (n > 1 && reach > 0) {
+            const double cell = std::max(reach, 0.5);
+            Eigen::Vector3d lo = pos[0];
+            for (const auto& p : pos) lo = lo.cwiseMin(p);
+            std::unordered_map<long, std::vector<int>> grid;
+            auto key = [&](const Eigen::Vector3d& p, long dx, long dy, long dz) {
+                const Eigen::Vector3d c = ((p - lo) / cell).array().floor();
+                const long x = static_cast<long>(c.x()) + dx, y = static_cast<long>(c.y()) + dy,
+                           z = static_cast<long>(c.z()) + dz;
+                return (x * 73856093L) ^ (y * 19349663L) ^ (z * 83492791L);
+            };
+            for (int i = 0; i < n; ++i) grid[key(pos[static_cast<size_t>(i)], 0, 0, 0)].push_back(i);
+            std::set<std::pair<int, int>> seen;  // a hash collision may visit a cell twice
+            for (int i = 0; i < n; ++i)
+                for (long dx = -1; dx <= 1; ++dx)
+                    for (long dy = -1; dy <= 1; ++dy)
+                        for (long dz = -1; dz <= 1; ++dz) {
+                            auto it = grid.find(key(pos[static_cast<size_t>(i)], dx, dy, dz));
+                            if (it == grid.end()) continue;
+                            for (int j : it->second) {
+                                if (j <= i || excluded[static_cast<size_t>(j)] || excluded[static_cast<size_t>(i)]) continue;
+                                const double rv = element(m.atoms[static_cast<size_t>(i)].z).r_vdw +
+                                                  element(m.atoms[static_cast<size_t>(j)].z).r_vdw;
+                                const double d = (pos[static_cast<size_t>(i)] - pos[static_cast<size_t>(j)]).norm();
+                                if (rv <= 0 || d >= opt.contact_fraction * rv) continue;
+                                if (small_ring_pair(m, i, i, j) || m.bond_between(i, j) >= 0) continue;
+                                bool one_three = false;
+                                for (const Neighbor& nb : m.neighbors(i))
+                                    if (m.bond_between(nb.atom, j) >= 0) one_three = true;
+                                if (one_three) continue;
+                                if (!seen.emplace(i, j).second) continue;
+                                const double ratio = (opt.contact_fraction * rv - d) / (0.1 * rv) + 1;
+                                out.findings.push_back(
+                                    {"contact", {i + 1, j + 1},
+                                     fmt::format("{} and {} are {:.2f} A apart, closer than {:.0f}% of their van der "
+                                                 "Waals contact ({:.2f} A)",
+                                                 label(m, i), label(m, j), d, 100 * opt.contact_fraction, rv),
+                                     d, opt.contact_fraction * rv, "angstrom", severity_of(ratio), ratio});
+                            }
+                        }
+        }
+    }
+
+    std::stable_sort(out.findings.begin(), out.findings.end(), [](const Finding& a, const Finding& b) {
+        if (a.severity != b.severity) return a.severity == Severity::error;
+        return a.badness > b.badness;
+    });
+    out.structure.charge = out.charge;
+    out.structure.multiplicity = out.multiplicity;
+    return out;
+}
+
+}  // namespace repel

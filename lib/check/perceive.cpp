@@ -1,0 +1,424 @@
+// Bonds from coordinates, then bond orders and formal charges that give every atom a normal valence.
+#include "check/perceive.hpp"
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <numeric>
+#include <optional>
+#include <tuple>
+#include <unordered_map>
+
+#include "core/bond_length.hpp"
+#include "core/element.hpp"
+
+namespace repel {
+namespace {
+
+struct State {
+    int valence = 0;
+    int charge = 0;
+};
+
+// Normal valences and the charges that go with them (common practice: the octet rule, with the usual expanded
+// valences of the period-3-and-later p-block elements and the common ions). The first state that holds an atom's
+// bonds is taken first; neutral states come before charged ones.
+std::vector<State> valence_states(int z) {
+    const ElementData& e = element(z);
+    if (z == 1) return {{1, 0}, {0, 1}, {0, -1}};
+    if (is_transition_metal(z)) return {};
+    const int g = e.group;
+    const bool heavy = e.period >= 3;
+    switch (g) {
+        case 1: return {{1, 0}, {0, 1}};
+        case 2: return {{2, 0}, {0, 2}};
+        case 13: return {{3, 0}, {4, -1}};
+        case 14:
+            if (z == 6) return {{4, 0}, {3, 1}, {3, -1}};
+            return {{4, 0}, {2, 0}, {3, -1}, {6, -2}, {5, -1}};
+        case 15:
+            if (!heavy) return {{3, 0}, {4, 1}, {2, -1}};
+            return {{3, 0}, {5, 0}, {4, 1}, {2, -1}, {6, -1}};
+        case 16:
+            if (!heavy) return {{2, 0}, {1, -1}, {3, 1}};
+            return {{2, 0}, {4, 0}, {6, 0}, {1, -1}, {3, 1}, {5, -1}};
+        case 17:
+            if (!heavy) return {{1, 0}, {0, -1}};
+            return {{1, 0}, {3, 0}, {5, 0}, {7, 0}, {0, -1}, {2, -1}, {4, -1}, {2, 1}};
+        case 18:
+            if (z <= 10) return {{0, 0}};
+            return {{0, 0}, {2, 0}, {4, 0}, {6, 0}, {8, 0}};
+        default: return {};
+    }
+}
+
+// The first state (in the table's order) of the given charge whose valence holds `bonds`; valence -1 when none.
+State first_state(int z, int bonds, std::optional<int> charge) {
+    for (const State& s : valence_states(z))
+        if (s.valence >= bonds && (!charge || s.charge == *charge)) return s;
+    return {-1, charge.value_or(0)};
+}
+
+State initial_state(int z, int bonds) {
+    // Neutral first; then any charged state that holds the bonds.
+    State s = first_state(z, bonds, 0);
+    if (s.valence >= 0) return s;
+    return first_state(z, bonds, std::nullopt);
+}
+
+// The degree-constrained matching of step 2.
+class OrderMatcher {
+public:
+    OrderMatcher(const Molecule& m, const std::vector<Eigen::Vector3d>& pos, const std::vector<char>& free)
+        : m_(m), free_(free) {
+        const int n = m.atom_count();
+        adj_.assign(static_cast<size_t>(n), {});
+        pref_.assign(m.bonds.size(), 1.0);
+        for (int e = 0; e < m.bond_count(); ++e) {
+            if (!free_[static_cast<size_t>(e)]) continue;
+            const Bond& b = m.bonds[static_cast<size_t>(e)];
+            const double single = bond_length(m.atoms[static_cast<size_t>(b.a)].z, m.atoms[static_cast<size_t>(b.b)].z, 1);
+            pref_[static_cast<size_t>(e)] = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm() / single;
+        }
+        for (int i = 0; i < n; ++i) {
+            for (const Neighbor& nb : m.neighbors(i))
+                if (free_[static_cast<size_t>(nb.bond)]) adj_[static_cast<size_t>(i)].push_back(nb);
+            std::sort(adj_[static_cast<size_t>(i)].begin(), adj_[static_cast<size_t>(i)].end(),
+                      [&](const Neighbor& x, const Neighbor& y) {
+                          const double px = pref_[static_cast<size_t>(x.bond)], py = pref_[static_cast<size_t>(y.bond)];
+                          return px != py ? px < py : x.bond < y.bond;
+                      });
+        }
+    }
+
+    // Extra order per bond (0..2) for deficits `need`; fills `left` with what each atom still lacks.
+    std::vector<int> solve(const std::vector<int>& need, std::vector<int>& left) {
+        const int n = m_.atom_count();
+        rem_ = need;
+        x_.assign(m_.bonds.size(), 0);
+        // Components of the subgraph of unsaturated atoms, each solved on its own (keeps the search small).
+        std::vector<int> comp(static_cast<size_t>(n), -1);
+        for (int s = 0; s < n; ++s) {
+            if (comp[static_cast<size_t>(s)] >= 0 || rem_[static_cast<size_t>(s)] <= 0) continue;
+            std::vector<int> atoms{s};
+            comp[static_cast<size_t>(s)] = s;
+            for (size_t k = 0; k < atoms.size(); ++k)
+                for (const Neighbor& nb : adj_[static_cast<size_t>(atoms[k])])
+                    if (comp[static_cast<size_t>(nb.atom)] < 0 && rem_[static_cast<size_t>(nb.atom)] > 0 &&
+                        capacity(nb.bond) > 0) {
+                        comp[static_cast<size_t>(nb.atom)] = s;
+                        atoms.push_back(nb.atom);
+                    }
+            std::sort(atoms.begin(), atoms.end());
+            const std::vector<int> saved_rem = rem_;
+            const std::vector<int> saved_x = x_;
+            nodes_ = 0;
+            long sum = 0;
+            for (int a : atoms) sum += rem_[static_cast<size_t>(a)];
+            // Each extra order serves two atoms: an odd total cannot be matched perfectly.
+            if (sum % 2 != 0 || !perfect(atoms)) {
+                rem_ = saved_rem;
+                x_ = saved_x;
+                greedy(atoms);
+            }
+        }
+        left = rem_;
+        return x_;
+    }
+
+private:
+    int capacity(int bond) const {
+        const Bond& b = m_.bonds[static_cast<size_t>(bond)];
+        return std::max(0, 3 - b.order - x_[static_cast<size_t>(bond)]);
+    }
+    // Bonds of `atom` that can still take order, with the other atom still below valence.
+    int usable(int atom, int* total) const {
+        int count = 0, sum = 0;
+        for (const Neighbor& nb : adj_[static_cast<size_t>(atom)]) {
+            const int c = std::min(capacity(nb.bond), rem_[static_cast<size_t>(nb.atom)]);
+            if (c > 0) {
+                ++count;
+                sum += c;
+            }
+        }
+        if (total) *total = sum;
+        return count;
+    }
+
+    // Depth-first search for a perfect assignment, most constrained atom first (forced choices cost nothing).
+    bool perfect(const std::vector<int>& atoms) {
+        if (++nodes_ > kNodeLimit) return false;
+        int best = -1, best_count = 1 << 30;
+        for (int a : atoms) {
+            if (rem_[static_cast<size_t>(a)] <= 0) continue;
+            int total = 0;
+            const int c = usable(a, &total);
+            if (total < rem_[static_cast<size_t>(a)]) return false;
+            if (c < best_count) {
+                best_count = c;
+                best = a;
+                if (c == 1) break;
+            }
+        }
+        if (best < 0) return true;
+        for (const Neighbor& nb : adj_[static_cast<size_t>(best)]) {
+            if (std::min(capacity(nb.bond), rem_[static_cast<size_t>(nb.atom)]) <= 0) continue;
+            step(best, nb, +1);
+            if (perfect(atoms)) return true;
+            step(best, nb, -1);
+            if (nodes_ > kNodeLimit) return false;
+        }
+        return false;
+    }
+
+    void greedy(const std::vector<int>& atoms) {
+        while (true) {
+            int best = -1, best_count = 1 << 30;
+            for (int a : atoms) {
+                if (rem_[static_cast<size_t>(a)] <= 0) continue;
+                const int c = usable(a, nullptr);
+                if (c > 0 && c < best_count) {
+                    best_count = c;
+                    best = a;
+                }
+            }
+            if (best < 0) return;
+            for (const Neighbor& nb : adj_[static_cast<size_t>(best)])
+                if (std::min(capacity(nb.bond), rem_[static_cast<size_t>(nb.atom)]) > 0) {
+                    step(best, nb, +1);
+                    break;
+                }
+        }
+    }
+
+    void step(int atom, const Neighbor& nb, int d) {
+        x_[static_cast<size_t>(nb.bond)] += d;
+        rem_[static_cast<size_t>(atom)] -= d;
+        rem_[static_cast<size_t>(nb.atom)] -= d;
+    }
+
+    static constexpr long kNodeLimit = 50000;  // search steps per component before the greedy fallback
+    const Molecule& m_;
+    const std::vector<char>& free_;
+    std::vector<std::vector<Neighbor>> adj_;
+    std::vector<double> pref_;
+    std::vector<int> rem_, x_;
+    long nodes_ = 0;
+};
+
+}  // namespace
+
+std::vector<Overlap> perceive_bonds(Molecule& m, const std::vector<Eigen::Vector3d>& pos,
+                                    const PerceptionOptions& options) {
+    const int n = m.atom_count();
+    std::vector<Overlap> overlaps;
+    if (n == 0) return overlaps;
+    double rmax = 0;
+    for (const Atom& a : m.atoms) rmax = std::max(rmax, element(a.z).r_perception);
+    const double cell = std::max(0.5, 2 * rmax + options.tolerance);
+    Eigen::Vector3d lo = pos[0];
+    for (const auto& p : pos) lo = lo.cwiseMin(p);
+    auto key = [&](const Eigen::Vector3d& p) {
+        const Eigen::Vector3d c = ((p - lo) / cell).array().floor();
+        return std::array<long, 3>{static_cast<long>(c.x()), static_cast<long>(c.y()), static_cast<long>(c.z())};
+    };
+    auto hash = [](long x, long y, long z) { return (x * 73856093L) ^ (y * 19349663L) ^ (z * 83492791L); };
+    std::unordered_map<long, std::vector<int>> grid;
+    for (int i = 0; i < n; ++i) {
+        auto k = key(pos[static_cast<size_t>(i)]);
+        grid[hash(k[0], k[1], k[2])].push_back(i);
+    }
+    std::vector<std::pair<int, int>> pairs;  // candidate bonds, i < j
+    std::vector<char> excluded(static_cast<size_t>(n), 0);
+    for (int i = 0; i < n; ++i) {
+        auto k = key(pos[static_cast<size_t>(i)]);
+        const double ri = element(m.atoms[static_cast<size_t>(i)].z).r_perception;
+        for (long dx = -1; dx <= 1; ++dx)
+            for (long dy = -1; dy <= 1; ++dy)
+                for (long dz = -1; dz <= 1; ++dz) {
+                    auto it = grid.find(hash(k[0] + dx, k[1] + dy, k[2] + dz));
+                    if (it == grid.end()) continue;
+                    for (int j : it->second) {
+                        if (j <= i) continue;
+                        const double d = (pos[static_cast<size_t>(i)] - pos[static_cast<size_t>(j)]).norm();
+                        const double r = ri + element(m.atoms[static_cast<size_t>(j)].z).r_perception;
+                        if (d > r + options.tolerance) continue;
+                        if (d < options.overlap * r) {
+                            overlaps.push_back({i, j, d});
+                            continue;
+                        }
+                        pairs.emplace_back(i, j);
+                    }
+                }
+    }
+    // Hash collisions may list a pair twice; sort and unique.
+    std::sort(pairs.begin(), pairs.end());
+    pairs.erase(std::unique(pairs.begin(), pairs.end()), pairs.end());
+    std::sort(overlaps.begin(), overlaps.end(), [](const Overlap& x, const Overlap& y) {
+        return std::tie(x.a, x.b) < std::tie(y.a, y.b);
+    });
+    overlaps.erase(std::unique(overlaps.begin(), overlaps.end(),
+                               [](const Overlap& x, const Overlap& y) { return x.a == y.a && x.b == y.b; }),
+                   overlaps.end());
+    for (const Overlap& o : overlaps) excluded[static_cast<size_t>(o.b)] = 1;
+    for (auto [i, j] : pairs) {
+        if (excluded[static_cast<size_t>(i)] || excluded[static_cast<size_t>(j)]) continue;
+        if (m.bond_between(i, j) < 0) m.add_bond(i, j, 1);
+    }
+    return overlaps;
+}
+
+ValenceResult assign_valences(Molecule& m, const std::vector<Eigen::Vector3d>& pos, int total_charge,
+                              int unpaired_allowed, const std::vector<int>* free_bonds, bool fixed_charges) {
+    const int n = m.atom_count();
+    std::vector<char> is_free(m.bonds.size(), free_bonds ? 0 : 1);
+    if (free_bonds)
+        for (int b : *free_bonds) is_free[static_cast<size_t>(b)] = 1;
+    for (size_t b = 0; b < m.bonds.size(); ++b)
+        if (is_free[b]) m.bonds[b].order = 1;
+    ValenceResult out;
+    out.unpaired.assign(static_cast<size_t>(n), 0);
+
+    std::vector<State> state(static_cast<size_t>(n));
+    std::vector<int> fixed_sum(static_cast<size_t>(n), 0);  // order sum with every free bond single
+    for (int i = 0; i < n; ++i) fixed_sum[static_cast<size_t>(i)] = m.bond_order_sum(i);
+    for (int i = 0; i < n; ++i) {
+        const Atom& a = m.atoms[static_cast<size_t>(i)];
+        const int bonds = fixed_sum[static_cast<size_t>(i)];
+        State s = fixed_charges ? first_state(a.z, bonds + std::max(0, a.radical_electrons), a.charge)
+                                : initial_state(a.z, bonds);
+        if (fixed_charges && s.valence >= 0) s.valence -= std::max(0, a.radical_electrons);
+        if (s.valence < 0) {
+            // No normal valence holds these bonds (a metal, or an atom with too many neighbours): take it as it is.
+            if (!is_transition_metal(a.z) && (fixed_charges ? first_state(a.z, 0, a.charge).valence >= 0
+                                                            : !valence_states(a.z).empty()))
+                out.overbonded.push_back(i);
+            s = {bonds, fixed_charges ? a.charge : 0};
+        }
+        state[static_cast<size_t>(i)] = s;
+    }
+
+    OrderMatcher matcher(m, pos, is_free);
+    std::vector<int> x, left;
+    auto solve = [&]() {
+        std::vector<int> need(static_cast<size_t>(n));
+        for (int i = 0; i < n; ++i)
+            need[static_cast<size_t>(i)] = std::max(0, state[static_cast<size_t>(i)].valence - fixed_sum[static_cast<size_t>(i)]);
+        x = matcher.solve(need, left);
+        return std::accumulate(left.begin(), left.end(), 0);
+    };
+    auto charge = [&]() {
+        int q = 0;
+        for (const State& s : state) q += s.charge;
+        return q;
+    };
+    auto electronegativity = [&](int i) { return element(m.atoms[static_cast<size_t>(i)].z).electronegativity; };
+
+    int residual = solve();
+    const int target = fixed_charges ? charge() : total_charge;
+    // Each trial re-runs the matching; the budget keeps a large structure with many unsatisfied atoms (a protein
+    // without hydrogens) from taking long. Real molecules need a handful.
+    constexpr int kMaxTries = 400;
+    int tries = 0;
+    for (int round = 0; round < 4 * n + 8 && tries <= kMaxTries; ++round) {
+        const int q = charge();
+        if (residual <= unpaired_allowed && q == target) break;
+        std::vector<int> unsat;
+        for (int i = 0; i < n; ++i)
+            if (left[static_cast<size_t>(i)] > 0) unsat.push_back(i);
+        if (unsat.empty() && q == target) break;
+        // Saturated neighbours of unsatisfied atoms, least electronegative first (they carry a positive charge best).
+        std::vector<int> hosts;
+        for (int u : unsat)
+            for (const Neighbor& nb : m.neighbors(u))
+                if (left[static_cast<size_t>(nb.atom)] == 0 && is_free[static_cast<size_t>(nb.bond)])
+                    hosts.push_back(nb.atom);
+        std::sort(hosts.begin(), hosts.end());
+        hosts.erase(std::unique(hosts.begin(), hosts.end()), hosts.end());
+        std::stable_sort(hosts.begin(), hosts.end(), [&](int a, int b) { return electronegativity(a) < electronegativity(b); });
+
+        auto try_state = [&](int atom, State s) {
+            if (++tries > kMaxTries) return false;
+            const State old = state[static_cast<size_t>(atom)];
+            state[static_cast<size_t>(atom)] = s;
+            const int r = solve();
+            if (r < residual) {
+                residual = r;
+                return true;
+            }
+            state[static_cast<size_t>(atom)] = old;
+            residual = solve();
+            return false;
+        };
+        bool changed = false;
+        // Rule 0: a neighbour takes its next neutral valence (S 4 -> 6, P 3 -> 5).
+        if (residual > unpaired_allowed)
+            for (int h : hosts) {
+                const State cur = state[static_cast<size_t>(h)];
+                for (const State& s : valence_states(m.atoms[static_cast<size_t>(h)].z))
+                    if (s.charge == cur.charge && s.valence == cur.valence + 2) {
+                        changed = try_state(h, s);
+                        break;
+                    }
+                if (changed) break;
+            }
+        // Rule 1: a neighbour takes +1 and one more bond (N+ of a nitro group, O+ of CO), when the charge is to go up
+        // or another atom is left to take the compensating -1.
+        if (!changed && !fixed_charges && residual > unpaired_allowed && (q < target || residual >= 2 + unpaired_allowed))
+            for (int h : hosts) {
+                const State cur = state[static_cast<size_t>(h)];
+                for (const State& s : valence_states(m.atoms[static_cast<size_t>(h)].z))
+                    if (s.charge == cur.charge + 1 && s.valence == cur.valence + 1) {
+                        changed = try_state(h, s);
+                        break;
+                    }
+                if (changed) break;
+            }
+        // Rule 2: an unsatisfied atom takes a charge and one bond less: an anion on the most electronegative atom
+        // when the charge is to go down, a cation on the least electronegative when it is to go up.
+        if (!changed && !fixed_charges && q != target && !unsat.empty()) {
+            const int dq = q > target ? -1 : 1;
+            std::vector<int> order = unsat;
+            std::stable_sort(order.begin(), order.end(), [&](int a, int b) {
+                return dq < 0 ? electronegativity(a) > electronegativity(b) : electronegativity(a) < electronegativity(b);
+            });
+            for (int u : order) {
+                const State cur = state[static_cast<size_t>(u)];
+                for (const State& s : valence_states(m.atoms[static_cast<size_t>(u)].z))
+                    if (s.charge == cur.charge + dq && s.valence == cur.valence - 1 && s.valence >= fixed_sum[static_cast<size_t>(u)]) {
+                        changed = try_state(u, s);
+                        break;
+                    }
+                if (changed) break;
+            }
+        }
+        if (!changed) break;
+    }
+
+    for (int b = 0; b < m.bond_count(); ++b)
+        if (is_free[static_cast<size_t>(b)]) m.bonds[static_cast<size_t>(b)].order = 1 + x[static_cast<size_t>(b)];
+    for (int i = 0; i < n; ++i) {
+        Atom& a = m.atoms[static_cast<size_t>(i)];
+        if (!fixed_charges) a.charge = state[static_cast<size_t>(i)].charge;
+        out.unpaired[static_cast<size_t>(i)] = left[static_cast<size_t>(i)];
+        out.total_unpaired += left[static_cast<size_t>(i)];
+        if (left[static_cast<size_t>(i)] > 0) a.radical_electrons = left[static_cast<size_t>(i)];
+    }
+    out.charge = charge();
+    return out;
+}
+
+std::vector<int> valence_shortfall(const Molecule& m) {
+    std::vector<int> out(static_cast<size_t>(m.atom_count()), 0);
+    for (int i = 0; i < m.atom_count(); ++i) {
+        const Atom& a = m.atoms[static_cast<size_t>(i)];
+        if (valence_states(a.z).empty()) continue;
+        if (first_state(a.z, 0, a.charge).valence < 0) continue;  // a charge the table does not know: no opinion
+        const int bonds = m.bond_order_sum(i) + std::max(0, a.radical_electrons);
+        const State s = first_state(a.z, bonds, a.charge);
+        out[static_cast<size_t>(i)] = s.valence < 0 ? -1 : s.valence - bonds;
+    }
+    return out;
+}
+
+}  // namespace repel

@@ -1,0 +1,64 @@
+// Connectivity, bond orders and formal charges of a structure whose file gives coordinates only (XYZ), or
+// connectivity without orders (PDB CONECT, aromatic SDF bonds).
+#pragma once
+
+#include <Eigen/Core>
+#include <vector>
+
+#include "graph/molecule.hpp"
+
+namespace repel {
+
+// Bond perception: atoms a and b are bonded when overlap * (r_a + r_b) < d <= r_a + r_b + tolerance, r the
+// covalent radii for perception (Cordero et al. 2008, element(z).r_perception). The tolerance of 0.45 A is common
+// practice for perception from Cordero radii (from memory). Closer pairs are overlapping atoms: a structure error,
+// not a bond.
+struct PerceptionOptions {
+    double tolerance = 0.45;  // Angstrom added to the sum of the radii (common practice, from memory)
+    double overlap = 0.5;     // fraction of the radii sum below which two atoms overlap instead of bonding
+};
+
+struct Overlap {
+    int a = -1, b = -1;  // 0-based, a < b
+    double distance = 0;
+};
+
+// Adds a single bond for every bonded pair not yet bonded, found through a cell grid (linear in the atom count).
+// Returns the overlapping pairs. Of two overlapping atoms the later one (in file order) is left out of perception
+// altogether (it is where it should not be), so that its presence does not invent bonds for its neighbours.
+std::vector<Overlap> perceive_bonds(Molecule& molecule, const std::vector<Eigen::Vector3d>& positions,
+                                    const PerceptionOptions& options = {});
+
+// What the valence assignment could not do.
+struct ValenceResult {
+    std::vector<int> unpaired;     // per atom: electrons left unpaired (a valence not satisfied: a radical, or a
+                                   // missing neighbour such as a hydrogen)
+    std::vector<int> overbonded;   // atoms with more bonds than any normal valence of the element allows
+    int charge = 0;                // the total formal charge of the assignment
+    int total_unpaired = 0;
+};
+
+// Bond orders and formal charges such that every atom has a normal valence (H 1; C 4; N 3, or 4 with +1, or 2 with
+// -1; O 2, or 1 with -1, or 3 with +1; S 2/4/6; P 3/5; halogens 1 (3/5/7 from Cl on); B 3, or 4 with -1; Si 4; ...
+// common practice) and the charges add up to total_charge, with as few charges as the rules below reach.
+//  1. Each atom takes the lowest neutral valence its bonds allow (a charged one only when its bond count forces it:
+//     four-bonded N is N+, three-bonded O is O+, four-bonded B is B-).
+//  2. The bonds that may change (free_bonds; all bonds when null) get extra orders by a degree-constrained matching
+//     over the atoms still below their valence, preferring the bonds that are short for a single bond (measured
+//     length over the single-bond length), like kekulization; a perfect matching is searched for first.
+//  3. Where atoms are left below valence: a neighbour takes its next neutral valence (S 4 -> 6, sulfones), or a
+//     neighbour takes +1 (N+ of nitro groups, the O+ of CO), or an unsatisfied atom takes a charge (O- first when the
+//     charge is to go down, C+ when it is to go up) -- each kept only when it helps.
+// unpaired_allowed (multiplicity - 1 when it is known, else 0) electrons may stay unpaired. With fixed_charges the
+// atoms' formal charges (from the file) are kept and step 3 only raises neutral valences.
+// Deterministic. Sets Bond::order and Atom::charge (and Atom::radical_electrons of the atoms left unpaired).
+ValenceResult assign_valences(Molecule& molecule, const std::vector<Eigen::Vector3d>& positions, int total_charge,
+                              int unpaired_allowed, const std::vector<int>* free_bonds = nullptr,
+                              bool fixed_charges = false);
+
+// For a molecule with orders and charges given (SDF): per atom, the electrons by which it falls short of its
+// nearest normal valence for its charge (0 when satisfied or when the charge has no tabulated state), and -1 for an
+// atom with more bonds than any valence allows.
+std::vector<int> valence_shortfall(const Molecule& molecule);
+
+}  // namespace repel

@@ -1,0 +1,189 @@
+#include "domains/domains.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+
+#include "core/element.hpp"
+#include "core/error.hpp"
+#include "domains/model.hpp"
+#include "sphere/sphere.hpp"
+
+namespace repel {
+namespace {
+
+std::string atom_label(const Molecule& m, int i) {
+    const Atom& a = m.atoms[static_cast<size_t>(i)];
+    std::string label = fmt::format("atom {} ({}", i + 1, element(a.z).symbol);
+    if (a.charge > 0) label += fmt::format("{}+", a.charge == 1 ? std::string() : std::to_string(a.charge));
+    if (a.charge < 0) label += fmt::format("{}-", a.charge == -1 ? std::string() : std::to_string(-a.charge));
+    return label + ")";
+}
+
+double angle_between(const Eigen::Vector3d& a, const Eigen::Vector3d& b) {
+    return std::acos(std::clamp(a.dot(b), -1.0, 1.0)) * 180.0 / M_PI;
+}
+
+}  // namespace
+
+std::string electron_geometry_name(int steric_number) {
+    switch (steric_number) {
+        case 0:
+        case 1: return "none";
+        case 2: return "linear";
+        case 3: return "trigonal planar";
+        case 4: return "tetrahedral";
+        case 5: return "trigonal bipyramidal";
+        case 6: return "octahedral";
+        case 7: return "pentagonal bipyramidal";
+        case 8: return "square antiprismatic";
+        case 9: return "tricapped trigonal prismatic";
+        default: return fmt::format("{} domains", steric_number);
+    }
+}
+
+// Shape names of the trade (Gillespie and Hargittai 1991), by bonded and non-bonded domain counts.
+std::string shape_name(int bonded, int nonbonded) {
+    if (bonded == 0) return "single atom";
+    if (bonded == 1) return "terminal";
+    const int sn = bonded + nonbonded;
+    if (bonded == 2) return (sn == 3 || sn == 4) ? "bent" : "linear";
+    switch (sn) {
+        case 3: return "trigonal planar";
+        case 4: return bonded == 4 ? "tetrahedral" : "trigonal pyramidal";
+        case 5:
+            if (bonded == 5) return "trigonal bipyramidal";
+            if (bonded == 4) return "seesaw";
+            return "T-shaped";
+        case 6:
+            if (bonded == 6) return "octahedral";
+            if (bonded == 5) return "square pyramidal";
+            if (bonded == 4) return "square planar";
+            return "T-shaped";
+        case 7:
+            if (bonded == 7) return "pentagonal bipyramidal";
+            if (bonded == 6) return "pentagonal pyramidal";
+            if (bonded == 5) return "pentagonal planar";
+            return fmt::format("{} bonds, {} non-bonded domains", bonded, nonbonded);
+        case 8:
+            if (bonded == 8) return "square antiprismatic";
+            return fmt::format("{} bonds, {} non-bonded domains", bonded, nonbonded);
+        default: return fmt::format("{} bonds, {} non-bonded domains", bonded, nonbonded);
+    }
+}
+
+std::string axe_class(int bonded, int lone_pairs, int single_electrons) {
+    std::string s = "A";
+    if (bonded > 0) s += bonded == 1 ? "X" : fmt::format("X{}", bonded);
+    if (lone_pairs > 0) s += lone_pairs == 1 ? "E" : fmt::format("E{}", lone_pairs);
+    if (single_electrons > 0) s += "+e";
+    return s;
+}
+
+MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
+    const DomainModel& model = domain_model();
+    MoleculeDomains out;
+    out.atoms.resize(m.atoms.size());
+    for (int i = 0; i < m.atom_count(); ++i) {
+        const Atom& atom = m.atoms[static_cast<size_t>(i)];
+        if (is_transition_metal(atom.z))
+            throw UnsupportedError(fmt::format(
+                "{} is a d- or f-block metal centre; repel does not build metal centres yet (no electron-domain "
+                "shape is claimed for them)",
+                atom_label(m, i)));
+        const ElementData& el = element(atom.z);
+        CentreDomains& c = out.atoms[static_cast<size_t>(i)];
+        c.atom = i;
+        const int order_sum = m.bond_order_sum(i) + std::max(0, atom.hydrogens);
+        // Non-bonding electrons of the Lewis structure: valence electrons less the formal charge and the bonds.
+        const int nonbonding = el.valence_electrons - atom.charge - order_sum;
+        if (nonbonding < 0)
+            throw InputError(fmt::format("{} has bonds of total order {}, more than its {} valence electrons allow{}",
+                                         atom_label(m, i), order_sum, el.valence_electrons,
+                                         atom.charge != 0 ? fmt::format(" with charge {:+d}", atom.charge) : ""),
+                             {}, atom.column);
+        // First-row atoms keep a duet, second-row atoms an octet (octet expansion only from period 3 on).
+        const int electrons = 2 * order_sum + nonbonding;
+        const int limit = el.period == 1 ? 2 : el.period == 2 ? 8 : 1000;
+        if (electrons > limit)
+            throw InputError(
+                fmt::format("{} would hold {} electrons; a period-{} atom holds at most {}{}", atom_label(m, i),
+                            electrons, el.period, limit,
+                            el.period == 2 ? " (write the formal charges, e.g. [N+](=O)[O-] for a nitro group)" : ""),
+                {}, atom.column);
+        c.lone_pairs = nonbonding / 2;
+        c.single_electrons = nonbonding % 2;
+        c.bonded = m.degree(i) + std::max(0, atom.hydrogens);
+        c.steric_number = c.bonded + c.lone_pairs + c.single_electrons;
+        c.axe = axe_class(c.bonded, c.lone_pairs, c.single_electrons);
+        c.electron_geometry = electron_geometry_name(c.steric_number);
+        c.shape = shape_name(c.bonded, c.lone_pairs + c.single_electrons);
+        out.unpaired_electrons += c.single_electrons;
+
+        for (const Neighbor& nb : m.neighbors(i)) {
+            const Bond& b = m.bonds[static_cast<size_t>(nb.bond)];
+            SphereDomain sd = bonding_domain(model, atom.z, m.atoms[static_cast<size_t>(nb.atom)].z, b.order);
+            c.domains.push_back({DomainKind::bond, nb.atom, nb.bond, b.order, sd.weight, sd.radius});
+        }
+        for (int k = 0; k < std::max(0, atom.hydrogens); ++k) {
+            SphereDomain sd = bonding_domain(model, atom.z, 1, 1);
+            c.domains.push_back({DomainKind::bond, -1, -1, 1, sd.weight, sd.radius});
+        }
+        for (int k = 0; k < c.lone_pairs; ++k) {
+            SphereDomain sd = lone_pair_domain(model, atom.z);
+            c.domains.push_back({DomainKind::lone_pair, -1, -1, 0, sd.weight, sd.radius});
+        }
+        if (c.single_electrons) {
+            SphereDomain sd = single_electron_domain(model, atom.z);
+            c.domains.push_back({DomainKind::single_electron, -1, -1, 0, sd.weight, sd.radius});
+        }
+        if (c.steric_number > 12)
+            throw UnsupportedError(fmt::format("{} has {} electron domains; at most 12 are supported",
+                                               atom_label(m, i), c.steric_number));
+        if (solve && c.bonded >= 2) {
+            std::vector<SphereDomain> sd;
+            sd.reserve(c.domains.size());
+            for (const Domain& d : c.domains) sd.push_back({d.weight, d.radius, d.kind == DomainKind::bond ? model.bond_exponent : model.lone_pair_exponent});
+            c.directions = solve_sphere(sd);
+            const int nbonds = static_cast<int>(m.neighbors(i).size());
+            for (int a = 0; a < nbonds; ++a)
+                for (int b = a + 1; b < nbonds; ++b)
+                    c.angles.push_back({c.domains[static_cast<size_t>(a)].neighbor, c.domains[static_cast<size_t>(b)].neighbor,
+                                        angle_between(c.directions[static_cast<size_t>(a)], c.directions[static_cast<size_t>(b)])});
+        }
+    }
+    out.charge = m.total_charge();
+    out.multiplicity = out.unpaired_electrons + 1;
+
+    // Ground states the Lewis structure gets wrong (common practice): dioxygen is a triplet; a neutral divalent
+    // carbon (a carbene) may be one.
+    int ncomp = 0;
+    std::vector<int> comp = m.components(&ncomp);
+    std::vector<int> comp_size(static_cast<size_t>(ncomp), 0);
+    for (int c : comp) ++comp_size[static_cast<size_t>(c)];
+    for (const Bond& b : m.bonds) {
+        const Atom& x = m.atoms[static_cast<size_t>(b.a)];
+        const Atom& y = m.atoms[static_cast<size_t>(b.b)];
+        if (b.order == 2 && x.z == 8 && y.z == 8 && x.charge == 0 && y.charge == 0 &&
+            comp_size[static_cast<size_t>(comp[static_cast<size_t>(b.a)])] == 2) {
+            out.multiplicity += 2;
+            out.warnings.push_back(fmt::format(
+                "atoms {} and {}: dioxygen has a triplet ground state; multiplicity raised by 2 (common practice)",
+                b.a + 1, b.b + 1));
+        }
+    }
+    for (int i = 0; i < m.atom_count(); ++i) {
+        const CentreDomains& c = out.atoms[static_cast<size_t>(i)];
+        if (m.atoms[static_cast<size_t>(i)].z == 6 && m.atoms[static_cast<size_t>(i)].charge == 0 && c.bonded == 2 &&
+            c.lone_pairs == 1 && m.bond_order_sum(i) == 2)
+            out.warnings.push_back(fmt::format(
+                "atom {}: a carbene, written as a singlet; its ground state may be a triplet (CH2's is)", i + 1));
+    }
+    if (out.unpaired_electrons > 1)
+        out.warnings.push_back(fmt::format("{} unpaired electrons on different atoms: written high-spin, multiplicity {}",
+                                           out.unpaired_electrons, out.multiplicity));
+    return out;
+}
+
+}  // namespace repel

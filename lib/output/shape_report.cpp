@@ -1,0 +1,77 @@
+#include "output/shape_report.hpp"
+
+#include <fmt/format.h>
+
+#include <cmath>
+
+#include "core/element.hpp"
+
+namespace repel {
+namespace {
+
+bool is_centre(const CentreDomains& c) { return c.bonded >= 2 || c.bonded == 0; }
+
+std::string atom_name(const Molecule& m, int i) {
+    if (i < 0) return "H";
+    return fmt::format("{}{}", element(m.atoms[static_cast<size_t>(i)].z).symbol, i + 1);
+}
+
+}  // namespace
+
+std::string shape_table(const Molecule& m, const MoleculeDomains& d, const std::string& title) {
+    std::string out = fmt::format("{}  charge {}  multiplicity {}\n", title, d.charge, d.multiplicity);
+    out += fmt::format("{:<6} {:<4} {:>2} {:>2} {:>2} {:>2}  {:<8} {:<29} {}\n", "atom", "el", "SN", "X", "E", "e",
+                       "AXE", "electron geometry", "shape");
+    for (const CentreDomains& c : d.atoms) {
+        if (!is_centre(c)) continue;
+        out += fmt::format("{:<6} {:<4} {:>2} {:>2} {:>2} {:>2}  {:<8} {:<29} {}\n", c.atom + 1,
+                           element(m.atoms[static_cast<size_t>(c.atom)].z).symbol, c.steric_number, c.bonded,
+                           c.lone_pairs, c.single_electrons, c.axe, c.electron_geometry, c.shape);
+    }
+    bool header = false;
+    for (const CentreDomains& c : d.atoms) {
+        if (c.angles.empty()) continue;
+        if (!header) {
+            out += "predicted angles (degrees)\n";
+            header = true;
+        }
+        std::string line = fmt::format("  {}:", atom_name(m, c.atom));
+        for (const PredictedAngle& a : c.angles)
+            line += fmt::format(" {}-{}-{} {:.1f}", atom_name(m, a.a), atom_name(m, c.atom), atom_name(m, a.b), a.degrees);
+        out += line + "\n";
+    }
+    for (const std::string& w : d.warnings) out += "warning: " + w + "\n";
+    return out;
+}
+
+nlohmann::json shape_json(const Molecule& m, const MoleculeDomains& d, const std::string& title) {
+    nlohmann::json doc;
+    doc["name"] = title;
+    doc["charge"] = d.charge;
+    doc["multiplicity"] = d.multiplicity;
+    doc["unpaired_electrons"] = d.unpaired_electrons;
+    nlohmann::json centres = nlohmann::json::array();
+    for (const CentreDomains& c : d.atoms) {
+        if (!is_centre(c)) continue;
+        nlohmann::json j;
+        j["atom"] = c.atom + 1;
+        j["element"] = std::string(element(m.atoms[static_cast<size_t>(c.atom)].z).symbol);
+        j["steric_number"] = c.steric_number;
+        j["bonded_domains"] = c.bonded;
+        j["lone_pairs"] = c.lone_pairs;
+        j["single_electrons"] = c.single_electrons;
+        j["axe"] = c.axe;
+        j["electron_geometry"] = c.electron_geometry;
+        j["shape"] = c.shape;
+        nlohmann::json angles = nlohmann::json::array();
+        for (const PredictedAngle& a : c.angles)
+            angles.push_back({{"atoms", {a.a + 1, c.atom + 1, a.b + 1}}, {"degrees", std::round(a.degrees * 100) / 100}});
+        j["angles"] = angles;
+        centres.push_back(j);
+    }
+    doc["centres"] = centres;
+    doc["warnings"] = d.warnings;
+    return doc;
+}
+
+}  // namespace repel

@@ -1,0 +1,92 @@
+#include "refine/contacts.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+#include "core/element.hpp"
+#include "refine/constants.hpp"
+
+namespace repel::refine {
+
+BondNeighbourhood::BondNeighbourhood(const Molecule& molecule) {
+    const int n = molecule.atom_count();
+    offsets_.assign(static_cast<size_t>(n) + 1, 0);
+    std::vector<int> stamp(static_cast<size_t>(n), -1);  // last atom whose walk reached this one
+    std::vector<int> frontier, next;
+    std::vector<std::pair<int, std::uint8_t>> found;
+    for (int i = 0; i < n; ++i) {
+        found.clear();
+        frontier.assign(1, i);
+        stamp[static_cast<size_t>(i)] = i;
+        for (int depth = 1; depth <= 3 && !frontier.empty(); ++depth) {
+            next.clear();
+            for (int a : frontier)
+                for (const Neighbor& nb : molecule.neighbors(a)) {
+                    if (stamp[static_cast<size_t>(nb.atom)] == i) continue;
+                    stamp[static_cast<size_t>(nb.atom)] = i;
+                    found.emplace_back(nb.atom, static_cast<std::uint8_t>(depth));
+                    next.push_back(nb.atom);
+                }
+            frontier.swap(next);
+        }
+        std::sort(found.begin(), found.end());
+        entries_.insert(entries_.end(), found.begin(), found.end());
+        offsets_[static_cast<size_t>(i) + 1] = static_cast<int>(entries_.size());
+    }
+}
+
+int BondNeighbourhood::bonds_apart(int i, int j) const {
+    const auto first = entries_.begin() + offsets_[static_cast<size_t>(i)];
+    const auto last = entries_.begin() + offsets_[static_cast<size_t>(i) + 1];
+    const auto it = std::lower_bound(first, last, std::pair<int, std::uint8_t>{j, 0});
+    return (it != last && it->first == j) ? it->second : 0;
+}
+
+ContactModel::ContactModel(const Molecule& molecule) : neighbourhood_(molecule) {
+    radius_.reserve(static_cast<size_t>(molecule.atom_count()));
+    double largest = 0;
+    for (const Atom& atom : molecule.atoms) {
+        double r = kDefaultVdwRadius;
+        if (atom.z >= 1 && atom.z <= kMaxElement && element(atom.z).r_vdw > 0) r = element(atom.z).r_vdw;
+        radius_.push_back(r);
+        largest = std::max(largest, r);
+    }
+    max_distance_ = kContactFraction * 2.0 * largest;
+}
+
+void ContactModel::update(std::span<const double> x) {
+    if (reference_.size() != x.size()) {
+        rebuild(x);
+        return;
+    }
+    const double limit = 0.25 * kContactSkin * kContactSkin;  // (skin / 2)^2
+    for (size_t i = 0; i < x.size(); i += 3) {
+        const double dx = x[i] - reference_[i], dy = x[i + 1] - reference_[i + 1], dz = x[i + 2] - reference_[i + 2];
+        if (!(dx * dx + dy * dy + dz * dz <= limit)) {  // also catches a non-finite coordinate
+            rebuild(x);
+            return;
+        }
+    }
+}
+
+void ContactModel::rebuild(std::span<const double> x) {
+    ++rebuilds_;
+    reference_.assign(x.begin(), x.end());
+    pairs_.clear();
+    grid_.close_pairs(x, max_distance_ + kContactSkin, candidates_);
+    for (const auto& [i, j] : candidates_) {
+        const int apart = neighbourhood_.bonds_apart(i, j);
+        if (apart == 1 || apart == 2) continue;
+        const double vdw = radius_[static_cast<size_t>(i)] + radius_[static_cast<size_t>(j)];
+        ContactPair p{i, j, kContactFraction * vdw, kContact};
+        if (apart == 3) p = {i, j, kOneFourFraction * vdw, kOneFourScale * kContact};
+        // Keep the pair if it can come within its contact distance before the next rebuild.
+        const double* a = &x[3 * static_cast<size_t>(i)];
+        const double* b = &x[3 * static_cast<size_t>(j)];
+        const double dx = a[0] - b[0], dy = a[1] - b[1], dz = a[2] - b[2];
+        const double reach = p.distance + kContactSkin;
+        if (dx * dx + dy * dy + dz * dz < reach * reach) pairs_.push_back(p);
+    }
+}
+
+}  // namespace repel::refine

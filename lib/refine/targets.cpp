@@ -1,0 +1,224 @@
+#include "refine/targets.hpp"
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <numbers>
+#include <stdexcept>
+#include <string>
+
+#include "core/bond_length.hpp"
+#include "refine/constants.hpp"
+
+namespace repel::refine {
+
+namespace {
+
+constexpr double kDegree = std::numbers::pi / 180.0;
+
+void require(bool ok, const std::string& message) {
+    if (!ok) throw std::invalid_argument("refine_structure: " + message);
+}
+
+// The predicted angles of a centre: as analysed, or from the solved directions of its bonded domains when only
+// those were kept.
+std::vector<PredictedAngle> centre_angles(const CentreDomains& centre) {
+    if (!centre.angles.empty() || centre.directions.size() != centre.domains.size()) return centre.angles;
+    std::vector<PredictedAngle> angles;
+    for (size_t p = 0; p < centre.domains.size(); ++p)
+        for (size_t q = p + 1; q < centre.domains.size(); ++q) {
+            const Domain& a = centre.domains[p];
+            const Domain& b = centre.domains[q];
+            if (a.kind != DomainKind::bond || b.kind != DomainKind::bond) continue;
+            const double c =
+                std::clamp(centre.directions[p].normalized().dot(centre.directions[q].normalized()), -1.0, 1.0);
+            angles.push_back({a.neighbor, b.neighbor, std::acos(c) / kDegree});
+        }
+    return angles;
+}
+
+class TermBuilder {
+public:
+    TermBuilder(const Molecule& molecule, const MoleculeDomains& domains) : m_(molecule), d_(domains) {
+        const int n = m_.atom_count();
+        require(static_cast<int>(d_.atoms.size()) == n, "the domain analysis has " + std::to_string(d_.atoms.size()) +
+                                                            " atoms, the molecule " + std::to_string(n));
+        length_.reserve(m_.bonds.size());
+        for (const Bond& b : m_.bonds) length_.push_back(bond_length(atom_z(b.a), atom_z(b.b), b.order, b.aromatic));
+        angles_.reserve(static_cast<size_t>(n));
+        for (int i = 0; i < n; ++i) {
+            angles_.push_back(centre_angles(d_.atoms[static_cast<size_t>(i)]));
+            for (const PredictedAngle& a : angles_.back())
+                require(m_.bond_between(i, a.a) >= 0 && m_.bond_between(i, a.b) >= 0 && a.a != a.b,
+                        "the predicted angle " + std::to_string(a.a + 1) + "-" + std::to_string(i + 1) + "-" +
+                            std::to_string(a.b + 1) + " is not between two neighbours of atom " +
+                            std::to_string(i + 1));
+        }
+        pi_.resize(static_cast<size_t>(n));
+        donor_.resize(static_cast<size_t>(n));
+        planar_nitrogen_.resize(static_cast<size_t>(n));
+        for (int i = 0; i < n; ++i) pi_[static_cast<size_t>(i)] = pi_centre(i);
+        for (int i = 0; i < n; ++i) {
+            donor_[static_cast<size_t>(i)] = conjugated_donor(i);
+            const CentreDomains& c = centre(i);
+            if (donor_[static_cast<size_t>(i)] && atom_z(i) == 7 && c.bonded == 3 && c.lone_pairs == 1 &&
+                m_.degree(i) == 3 && angles_[static_cast<size_t>(i)].size() == 3) {
+                planar_nitrogen_[static_cast<size_t>(i)] = true;
+                // Keep the analysis' proportions between the three angles, scaled to the 360 degrees of a plane.
+                double sum = 0;
+                for (const PredictedAngle& a : angles_[static_cast<size_t>(i)]) sum += a.degrees;
+                for (PredictedAngle& a : angles_[static_cast<size_t>(i)]) a.degrees *= 360.0 / sum;
+            }
+        }
+    }
+
+    EnergyTerms build(const std::vector<ChiralTarget>& chiral, const std::vector<DoubleBondTarget>& double_bonds) {
+        EnergyTerms t;
+        for (size_t b = 0; b < m_.bonds.size(); ++b)
+            t.bonds.push_back({m_.bonds[b].a, m_.bonds[b].b, length_[b], kBond});
+        for (int i = 0; i < m_.atom_count(); ++i) add_angles(i, t);
+        for (int i = 0; i < m_.atom_count(); ++i) add_plane(i, t);
+        for (size_t b = 0; b < m_.bonds.size(); ++b) add_torsions(m_.bonds[b], t);
+        for (const ChiralTarget& c : chiral) add_chiral(c, t);
+        for (const DoubleBondTarget& db : double_bonds) add_double_bond(db, t);
+        return t;
+    }
+
+private:
+    int atom_z(int i) const { return m_.atoms[static_cast<size_t>(i)].z; }
+    const CentreDomains& centre(int i) const { return d_.atoms[static_cast<size_t>(i)]; }
+
+    // Target length of the bond between i and j, or the single-bond length when they are not bonded.
+    double length(int i, int j) const {
+        const int b = m_.bond_between(i, j);
+        return b >= 0 ? length_[static_cast<size_t>(b)] : bond_length(atom_z(i), atom_z(j), 1);
+    }
+
+    // The predicted angle a-centre-b in degrees, or -1 when the analysis gives none.
+    double angle(int centre_atom, int a, int b) const {
+        for (const PredictedAngle& p : angles_[static_cast<size_t>(centre_atom)])
+            if ((p.a == a && p.b == b) || (p.a == b && p.b == a)) return p.degrees;
+        return -1;
+    }
+
+    void add_angles(int i, EnergyTerms& t) const {
+        for (const PredictedAngle& p : angles_[static_cast<size_t>(i)]) {
+            const double theta = p.degrees * kDegree;
+            t.angles.push_back({i, p.a, p.b, std::cos(theta), std::sin(theta), kAngle});
+        }
+    }
+
+    // A centre with three domains and a double or aromatic bond: part of a pi system.
+    bool pi_centre(int i) const {
+        if (centre(i).steric_number != 3) return false;
+        for (const Neighbor& nb : m_.neighbors(i)) {
+            const Bond& b = m_.bonds[static_cast<size_t>(nb.bond)];
+            if (b.aromatic || b.order == 2) return true;
+        }
+        return false;
+    }
+
+    // A nitrogen or oxygen with a lone pair (four domains) on an aromatic ring or next to a pi centre: amides,
+    // anilines, pyrrole-type ring nitrogens, esters, phenols, furans. Its lone pair conjugates with the pi system
+    // (common practice), which the domain count alone does not see.
+    bool conjugated_donor(int i) const {
+        const CentreDomains& c = centre(i);
+        if ((atom_z(i) != 7 && atom_z(i) != 8) || c.lone_pairs < 1 || c.single_electrons != 0 || c.steric_number != 4)
+            return false;
+        for (const Neighbor& nb : m_.neighbors(i))
+            if (m_.bonds[static_cast<size_t>(nb.bond)].aromatic || pi_[static_cast<size_t>(nb.atom)]) return true;
+        return false;
+    }
+
+    // Three domains for the torsion rules, counting a conjugated three-coordinate nitrogen as trigonal.
+    int steric(int i) const { return planar_nitrogen_[static_cast<size_t>(i)] ? 3 : centre(i).steric_number; }
+
+    // Trigonal planar: three bonded domains and nothing else, or a conjugated nitrogen with three neighbours (amide,
+    // pyrrole, aniline: planar or nearly so in gas-phase and crystal structures, common practice), whose angles were
+    // scaled to a plane above.
+    void add_plane(int i, EnergyTerms& t) const {
+        const CentreDomains& c = centre(i);
+        const bool trigonal = c.bonded == 3 && c.lone_pairs == 0 && c.single_electrons == 0;
+        if (!(trigonal || planar_nitrogen_[static_cast<size_t>(i)]) || m_.degree(i) != 3) return;
+        const auto& nb = m_.neighbors(i);
+        const double scale = 1.0 / (length(i, nb[0].atom) * length(i, nb[1].atom) * length(i, nb[2].atom));
+        t.planes.push_back({i, nb[0].atom, nb[1].atom, nb[2].atom, scale, kPlanarity});
+    }
+
+    // One torsion a-b-c-d about the bond b-c, by the kind of bond: pi bonds flat, single bonds between two trigonal
+    // centres or between a pi centre and a conjugated donor flat (conjugation), single bonds between two centres with
+    // four domains staggered. One
+    // representative quadruple per bond (the heaviest neighbour at each end, then the lowest index) gives the same
+    // minima as all of them, since the angle terms hold the other substituents in place, at a fraction of the cost.
+    // Torsions through a linear angle are undefined and left out.
+    void add_torsions(const Bond& bond, EnergyTerms& t) const {
+        const int b = bond.a, c = bond.b;
+        const int sb = steric(b), sc = steric(c);
+        const bool conjugated = (sb == 3 && sc == 3) || (pi_[static_cast<size_t>(b)] && donor_[static_cast<size_t>(c)]) ||
+                                (pi_[static_cast<size_t>(c)] && donor_[static_cast<size_t>(b)]);
+        std::array<double, 4> coefficients;
+        if (bond.aromatic || bond.order == 2)
+            coefficients = planar_torsion(kPiBond);
+        else if (bond.order == 1 && conjugated)
+            coefficients = planar_torsion(kConjugation);
+        else if (bond.order == 1 && sb == 4 && sc == 4)
+            coefficients = staggered_torsion(kStaggered);
+        else
+            return;
+        int best_a = -1, best_d = -1;
+        for (const Neighbor& na : m_.neighbors(b)) {
+            if (na.atom == c || angle(b, na.atom, c) >= kLinearAngleDegrees) continue;
+            for (const Neighbor& nd : m_.neighbors(c)) {
+                if (nd.atom == b || nd.atom == na.atom || angle(c, b, nd.atom) >= kLinearAngleDegrees) continue;
+                if (best_a < 0 || heavier(na.atom, best_a) || (na.atom == best_a && heavier(nd.atom, best_d))) {
+                    best_a = na.atom;
+                    best_d = nd.atom;
+                }
+            }
+        }
+        if (best_a >= 0) t.torsions.push_back({best_a, b, c, best_d, coefficients});
+    }
+
+    // Order for choosing representatives: higher atomic number first, then lower index.
+    bool heavier(int i, int j) const { return atom_z(i) != atom_z(j) ? atom_z(i) > atom_z(j) : i < j; }
+
+    void check_atom(int i, const char* what) const {
+        require(i >= 0 && i < m_.atom_count(), std::string(what) + " names atom " + std::to_string(i + 1) +
+                                                   ", outside 1.." + std::to_string(m_.atom_count()));
+    }
+
+    void add_chiral(const ChiralTarget& c, EnergyTerms& t) const {
+        for (int i : {c.centre, c.n1, c.n2, c.n3}) check_atom(i, "a chiral target");
+        require(c.sign == 1 || c.sign == -1, "a chiral target's sign must be +1 or -1");
+        require(
+            c.n1 != c.n2 && c.n1 != c.n3 && c.n2 != c.n3 && c.centre != c.n1 && c.centre != c.n2 && c.centre != c.n3,
+            "a chiral target names the same atom twice");
+        const double scale = 1.0 / (length(c.centre, c.n1) * length(c.centre, c.n2) * length(c.centre, c.n3));
+        t.chiral.push_back({c.centre, c.n1, c.n2, c.n3, scale, c.sign, kChiralMargin, kChiral});
+    }
+
+    void add_double_bond(const DoubleBondTarget& db, EnergyTerms& t) const {
+        for (int i : {db.a, db.b, db.c, db.d}) check_atom(i, "a double-bond target");
+        require(db.a != db.b && db.b != db.c && db.c != db.d && db.a != db.d,
+                "a double-bond target names the same atom twice");
+        t.double_bonds.push_back(
+            {db.a, db.b, db.c, db.d, db.cis ? cis_torsion(kDoubleBondTarget) : trans_torsion(kDoubleBondTarget)});
+    }
+
+    const Molecule& m_;
+    const MoleculeDomains& d_;
+    std::vector<double> length_;                       // target length per bond
+    std::vector<std::vector<PredictedAngle>> angles_;  // per centre
+    std::vector<bool> pi_;                             // per atom: pi_centre()
+    std::vector<bool> donor_;                          // per atom: conjugated_donor()
+    std::vector<bool> planar_nitrogen_;                // per atom: a conjugated nitrogen held planar
+};
+
+}  // namespace
+
+EnergyTerms build_terms(const Molecule& molecule, const MoleculeDomains& domains,
+                        const std::vector<ChiralTarget>& chiral, const std::vector<DoubleBondTarget>& double_bonds) {
+    return TermBuilder(molecule, domains).build(chiral, double_bonds);
+}
+
+}  // namespace repel::refine

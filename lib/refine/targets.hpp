@@ -1,0 +1,20 @@
+// Which energy terms a molecule gets, and what each pulls towards: bond lengths from the bond-length tables, angles
+// from each centre's domain analysis, planes for sp2 centres, torsion preferences by the kind of bond, and the
+// stereochemistry the caller asks to keep.
+#pragma once
+
+#include <vector>
+
+#include "domains/domains.hpp"
+#include "graph/molecule.hpp"
+#include "refine/refine.hpp"
+#include "refine/terms.hpp"
+
+namespace repel::refine {
+
+// Throws std::invalid_argument when the domain analysis does not belong to the molecule (a count that differs, an
+// angle between atoms that are not bonded to the centre) or a stereo target names atoms that do not exist.
+EnergyTerms build_terms(const Molecule& molecule, const MoleculeDomains& domains,
+                        const std::vector<ChiralTarget>& chiral, const std::vector<DoubleBondTarget>& double_bonds);
+
+}  // namespace repel::refine

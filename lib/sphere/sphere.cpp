@@ -1,0 +1,267 @@
+#include "sphere/sphere.hpp"
+
+#include <nlopt.h>
+
+#include <Eigen/Geometry>
+#include <algorithm>
+#include <cmath>
+#include <cstring>
+#include <numeric>
+#include <stdexcept>
+#include <string>
+#include <unordered_map>
+
+#include "sphere/polyhedra.hpp"
+
+namespace repel {
+namespace {
+
+using Eigen::Vector3d;
+
+// Seeds beyond this many (after symmetry reduction) are screened by their unrelaxed energy and only the best are
+// relaxed: it bounds the cost of centres with many different ligands, and the ranking before relaxation is a good
+// guide because relaxation only moves domains a few degrees from a seed's vertices.
+constexpr int kMaxRelaxedSeeds = 24;
+// Labellings enumerated per polyhedron at most (only reached by 8+ domains of many different kinds).
+constexpr int kMaxLabellings = 5000;
+// Seeds are nudged off exact symmetry by this much so that the minimiser can leave a symmetric saddle point.
+constexpr double kSeedNudge = 1e-3;
+
+struct Problem {
+    const SphereDomain* domains;
+    int n;
+};
+
+// Energy and gradient in unconstrained coordinates x_i (u_i = x_i / |x_i|).
+double energy_and_gradient(const Problem& pb, const double* x, double* grad) {
+    const int n = pb.n;
+    Vector3d u[12];
+    double inv_len[12];
+    for (int i = 0; i < n; ++i) {
+        Vector3d xi(x[3 * i], x[3 * i + 1], x[3 * i + 2]);
+        double len = xi.norm();
+        if (len < 1e-12) len = 1e-12;
+        inv_len[i] = 1.0 / len;
+        u[i] = xi * inv_len[i];
+    }
+    Vector3d g[12];
+    for (int i = 0; i < n; ++i) g[i].setZero();
+    double e = 0;
+    for (int i = 0; i < n; ++i) {
+        const double ri = pb.domains[i].radius, wi = pb.domains[i].weight;
+        for (int j = i + 1; j < n; ++j) {
+            const double rj = pb.domains[j].radius, wj = pb.domains[j].weight;
+            const double p = 0.5 * (pb.domains[i].exponent + pb.domains[j].exponent);
+            Vector3d d = ri * u[i] - rj * u[j];
+            double d2 = std::max(d.squaredNorm(), 1e-24);
+            double dist = std::sqrt(d2);
+            double term = wi * wj * std::pow(dist, -p);
+            e += term;
+            if (grad) {
+                // dE/dd = -p * term / d2 * d
+                Vector3d f = (-p * term / d2) * d;
+                g[i] += ri * f;
+                g[j] -= rj * f;
+            }
+        }
+    }
+    if (grad) {
+        for (int i = 0; i < n; ++i) {
+            // Project onto the tangent plane and scale: d u / d x = (I - u u^T) / |x|.
+            Vector3d gi = (g[i] - u[i] * u[i].dot(g[i])) * inv_len[i];
+            grad[3 * i] = gi.x();
+            grad[3 * i + 1] = gi.y();
+            grad[3 * i + 2] = gi.z();
+        }
+    }
+    return e;
+}
+
+double nlopt_objective(unsigned, const double* x, double* grad, void* data) {
+    return energy_and_gradient(*static_cast<const Problem*>(data), x, grad);
+}
+
+// Relaxes points in place; returns the energy.
+double relax(const Problem& pb, std::vector<Vector3d>& points) {
+    const int n = pb.n;
+    std::vector<double> x(static_cast<size_t>(3 * n));
+    for (int i = 0; i < n; ++i)
+        for (int k = 0; k < 3; ++k) x[static_cast<size_t>(3 * i + k)] = points[static_cast<size_t>(i)][k];
+    nlopt_opt opt = nlopt_create(NLOPT_LD_LBFGS, static_cast<unsigned>(3 * n));
+    if (!opt) throw std::runtime_error("sphere solver: NLopt could not create an optimiser");
+    nlopt_set_min_objective(opt, nlopt_objective, const_cast<Problem*>(&pb));
+    nlopt_set_ftol_rel(opt, 1e-14);
+    nlopt_set_xtol_rel(opt, 1e-11);
+    nlopt_set_maxeval(opt, 3000);
+    double f = 0;
+    nlopt_optimize(opt, x.data(), &f);  // a stop for round-off near the minimum is fine: x is the best point seen
+    nlopt_destroy(opt);
+    for (int i = 0; i < n; ++i)
+        points[static_cast<size_t>(i)] =
+            Vector3d(x[static_cast<size_t>(3 * i)], x[static_cast<size_t>(3 * i + 1)], x[static_cast<size_t>(3 * i + 2)])
+                .normalized();
+    return energy_and_gradient(pb, x.data(), nullptr);
+}
+
+struct Seed {
+    std::vector<Vector3d> points;  // in the problem's domain order
+    double energy;
+};
+
+// Every distinct placement of the domain kinds on the vertices of each starting polyhedron.
+std::vector<Seed> seeds_for(const std::vector<SphereDomain>& sorted, const std::vector<int>& kind) {
+    const int n = static_cast<int>(sorted.size());
+    std::vector<Seed> seeds;
+    Problem pb{sorted.data(), n};
+    for (const Polyhedron& poly : starting_polyhedra(n)) {
+        std::vector<int> labels = kind;  // sorted ascending: next_permutation walks every multiset permutation
+        int count = 0;
+        do {
+            // Keep a labelling only if no symmetry of the polyhedron maps it to a lexicographically smaller one.
+            bool canonical = true;
+            std::vector<int> image(static_cast<size_t>(n));
+            for (size_t g = 1; g < poly.symmetry.size() && canonical; ++g) {
+                for (int v = 0; v < n; ++v)
+                    image[static_cast<size_t>(poly.symmetry[g][static_cast<size_t>(v)])] = labels[static_cast<size_t>(v)];
+                if (std::lexicographical_compare(image.begin(), image.end(), labels.begin(), labels.end()))
+                    canonical = false;
+            }
+            if (!canonical) continue;
+            // Vertex v gets the next unplaced domain of kind labels[v].
+            std::vector<Vector3d> pts(static_cast<size_t>(n));
+            std::vector<int> next(static_cast<size_t>(n), 0);
+            for (int v = 0; v < n; ++v) {
+                int k = labels[static_cast<size_t>(v)];
+                int seen = 0;
+                for (int d = 0; d < n; ++d)
+                    if (kind[static_cast<size_t>(d)] == k && seen++ == next[static_cast<size_t>(k)]) {
+                        Vector3d nudge(kSeedNudge * std::sin(1.0 + 3 * v), kSeedNudge * std::cos(2.0 + 5 * v),
+                                       kSeedNudge * std::sin(3.0 + 7 * v));
+                        pts[static_cast<size_t>(d)] = (poly.vertices[static_cast<size_t>(v)] + nudge).normalized();
+                        break;
+                    }
+                ++next[static_cast<size_t>(k)];
+            }
+            std::vector<double> x(static_cast<size_t>(3 * n));
+            for (int i = 0; i < n; ++i)
+                for (int c = 0; c < 3; ++c) x[static_cast<size_t>(3 * i + c)] = pts[static_cast<size_t>(i)][c];
+            seeds.push_back({std::move(pts), energy_and_gradient(pb, x.data(), nullptr)});
+        } while (++count < kMaxLabellings && std::next_permutation(labels.begin(), labels.end()));
+    }
+    return seeds;
+}
+
+// Rotates the points so that the first lies along +z and the next one not collinear with it in the xz half-plane x > 0.
+void canonical_frame(std::vector<Vector3d>& pts) {
+    if (pts.empty()) return;
+    Eigen::Quaterniond q = Eigen::Quaterniond::FromTwoVectors(pts[0], Vector3d::UnitZ());
+    if (pts[0].dot(Vector3d::UnitZ()) < -1 + 1e-12) q = Eigen::Quaterniond(Eigen::AngleAxisd(M_PI, Vector3d::UnitX()));
+    Eigen::Matrix3d r = q.toRotationMatrix();
+    for (auto& p : pts) p = r * p;
+    pts[0] = Vector3d::UnitZ();
+    for (size_t j = 1; j < pts.size(); ++j) {
+        double rho = std::hypot(pts[j].x(), pts[j].y());
+        if (rho > 1e-6) {
+            double phi = std::atan2(pts[j].y(), pts[j].x());
+            Eigen::Matrix3d rz = Eigen::AngleAxisd(-phi, Vector3d::UnitZ()).toRotationMatrix();
+            for (auto& p : pts) p = rz * p;
+            break;
+        }
+    }
+}
+
+// Sorts the domains into a canonical order (by radius, then by weight, larger first) and labels equal ones alike.
+std::vector<int> canonical_order(std::span<const SphereDomain> domains) {
+    std::vector<int> order(domains.size());
+    std::iota(order.begin(), order.end(), 0);
+    std::stable_sort(order.begin(), order.end(), [&](int a, int b) {
+        const auto& da = domains[static_cast<size_t>(a)];
+        const auto& db = domains[static_cast<size_t>(b)];
+        if (da.radius != db.radius) return da.radius < db.radius;
+        if (da.exponent != db.exponent) return da.exponent < db.exponent;
+        return da.weight > db.weight;
+    });
+    return order;
+}
+
+// The solve in canonical domain order; the result is what the cache keeps.
+std::vector<Vector3d> solve_sorted(const std::vector<SphereDomain>& sorted) {
+    const int n = static_cast<int>(sorted.size());
+    if (n == 0) return {};
+    if (n == 1) return {Vector3d::UnitZ()};
+    if (n == 2) return {Vector3d::UnitZ(), -Vector3d::UnitZ()};
+    std::vector<int> kind(static_cast<size_t>(n), 0);
+    for (int i = 1; i < n; ++i)
+        kind[static_cast<size_t>(i)] = kind[static_cast<size_t>(i - 1)] + (sorted[static_cast<size_t>(i)] == sorted[static_cast<size_t>(i - 1)] ? 0 : 1);
+    std::vector<Seed> seeds = seeds_for(sorted, kind);
+    if (static_cast<int>(seeds.size()) > kMaxRelaxedSeeds) {
+        std::stable_sort(seeds.begin(), seeds.end(), [](const Seed& a, const Seed& b) { return a.energy < b.energy; });
+        seeds.resize(kMaxRelaxedSeeds);
+    }
+    Problem pb{sorted.data(), n};
+    std::vector<Vector3d> best;
+    double best_e = INFINITY;
+    for (Seed& s : seeds) {
+        double e = relax(pb, s.points);
+        if (e < best_e * (1 - 1e-12)) {
+            best_e = e;
+            best = s.points;
+        }
+    }
+    return best;
+}
+
+void check(std::span<const SphereDomain> domains) {
+    if (domains.size() > 12) throw std::invalid_argument("sphere solver: at most 12 domains");
+    for (const auto& d : domains)
+        if (!(d.weight > 0) || !(d.radius > 0) || !(d.exponent > 0) || !std::isfinite(d.weight) ||
+            !std::isfinite(d.radius) || !std::isfinite(d.exponent))
+            throw std::invalid_argument("sphere solver: weights, radii and exponents must be positive and finite");
+}
+
+std::vector<Vector3d> solve(std::span<const SphereDomain> domains, bool use_cache) {
+    check(domains);
+    const std::vector<int> order = canonical_order(domains);
+    std::vector<SphereDomain> sorted;
+    sorted.reserve(domains.size());
+    for (int i : order) sorted.push_back(domains[static_cast<size_t>(i)]);
+
+    const std::vector<Vector3d>* solution = nullptr;
+    std::vector<Vector3d> fresh;
+    if (use_cache) {
+        // Key: the sorted pattern, as raw bytes (exact: equal inputs, equal keys).
+        thread_local std::unordered_map<std::string, std::vector<Vector3d>> cache;
+        constexpr size_t per = 3 * sizeof(double);
+        std::string key(per * sorted.size(), '\0');
+        for (size_t i = 0; i < sorted.size(); ++i) {
+            std::memcpy(key.data() + per * i, &sorted[i].weight, sizeof(double));
+            std::memcpy(key.data() + per * i + sizeof(double), &sorted[i].radius, sizeof(double));
+            std::memcpy(key.data() + per * i + 2 * sizeof(double), &sorted[i].exponent, sizeof(double));
+        }
+        auto it = cache.find(key);
+        if (it == cache.end()) it = cache.emplace(std::move(key), solve_sorted(sorted)).first;
+        solution = &it->second;
+    } else {
+        fresh = solve_sorted(sorted);
+        solution = &fresh;
+    }
+    std::vector<Vector3d> out(domains.size());
+    for (size_t k = 0; k < order.size(); ++k) out[static_cast<size_t>(order[k])] = (*solution)[k];
+    canonical_frame(out);
+    return out;
+}
+
+}  // namespace
+
+double sphere_energy(std::span<const SphereDomain> domains, std::span<const Vector3d> directions) {
+    std::vector<double> x;
+    for (const auto& d : directions) x.insert(x.end(), {d.x(), d.y(), d.z()});
+    Problem pb{domains.data(), static_cast<int>(domains.size())};
+    return energy_and_gradient(pb, x.data(), nullptr);
+}
+
+std::vector<Vector3d> solve_sphere(std::span<const SphereDomain> domains) { return solve(domains, true); }
+
+std::vector<Vector3d> solve_sphere_uncached(std::span<const SphereDomain> domains) { return solve(domains, false); }
+
+}  // namespace repel

@@ -1,0 +1,463 @@
+// Whole-molecule assembly, judged from the coordinates: bond lengths, angles, ring shapes, planarity, contacts.
+#include <gtest/gtest.h>
+
+#include <Eigen/Eigenvalues>
+#include <Eigen/Geometry>
+#include <algorithm>
+#include <cmath>
+#include <string>
+
+#include "assemble/build.hpp"
+#include "assemble/place.hpp"
+#include "core/bond_length.hpp"
+#include "core/element.hpp"
+#include "domains/domains.hpp"
+#include "input/smiles.hpp"
+
+using namespace repel;
+using Eigen::Vector3d;
+
+namespace {
+
+Structure build(const std::string& smiles, bool refine = true) {
+    Molecule m = read_smiles(smiles);
+    m.make_hydrogens_explicit();
+    BuildOptions o;
+    o.refine = refine;
+    return build_structure(m, o);
+}
+
+double dist(const Structure& s, int a, int b) { return (s.positions[a] - s.positions[b]).norm(); }
+
+double angle(const Structure& s, int a, int b, int c) {
+    const Vector3d u = (s.positions[a] - s.positions[b]).normalized(), v = (s.positions[c] - s.positions[b]).normalized();
+    return std::acos(std::clamp(u.dot(v), -1.0, 1.0)) * 180 / M_PI;
+}
+
+double torsion(const Structure& s, int a, int b, int c, int d) {
+    return dihedral(s.positions[a], s.positions[b], s.positions[c], s.positions[d]) * 180 / M_PI;
+}
+
+// Every bond at its tabulated length within tol.
+void expect_bond_lengths(const Structure& s, double tol) {
+    const Molecule& m = s.molecule;
+    for (const Bond& b : m.bonds) {
+        const double ideal = bond_length(m.atoms[b.a].z, m.atoms[b.b].z, b.order, b.aromatic);
+        EXPECT_NEAR(dist(s, b.a, b.b), ideal, tol) << "bond " << b.a + 1 << "-" << b.b + 1;
+    }
+}
+
+// Shortest path length in bonds (small molecules only).
+int bonds_apart(const Molecule& m, int a, int b) {
+    std::vector<int> d(m.atom_count(), -1);
+    std::vector<int> q{a};
+    d[a] = 0;
+    for (size_t k = 0; k < q.size(); ++k)
+        for (const Neighbor& n : m.neighbors(q[k]))
+            if (d[n.atom] < 0) {
+                d[n.atom] = d[q[k]] + 1;
+                q.push_back(n.atom);
+            }
+    return d[b] < 0 ? 1000 : d[b];
+}
+
+// No two atoms more than three bonds apart closer than `fraction` of their van der Waals sum (Bondi radii via
+// element()).
+void expect_no_clash(const Structure& s, double fraction) {
+    const Molecule& m = s.molecule;
+    for (int i = 0; i < m.atom_count(); ++i)
+        for (int j = i + 1; j < m.atom_count(); ++j) {
+            if (bonds_apart(m, i, j) <= 3) continue;
+            const double sum = element(m.atoms[i].z).r_vdw + element(m.atoms[j].z).r_vdw;
+            EXPECT_GE(dist(s, i, j), fraction * sum) << "atoms " << i + 1 << " and " << j + 1;
+        }
+}
+
+// Largest distance of the given atoms from their best plane.
+double plane_deviation(const Structure& s, const std::vector<int>& atoms) {
+    Vector3d c = Vector3d::Zero();
+    for (int a : atoms) c += s.positions[a];
+    c /= atoms.size();
+    Eigen::Matrix3d cov = Eigen::Matrix3d::Zero();
+    for (int a : atoms) cov += (s.positions[a] - c) * (s.positions[a] - c).transpose();
+    Eigen::SelfAdjointEigenSolver<Eigen::Matrix3d> es(cov);
+    const Vector3d normal = es.eigenvectors().col(0);
+    double worst = 0;
+    for (int a : atoms) worst = std::max(worst, std::abs((s.positions[a] - c).dot(normal)));
+    return worst;
+}
+
+// Every angle between bonded neighbours of every centre as the domain analysis predicts it, within tol degrees.
+void expect_domain_angles(const Structure& s, double tol) {
+    const MoleculeDomains d = analyse_domains(s.molecule);
+    for (const CentreDomains& c : d.atoms)
+        for (const PredictedAngle& a : c.angles)
+            EXPECT_NEAR(angle(s, a.a, c.atom, a.b), a.degrees, tol)
+                << "angle " << a.a + 1 << "-" << c.atom + 1 << "-" << a.b + 1;
+}
+
+}  // namespace
+
+// ---- single-centre species: the centre at the origin, each ligand along its domain direction ----
+
+TEST(SingleCentre, SulfurTetrafluorideIsASeesaw) {
+    const Structure s = build("F[S](F)(F)F", false);
+    ASSERT_EQ(s.positions.size(), 5u);
+    EXPECT_LT(s.positions[1].norm(), 1e-9);  // the centre at the origin
+    expect_bond_lengths(s, 1e-6);
+    expect_domain_angles(s, 1e-6);
+    // Seesaw: one F-S-F pair nearly linear (axial), one pair well below 120 (equatorial), no pair near 180 twice.
+    std::vector<double> a;
+    for (int i : {0, 2, 3, 4})
+        for (int j : {0, 2, 3, 4})
+            if (i < j) a.push_back(angle(s, i, 1, j));
+    std::sort(a.begin(), a.end());
+    EXPECT_GT(a.back(), 130.0);
+    EXPECT_LT(a.front(), 105.0);
+}
+
+TEST(SingleCentre, XenonTetrafluorideIsSquarePlanar) {
+    const Structure s = build("F[Xe](F)(F)F", false);
+    EXPECT_LT(s.positions[1].norm(), 1e-9);
+    EXPECT_LT(plane_deviation(s, {0, 1, 2, 3, 4}), 1e-3);
+    expect_bond_lengths(s, 1e-6);
+}
+
+TEST(SingleCentre, SulfateIsTetrahedralWithChargeMinusTwo) {
+    const Structure s = build("[O-]S(=O)(=O)[O-]", false);
+    EXPECT_EQ(s.charge, -2);
+    EXPECT_EQ(s.multiplicity, 1);
+    for (int i : {0, 2, 3, 4})
+        for (int j : {0, 2, 3, 4})
+            if (i < j) EXPECT_NEAR(angle(s, i, 1, j), 109.47, 6.0);
+}
+
+TEST(SingleCentre, AmmoniumIsATetrahedron) {
+    const Structure s = build("[NH4+]", false);
+    ASSERT_EQ(s.positions.size(), 5u);
+    EXPECT_EQ(s.charge, 1);
+    for (int i = 1; i < 5; ++i)
+        for (int j = i + 1; j < 5; ++j) EXPECT_NEAR(angle(s, i, 0, j), 109.47, 0.01);
+}
+
+TEST(SingleCentre, WaterIsBent) {
+    const Structure s = build("O", false);
+    ASSERT_EQ(s.positions.size(), 3u);
+    expect_domain_angles(s, 1e-6);
+    EXPECT_LT(angle(s, 1, 0, 2), 120.0);
+}
+
+TEST(SingleCentre, NitrogenDioxideIsABentDoublet) {
+    const Structure s = build("O=[N+][O-]", false);
+    EXPECT_EQ(s.multiplicity, 2);
+    EXPECT_EQ(s.charge, 0);
+    EXPECT_EQ(s.molecule.atoms[1].radical_electrons, 1);
+    EXPECT_EQ(s.molecule.atoms[0].radical_electrons, 0);
+    expect_domain_angles(s, 1e-6);
+    const double a = angle(s, 0, 1, 2);
+    EXPECT_GT(a, 115.0);
+    EXPECT_LT(a, 170.0);
+}
+
+TEST(SingleCentre, IodineHeptafluorideHasSevenLigands) {
+    const Structure s = build("F[I](F)(F)(F)(F)(F)F", false);
+    ASSERT_EQ(s.positions.size(), 8u);
+    expect_bond_lengths(s, 1e-6);
+    double closest = 1e9;
+    for (int i = 0; i < 8; ++i)
+        for (int j = i + 1; j < 8; ++j)
+            if (i != 1 && j != 1) closest = std::min(closest, angle(s, i, 1, j));
+    EXPECT_GT(closest, 65.0);  // pentagonal bipyramid: nearest ligands 72 degrees apart
+}
+
+TEST(SingleCentre, LoneIonSitsAtTheOrigin) {
+    const Structure s = build("[Cl-]");
+    ASSERT_EQ(s.positions.size(), 1u);
+    EXPECT_LT(s.positions[0].norm(), 1e-12);
+    EXPECT_EQ(s.charge, -1);
+}
+
+TEST(SingleCentre, DiatomicAtItsBondLength) {
+    const Structure s = build("[H][H]", false);
+    EXPECT_NEAR(dist(s, 0, 1), bond_length(1, 1, 1), 1e-9);
+    const Structure co = build("[C-]#[O+]", false);
+    EXPECT_NEAR(dist(co, 0, 1), bond_length(6, 8, 3), 1e-9);
+}
+
+// ---- chains and torsions ----
+
+TEST(Chains, HexaneIsAllAnti) {
+    const Structure s = build("CCCCCC", false);
+    expect_bond_lengths(s, 1e-6);
+    expect_domain_angles(s, 1e-6);
+    for (int i = 0; i + 3 < 6; ++i) EXPECT_NEAR(std::abs(torsion(s, i, i + 1, i + 2, i + 3)), 180.0, 1e-6);
+    expect_no_clash(s, 0.8);
+}
+
+TEST(Chains, EthaneIsStaggered) {
+    const Structure s = build("CC", false);
+    // H-C-C-H torsions are 60 or 180 degrees, never eclipsed.
+    for (int a = 2; a < 5; ++a)
+        for (int b = 5; b < 8; ++b) {
+            const double t = std::abs(torsion(s, a, 0, 1, b));
+            EXPECT_TRUE(std::abs(t - 60) < 1 || std::abs(t - 180) < 1) << t;
+        }
+}
+
+TEST(Chains, ButadieneIsPlanarSTrans) {
+    const Structure s = build("C=CC=C", false);
+    EXPECT_NEAR(std::abs(torsion(s, 0, 1, 2, 3)), 180.0, 1e-6);
+    std::vector<int> all(s.positions.size());
+    for (size_t i = 0; i < all.size(); ++i) all[i] = static_cast<int>(i);
+    EXPECT_LT(plane_deviation(s, all), 1e-3);
+}
+
+TEST(Chains, SecondaryAmideIsTransAndPlanar) {
+    // N-methylacetamide: the two methyl carbons anti across the C-N bond (the trans amide; common practice).
+    const Structure s = build("CC(=O)NC", false);
+    EXPECT_NEAR(std::abs(torsion(s, 0, 1, 3, 4)), 180.0, 1.0);
+    EXPECT_NEAR(std::abs(torsion(s, 2, 1, 3, 4)), 0.0, 1.0);
+}
+
+TEST(Chains, EsterIsZ) {
+    // Methyl acetate: the O-methyl cis to the carbonyl oxygen (the Z ester; common practice).
+    const Structure s = build("CC(=O)OC", false);
+    EXPECT_NEAR(std::abs(torsion(s, 2, 1, 3, 4)), 0.0, 1.0);
+}
+
+TEST(Chains, BranchedAlkaneHasNoClash) {
+    const Structure s = build("CC(C)(C)C(C)(C)C(C)(C)C(C)(C)C");
+    expect_no_clash(s, 0.6);
+}
+
+// ---- rings ----
+
+namespace {
+std::vector<double> ring_torsions(const Structure& s, const std::vector<int>& ring) {
+    std::vector<double> t;
+    const size_t n = ring.size();
+    for (size_t i = 0; i < n; ++i) t.push_back(torsion(s, ring[i], ring[(i + 1) % n], ring[(i + 2) % n], ring[(i + 3) % n]));
+    return t;
+}
+// A chair: every ring torsion gauche (40-75 degrees) with alternating signs; a boat has two torsions near 0.
+bool is_chair(const Structure& s, const std::vector<int>& ring) {
+    const auto t = ring_torsions(s, ring);
+    for (size_t i = 0; i < t.size(); ++i) {
+        if (std::abs(t[i]) < 40 || std::abs(t[i]) > 75) return false;
+        if (t[i] * t[(i + 1) % t.size()] > 0) return false;
+    }
+    return true;
+}
+}  // namespace
+
+TEST(Rings, BenzeneIsAFlatRegularHexagon) {
+    const Structure s = build("c1ccccc1");
+    std::vector<int> all(12);
+    for (int i = 0; i < 12; ++i) all[i] = i;
+    EXPECT_LT(plane_deviation(s, all), 0.01);
+    for (int i = 0; i < 6; ++i) EXPECT_NEAR(dist(s, i, (i + 1) % 6), dist(s, 0, 1), 0.005);
+    for (int i = 0; i < 6; ++i) EXPECT_NEAR(angle(s, (i + 5) % 6, i, (i + 1) % 6), 120.0, 1.0);
+}
+
+TEST(Rings, CyclohexaneIsAChair) {
+    EXPECT_TRUE(is_chair(build("C1CCCCC1", false), {0, 1, 2, 3, 4, 5}));
+    EXPECT_TRUE(is_chair(build("C1CCCCC1"), {0, 1, 2, 3, 4, 5}));
+    EXPECT_TRUE(is_chair(build("C1CCOCC1"), {0, 1, 2, 3, 4, 5}));
+    EXPECT_TRUE(is_chair(build("C1CNCCN1"), {0, 1, 2, 3, 4, 5}));
+}
+
+TEST(Rings, SubstituentOnCyclohexaneIsEquatorial) {
+    // Methylcyclohexane: the methyl carbon lies near the ring's mean plane, not along its normal (common practice:
+    // the equatorial conformer is the more stable).
+    const Structure s = build("CC1CCCCC1", false);
+    std::vector<int> ring{1, 2, 3, 4, 5, 6};
+    Vector3d c = Vector3d::Zero();
+    for (int a : ring) c += s.positions[a];
+    c /= 6;
+    Eigen::Matrix3d cov = Eigen::Matrix3d::Zero();
+    for (int a : ring) cov += (s.positions[a] - c) * (s.positions[a] - c).transpose();
+    Eigen::SelfAdjointEigenSolver<Eigen::Matrix3d> es(cov);
+    const Vector3d normal = es.eigenvectors().col(0);
+    const Vector3d bond = (s.positions[0] - s.positions[1]).normalized();
+    EXPECT_LT(std::abs(bond.dot(normal)), 0.5);  // axial would be about 1
+}
+
+TEST(Rings, CyclopentaneIsPuckered) {
+    const Structure s = build("C1CCCC1");
+    EXPECT_GT(plane_deviation(s, {0, 1, 2, 3, 4}), 0.1);
+    expect_bond_lengths(s, 0.03);
+}
+
+TEST(Rings, SmallRingsAreFlatPolygons) {
+    const Structure s = build("C1CC1", false);
+    EXPECT_NEAR(angle(s, 0, 1, 2), 60.0, 1e-6);
+    const Structure o = build("C1CO1", false);
+    expect_bond_lengths(o, 0.06);
+}
+
+TEST(Rings, DecalinIsTwoChairs) {
+    const Structure s = build("C1CCC2CCCCC2C1");
+    EXPECT_TRUE(is_chair(s, {0, 1, 2, 3, 8, 9}));
+    EXPECT_TRUE(is_chair(s, {3, 4, 5, 6, 7, 8}));
+    expect_no_clash(s, 0.6);
+}
+
+TEST(Rings, NaphthaleneAndIndoleAreFlat) {
+    for (const char* smi : {"c1ccc2ccccc2c1", "c1ccc2[nH]ccc2c1", "c1cc2ccc3cccc4ccc(c1)c2c34"}) {
+        const Structure s = build(smi);
+        std::vector<int> all(s.positions.size());
+        for (size_t i = 0; i < all.size(); ++i) all[i] = static_cast<int>(i);
+        EXPECT_LT(plane_deviation(s, all), 0.05) << smi;
+        expect_bond_lengths(s, 0.05);
+    }
+}
+
+TEST(Rings, SteroidRingsBAndCAreChairs) {
+    // Testosterone: rings B and C saturated chairs (ring A carries the enone, ring D is five-membered).
+    const Structure s = build("C[C@]12CC[C@H]3[C@@H](CCC4=CC(=O)CC[C@]34C)[C@@H]1CC[C@@H]2O");
+    EXPECT_TRUE(is_chair(s, {1, 2, 3, 4, 5, 16}));   // ring C: atoms 2-6 and 17
+    EXPECT_TRUE(is_chair(s, {4, 5, 6, 7, 8, 14}));   // ring B
+    expect_no_clash(s, 0.6);
+}
+
+TEST(Rings, BridgedAndCagedSystemsKeepTheirBonds) {
+    for (const char* smi : {"C1CC2CCC1C2", "C1C2CC3CC1CC(C2)C3", "C12C3C4C1C5C2C3C45", "C1CC2CC3CC1C23",
+                            "C1CC2CC3CCC1C3C2" /* twistane */, "C1CC2CCC1CC2" /* bicyclo[2.2.2]octane */}) {
+        const Structure s = build(smi);
+        expect_bond_lengths(s, 0.06);
+        expect_no_clash(s, 0.6);
+    }
+}
+
+TEST(Rings, AdamantaneIsFourChairs) {
+    const Structure s = build("C1C2CC3CC1CC(C2)C3");
+    EXPECT_TRUE(is_chair(s, {0, 1, 2, 3, 4, 5}));
+    EXPECT_TRUE(is_chair(s, {1, 2, 3, 9, 7, 8}));
+}
+
+TEST(Rings, CubaneIsACubeAndIsWarnedAbout) {
+    const Structure s = build("C12C3C4C1C5C2C3C45");
+    for (const Bond& b : s.molecule.bonds)
+        if (s.molecule.atoms[b.a].z == 6 && s.molecule.atoms[b.b].z == 6)
+            for (const Neighbor& n : s.molecule.neighbors(b.b))
+                if (n.atom != b.a && s.molecule.atoms[n.atom].z == 6)
+                    EXPECT_NEAR(angle(s, b.a, b.b, n.atom), 90.0, 4.0);
+    bool warned = false;
+    for (const auto& w : s.warnings) warned |= w.find("strained") != std::string::npos;
+    EXPECT_TRUE(warned);
+}
+
+namespace {
+// Number of crossings of the ring's projection on its best plane: zero proves the ring is not knotted.
+int projected_crossings(const Structure& s, const std::vector<int>& ring) {
+    Vector3d c = Vector3d::Zero();
+    for (int a : ring) c += s.positions[a];
+    c /= ring.size();
+    Eigen::Matrix3d cov = Eigen::Matrix3d::Zero();
+    for (int a : ring) cov += (s.positions[a] - c) * (s.positions[a] - c).transpose();
+    Eigen::SelfAdjointEigenSolver<Eigen::Matrix3d> es(cov);
+    const Vector3d u = es.eigenvectors().col(2), v = es.eigenvectors().col(1);
+    std::vector<Eigen::Vector2d> p;
+    for (int a : ring) p.emplace_back((s.positions[a] - c).dot(u), (s.positions[a] - c).dot(v));
+    auto cross = [](Eigen::Vector2d a, Eigen::Vector2d b) { return a.x() * b.y() - a.y() * b.x(); };
+    int count = 0;
+    const size_t n = p.size();
+    for (size_t i = 0; i < n; ++i)
+        for (size_t j = i + 2; j < n; ++j) {
+            if (i == 0 && j == n - 1) continue;
+            const auto a = p[i], b = p[(i + 1) % n], q = p[j], r = p[(j + 1) % n];
+            const double d1 = cross(b - a, q - a), d2 = cross(b - a, r - a), d3 = cross(r - q, a - q), d4 = cross(r - q, b - q);
+            if (d1 * d2 < 0 && d3 * d4 < 0) ++count;
+        }
+    return count;
+}
+}  // namespace
+
+TEST(Rings, ThirtyMemberedMacrocycleIsOpenAndUnknotted) {
+    const Structure s = build("C1CCCCCCCCCCCCCCCCCCCCCCCCCCCCC1");
+    std::vector<int> ring(30);
+    for (int i = 0; i < 30; ++i) ring[i] = i;
+    EXPECT_EQ(projected_crossings(s, ring), 0);
+    expect_bond_lengths(s, 0.03);
+    expect_no_clash(s, 0.6);
+}
+
+TEST(Rings, MacrocyclicLactoneAndCrownEther) {
+    for (const char* smi : {"O=C1CCCCCCCCCCCCCCO1", "C1COCCOCCOCCOCCOCCO1"}) {
+        const Structure s = build(smi);
+        expect_bond_lengths(s, 0.05);
+        expect_no_clash(s, 0.6);
+    }
+}
+
+TEST(Rings, SpiroRingsArePerpendicular) {
+    const Structure s = build("C1CCC2(CC1)CCCC2");
+    expect_bond_lengths(s, 0.05);
+    expect_no_clash(s, 0.6);
+}
+
+// ---- separate components ----
+
+TEST(Components, SaltIsAnIonPairAtContact) {
+    const Structure s = build("[Na+].[Cl-]");
+    const double contact = element(11).r_vdw + element(17).r_vdw;
+    EXPECT_GE(dist(s, 0, 1), contact);
+    EXPECT_LT(dist(s, 0, 1), contact + 1.0);
+    EXPECT_EQ(s.charge, 0);
+}
+
+TEST(Components, CounterIonSitsByTheChargedAtom) {
+    // Sodium acetate: Na+ nearer the carboxylate oxygen that carries the charge than the methyl carbon.
+    const Structure s = build("CC(=O)[O-].[Na+]");
+    EXPECT_LT(dist(s, 3, 4), dist(s, 0, 4));
+}
+
+TEST(Components, WatersDoNotOverlapAndTheFirstStaysPut) {
+    const Structure one = build("O", false);
+    const Structure s = build("O.O.O.O", false);
+    // Atom order: the four oxygens, then their hydrogens by parent (atoms 5-6 belong to the first oxygen).
+    EXPECT_LT((s.positions[0] - one.positions[0]).norm(), 1e-9);
+    EXPECT_LT((s.positions[4] - one.positions[1]).norm(), 1e-9);
+    EXPECT_LT((s.positions[5] - one.positions[2]).norm(), 1e-9);
+    const auto comp = s.molecule.components();
+    for (int i = 0; i < 12; ++i)
+        for (int j = i + 1; j < 12; ++j) {
+            if (comp[i] == comp[j]) continue;
+            const double sum = element(s.molecule.atoms[i].z).r_vdw + element(s.molecule.atoms[j].z).r_vdw;
+            EXPECT_GE(dist(s, i, j), sum) << i << " " << j;
+        }
+}
+
+// ---- molecules a chemist writes ----
+
+TEST(DrugLike, NoClashesAndBondsAtLength) {
+    // Aspirin, ibuprofen, caffeine, nicotine, paracetamol, diazepam, a penicillin, a macrolide fragment, a salt,
+    // a sulfonamide and a phosphate ester.
+    for (const char* smi : {"CC(=O)Oc1ccccc1C(=O)O", "CC(C)Cc1ccc(cc1)[C@@H](C)C(=O)O", "Cn1cnc2c1c(=O)n(C)c(=O)n2C",
+                            "CN1CCC[C@H]1c1cccnc1", "CC(=O)Nc1ccc(O)cc1", "CN1C(=O)CN=C(c2ccccc2)c2cc(Cl)ccc21",
+                            "CC1([C@@H](N2[C@H](S1)[C@@H](C2=O)NC(=O)Cc1ccccc1)C(=O)O)C",
+                            "C[C@H]1C[C@@H](C)C(=O)O[C@@H](CC)[C@H](C)C=C[C@@H](O)C1",
+                            "C[NH3+].[O-]C(=O)c1ccccc1", "Nc1ccc(cc1)S(=O)(=O)Nc1ncccn1", "COP(=O)(OC)OC"}) {
+        const Structure s = build(smi);
+        expect_bond_lengths(s, 0.08);
+        expect_no_clash(s, 0.5);
+        for (const auto& w : s.warnings) EXPECT_EQ(w.find("handedness"), std::string::npos) << smi << ": " << w;
+    }
+}
+
+TEST(Output, AtomOrderAndRadicals) {
+    const Structure s = build("[CH3]", false);
+    EXPECT_EQ(s.multiplicity, 2);
+    EXPECT_EQ(s.molecule.atoms[0].radical_electrons, 1);
+    EXPECT_EQ(s.molecule.atoms[0].z, 6);
+    for (int i = 1; i < 4; ++i) EXPECT_EQ(s.molecule.atoms[i].z, 1);
+}
+
+TEST(Output, LongChainBuildsWithoutOverlap) {
+    std::string smi;
+    for (int i = 0; i < 2000; ++i) smi += 'C';
+    const Structure s = build(smi, false);
+    expect_bond_lengths(s, 1e-6);
+    // Anti chain: the ends are far apart, nothing folds back.
+    EXPECT_GT(dist(s, 0, 1999), 1000.0);
+}
