@@ -3,6 +3,7 @@
 #include <cstdio>
 #include <iostream>
 
+#include "check_command.hpp"
 #include "commands.hpp"
 
 int main(int argc, char** argv) {
@@ -40,6 +41,31 @@ int main(int argc, char** argv) {
     cmd_shape->add_flag("--smiles", shape_smiles, "read INPUT as SMILES only");
     cmd_shape->get_option("INPUT")->excludes(cmd_shape->get_option("--input"));
 
+    CheckArgs check;
+    int check_charge = 0, check_multiplicity = 0;
+    CLI::App* cmd_check = app.add_subcommand("check", "audit a structure built elsewhere: what is wrong, where, how badly");
+    cmd_check->add_option("FILE", check.file, "a structure file: .xyz (one or several frames), .pdb, .sdf/.mol; - for standard input")
+        ->required();
+    cmd_check->add_option("--format", check.format, "the file's format when the extension does not tell")
+        ->check(CLI::IsMember({"xyz", "pdb", "sdf", "mol"}));
+    auto* charge_opt = cmd_check->add_option("--charge", check_charge, "total charge (default: the file's, else 0)");
+    auto* mult_opt = cmd_check->add_option("--multiplicity", check_multiplicity,
+                                           "spin multiplicity (default: none; unpaired electrons are findings)")
+                         ->check(CLI::PositiveNumber);
+    cmd_check->add_flag("--json", check.json, "one JSON document, whatever the verdict");
+    cmd_check->add_option("--angle-threshold", check.angle_rms, "degrees RMS from the predicted angles at a centre")
+        ->capture_default_str();
+    cmd_check->add_option("--bond-threshold", check.bond_deviation, "Angstrom from the expected bond length")
+        ->capture_default_str();
+    cmd_check->add_option("--contact-fraction", check.contact_fraction,
+                          "closest allowed non-bonded distance, as a fraction of the van der Waals contact")
+        ->capture_default_str();
+    cmd_check->add_option("--bond-tolerance", check.tolerance,
+                          "Angstrom added to the sum of covalent radii when bonds are perceived from coordinates")
+        ->capture_default_str();
+    cmd_check->add_flag("--fix", check.fix, "write a cleaned structure (with -o): same atoms and stereochemistry, relaxed");
+    cmd_check->add_option("-o,--output", check.output_file, "where --fix writes (.xyz, .pdb, .sdf)");
+
     try {
         app.parse(argc, argv);
     } catch (const CLI::CallForHelp& e) {
@@ -72,6 +98,15 @@ int main(int argc, char** argv) {
         }
         shape.notation = notation(shape_formula, shape_smiles);
         return run_shape(shape);
+    }
+    if (cmd_check->parsed()) {
+        if (charge_opt->count() > 0) check.charge = check_charge;
+        if (mult_opt->count() > 0) check.multiplicity = check_multiplicity;
+        if (check.fix && check.output_file.empty()) {
+            std::cerr << "repel check: --fix needs -o FILE\n";
+            return 2;
+        }
+        return run_check(check);
     }
     return 2;
 }

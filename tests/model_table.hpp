@@ -46,6 +46,7 @@ inline const std::vector<Case>& training() {
         {"SF4 ax", 16, {{9, 1}, {9, 1}, {9, 1}, {9, 1}}, 1, 0, Measure::largest, 173.1, "CRC/CCCBDB, from memory"},
         {"SF4 eq", 16, {{9, 1}, {9, 1}, {9, 1}, {9, 1}}, 1, 0, Measure::second_largest, 101.6, "CRC/CCCBDB, from memory"},
         {"ClF3", 17, {{9, 1}, {9, 1}, {9, 1}}, 2, 0, Measure::smallest, 87.5, "CRC/CCCBDB, from memory"},
+        {"ClF3 ax", 17, {{9, 1}, {9, 1}, {9, 1}}, 2, 0, Measure::largest, 175.0, "2 x 87.5, CRC/CCCBDB, from memory"},
         {"BrF5", 35, {{9, 1}, {9, 1}, {9, 1}, {9, 1}, {9, 1}}, 1, 0, Measure::smallest, 84.8, "CRC/CCCBDB, from memory"},
         // Symmetric shapes fixed by symmetry: XeF4 square planar (D4h), IF7 a pentagonal bipyramid (D5h): Gillespie
         // and Hargittai 1991; the experimental structures (CRC, from memory) have these symmetries.
@@ -80,11 +81,20 @@ inline const std::vector<Case>& validation() {
 }
 
 inline double predict(const DomainModel& model, const Case& c) {
-    std::vector<SphereDomain> d;
-    for (auto [z, order] : c.ligands) d.push_back(bonding_domain(model, c.centre, z, order));
-    for (int k = 0; k < c.lone_pairs; ++k) d.push_back(lone_pair_domain(model, c.centre));
-    for (int k = 0; k < c.single_electrons; ++k) d.push_back(single_electron_domain(model, c.centre));
-    auto dirs = solve_sphere_uncached(d);
+    std::vector<SphereDomain> d, arrangement;
+    for (auto [z, order] : c.ligands) {
+        d.push_back(bonding_domain(model, c.centre, z, order));
+        arrangement.push_back(arrangement_domain(DomainKind::bond));
+    }
+    for (int k = 0; k < c.lone_pairs; ++k) {
+        d.push_back(lone_pair_domain(model, c.centre));
+        arrangement.push_back(arrangement_domain(DomainKind::lone_pair));
+    }
+    for (int k = 0; k < c.single_electrons; ++k) {
+        d.push_back(single_electron_domain(model, c.centre));
+        arrangement.push_back(arrangement_domain(DomainKind::single_electron));
+    }
+    auto dirs = solve_sphere_staged_uncached(arrangement, d);
     const size_t nl = c.ligands.size();
     auto ang = [&](size_t i, size_t j) { return std::acos(std::clamp(dirs[i].dot(dirs[j]), -1.0, 1.0)) * 180.0 / M_PI; };
     std::vector<double> all;

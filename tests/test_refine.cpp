@@ -182,8 +182,7 @@ Model difluoroethene(bool cis) {
     return m;
 }
 
-// Propyne-like H-C#C-CH2F... kept to the elements the tables are sure to hold: H-C#C-CH3 (a linear centre, a
-// staggered-free single bond next to a triple bond).
+// Propyne, H-C#C-CH3: two linear centres, and no torsion about the bonds through them.
 Model propyne() {
     Model m;
     const double r3 = bond_length(6, 6, 3), r1 = bond_length(6, 6, 1), rh = bond_length(6, 1, 1);
@@ -260,7 +259,44 @@ Model methylformamide() {
     m.molecule.add_bond(c1, h1);
     m.molecule.add_bond(n, c2);
     m.molecule.add_bond(n, hn);
-    add_tetrahedral_hydrogens(m, c2, {(m.positions[static_cast<size_t>(n)] - m.positions[static_cast<size_t>(c2)]).normalized()}, 3);
+    add_tetrahedral_hydrogens(
+        m, c2, {(m.positions[static_cast<size_t>(n)] - m.positions[static_cast<size_t>(c2)]).normalized()}, 3);
+    return m;
+}
+
+// Indole (benzene fused to pyrrole), all atoms planar, with ring-blind domain angles: 120 at every carbon, a
+// 107-degree pyramid at the NH nitrogen. Atoms 0-5 the six-ring (0 and 5 shared), 6-8 the rest of the five-ring
+// (6 the nitrogen), then the hydrogens.
+Model indole() {
+    Model m;
+    const double r = bond_length(6, 6, 1, true);
+    // Six-ring: a regular hexagon with the shared bond 0-5 vertical at x = r cos 30.
+    for (int k = 0; k < 6; ++k) {
+        const double t = (-30.0 - 60.0 * k) * kDeg;
+        m.atom(6, r * Vector3d(std::cos(t), std::sin(t), 0), 3, 120);
+    }
+    // Five-ring: a regular pentagon on the other side of the shared bond, from atom 0 round to atom 5.
+    const Vector3d p = m.positions[0], q = m.positions[5];
+    const Vector3d mid = 0.5 * (p + q);
+    const Vector3d centre5 = mid + Vector3d(r / (2 * std::tan(36 * kDeg)), 0, 0);
+    for (int k = 1; k <= 3; ++k) {
+        const double t = std::atan2(p.y() - centre5.y(), p.x() - centre5.x()) + k * 72 * kDeg;
+        const double radius = (p - centre5).norm();
+        m.atom(k == 1 ? 7 : 6, centre5 + radius * Vector3d(std::cos(t), std::sin(t), 0), k == 1 ? 4 : 3,
+               k == 1 ? 107 : 120);
+    }
+    const int ring6[6] = {0, 1, 2, 3, 4, 5}, ring5[5] = {0, 6, 7, 8, 5};
+    for (int k = 0; k < 6; ++k) m.molecule.add_bond(ring6[k], ring6[(k + 1) % 6], 1 + (k % 2), true);
+    for (int k = 0; k < 4; ++k) m.molecule.add_bond(ring5[k], ring5[k + 1], 1 + (k % 2), true);
+    const Vector3d centre6 = Vector3d::Zero();
+    for (int atom : {1, 2, 3, 4}) {
+        const Vector3d at = m.positions[static_cast<size_t>(atom)];
+        m.molecule.add_bond(atom, m.atom(1, at + 1.0 * (at - centre6).normalized(), 1, 0));
+    }
+    for (int atom : {6, 7, 8}) {
+        const Vector3d at = m.positions[static_cast<size_t>(atom)];
+        m.molecule.add_bond(atom, m.atom(1, at + 1.0 * (at - centre5).normalized(), 1, 0));
+    }
     return m;
 }
 
@@ -608,6 +644,43 @@ TEST(Refine, AmideNitrogenBecomesPlanar) {
     EXPECT_GT(sum, 359.0);
     const double omega = std::abs(torsion_degrees(m, 1, 0, 2, 4));
     EXPECT_TRUE(omega < 3.0 || omega > 177.0) << omega;
+}
+
+// The domain analysis knows no rings: a flat five-membered ring's angles become the regular pentagon's, the
+// others at its atoms share what is left of 360 degrees, and a pyrrole-type nitrogen is made planar.
+TEST(RefineTargets, RingAnglesFollowTheRing) {
+    const Model m = indole();
+    const auto t = terms_of(m);
+    auto target = [&](int a, int c, int b) {
+        for (const auto& angle : t.angles)
+            if (angle.centre == c && ((angle.i == a && angle.j == b) || (angle.i == b && angle.j == a)))
+                return std::atan2(angle.sin0, angle.cos0) / kDeg;
+        return -1.0;
+    };
+    EXPECT_NEAR(target(0, 6, 7), 108.0, 1e-9);  // at the nitrogen
+    EXPECT_NEAR(target(6, 7, 8), 108.0, 1e-9);
+    EXPECT_NEAR(target(6, 0, 5), 108.0, 1e-9);   // at the fusion atom, in the five-ring
+    EXPECT_NEAR(target(1, 0, 5), 120.0, 1e-9);   // in the six-ring
+    EXPECT_NEAR(target(1, 0, 6), 132.0, 1e-9);   // what is left of 360
+    EXPECT_NEAR(target(0, 6, 13), 126.0, 1e-9);  // N-H shares 360 - 108
+}
+
+// In a fused system the ring-blind angles could only be met by squeezing the shared bond (a pentagon with a short
+// side has wider angles at its ends); with the ring's angles every bond keeps its length.
+TEST(Refine, FusedRingsKeepTheirBonds) {
+    Model m = indole();
+    perturb(m, 0.1, 27);
+    const RefineResult r = m.refine();
+    EXPECT_TRUE(r.converged) << r.message;
+    for (const Bond& b : m.molecule.bonds) {
+        const double target = bond_length(m.molecule.atoms[static_cast<size_t>(b.a)].z,
+                                          m.molecule.atoms[static_cast<size_t>(b.b)].z, b.order, b.aromatic);
+        EXPECT_NEAR((m.positions[static_cast<size_t>(b.a)] - m.positions[static_cast<size_t>(b.b)]).norm(), target,
+                    0.01)
+            << "bond " << b.a + 1 << "-" << b.b + 1;
+    }
+    const double sum = angle_degrees(m, 0, 6, 7) + angle_degrees(m, 0, 6, 13) + angle_degrees(m, 7, 6, 13);
+    EXPECT_GT(sum, 359.5);
 }
 
 TEST(Refine, DoubleBondBuiltOnTheWrongSideIsReported) {

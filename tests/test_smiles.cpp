@@ -652,9 +652,7 @@ TEST(SmilesRead, DeepNestingAndLongChainsDoNotRecurse) {
 }
 
 namespace {
-namespace {
 std::string ring_label(int r) { return r < 10 ? std::to_string(r) : "%" + std::to_string(r); }
-}  // namespace
 }  // namespace
 
 TEST(SmilesRead, LargeAromaticSystemsKekulize) {

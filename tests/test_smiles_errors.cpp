@@ -126,7 +126,7 @@ const std::vector<BadCase> kBad = {
     // aromatic systems that cannot be kekulized
     {"c1cccc1", 6, "left without a double bond"},
     {"c1ccnc1", 6, "left without a double bond"},
-    {"c1ccc[nH]c1", 10, "left without a double bond"},
+    {"c1ccc[nH]c1", 5, "left without a double bond"},
     {"c1cc[o]cc1", 4, "left without a double bond"},
     {"c1ccccc1c", 9, "double bond"},
     {"c", 1, "no aromatic ring"},

@@ -93,3 +93,24 @@ TEST(Sphere, RejectsBadArguments) {
     std::vector<SphereDomain> neg = {{-1, 1, 1}, {1, 1, 1}};
     EXPECT_THROW(solve_sphere(neg), std::invalid_argument);
 }
+
+// The staged solve: a model whose own global minimum is wrong (one sphere: AX4E2 lone pairs cis) keeps the
+// arrangement stage's sites (lone pairs trans) and only relaxes locally from them.
+TEST(Sphere, StagedSolveKeepsTheArrangementSites) {
+    std::vector<SphereDomain> arrangement = {{1, 1, 2}, {1, 1, 2}, {1, 1, 2}, {1, 1, 2}, {1, 0.7, 2}, {1, 0.7, 2}};
+    std::vector<SphereDomain> one_sphere = {{1, 1, 2}, {1, 1, 2}, {1, 1, 2}, {1, 1, 2}, {1.5, 1.0, 2}, {1.5, 1.0, 2}};
+    auto dirs = solve_sphere_staged_uncached(arrangement, one_sphere);
+    EXPECT_NEAR(angle_deg(dirs[4], dirs[5]), 180.0, 0.5);
+    auto cached = solve_sphere_staged(arrangement, one_sphere);
+    for (size_t i = 0; i < dirs.size(); ++i) EXPECT_EQ(dirs[i], cached[i]);
+}
+
+// Within one arrangement kind, the domains take the sites that suit them best: in a trigonal bipyramid of two kinds
+// of bonding domain, the smaller domains take the axial sites (three neighbours at 90 degrees rather than two), as
+// VSEPR predicts for electronegative ligands (Gillespie and Hargittai 1991).
+TEST(Sphere, SmallerDomainsTakeTheAxialSitesOfATrigonalBipyramid) {
+    std::vector<SphereDomain> arrangement(5, SphereDomain{1, 1, 2});
+    std::vector<SphereDomain> d = {{1.3, 1, 2}, {0.7, 1, 2}, {1.3, 1, 2}, {0.7, 1, 2}, {1.3, 1, 2}};
+    auto dirs = solve_sphere_staged_uncached(arrangement, d);
+    EXPECT_NEAR(angle_deg(dirs[1], dirs[3]), 180.0, 2.0);  // the two small ones trans: axial
+}

@@ -205,10 +205,8 @@ private:
         }
         auto positions = [&](const std::vector<Vector3d>& dirs) {
             std::vector<Vector3d> xs;
-            const auto& nb = m_.neighbors(centre);
             for (size_t i = 0; i < free_atoms.size(); ++i)
                 xs.push_back(origin + dirs[at(neighbor_index(m_, centre, free_atoms[i]))] * free_lengths[i]);
-            (void)nb;
             return xs;
         };
         return clash_score(free_atoms, positions(mirrored)) < clash_score(free_atoms, positions(plain)) ? mirrored

@@ -84,7 +84,17 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options)
     for (int i = 0; i < n; ++i)
         s.molecule.atoms[static_cast<size_t>(i)].radical_electrons = domains.atoms[static_cast<size_t>(i)].single_electrons;
 
-    const auto chiral = chiral_targets(molecule, s.warnings);
+    std::vector<ChiralTarget> chiral;
+    for (const ChiralTarget& t : chiral_targets(molecule, s.warnings)) {
+        const CentreDomains& c = domains.atoms[static_cast<size_t>(t.centre)];
+        // Three neighbours and no lone pair: a planar centre (a carbocation, a borane) has no handedness.
+        if (c.bonded == 3 && c.lone_pairs + c.single_electrons == 0)
+            s.warnings.push_back(fmt::format("stereo mark on atom {} not applied: the centre is planar (three "
+                                             "neighbours, no lone pair)",
+                                             t.centre + 1));
+        else
+            chiral.push_back(t);
+    }
     const auto double_bonds = double_bond_targets(molecule);
 
     const RingInfo rings = perceive_rings(molecule);
@@ -99,9 +109,10 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options)
                 "angles; check the geometry with a quantum-chemistry optimisation",
                 atoms.front() + 1, atoms.back() + 1, atoms.size(), e.worst_angle_strain));
         if (!e.satisfied)
-            s.warnings.push_back(fmt::format("ring system (atoms {}..{}) could not be embedded without strain or "
-                                             "violated constraints",
-                                             atoms.front() + 1, atoms.back() + 1));
+            s.warnings.push_back(fmt::format("ring system (atoms {}..{}, {} atoms) could not be given its ideal ring "
+                                             "geometry (bond, angle or torsion targets missed); check it with a "
+                                             "quantum-chemistry optimisation",
+                                             atoms.front() + 1, atoms.back() + 1, atoms.size()));
         ring_xyz.push_back(std::move(e.coordinates));
     }
 

@@ -5,8 +5,6 @@
 #include <cmath>
 #include <cstdint>
 #include <limits>
-#include <cstdio>
-#include <cstdlib>
 
 namespace repel {
 
@@ -150,7 +148,6 @@ double error_function(const Problem& p, const double* x, double* g) {
     return e;
 }
 
-int g_evaluations = 0;
 
 Problem make_problem(const DistanceBounds& b, const std::vector<VolumeCondition>& volumes,
                      const std::vector<TorsionCondition>& torsions) {
@@ -169,15 +166,18 @@ Problem make_problem(const DistanceBounds& b, const std::vector<VolumeCondition>
 // A small L-BFGS (Liu and Nocedal, Math. Program. 45 (1989) 503) with a backtracking line search (Armijo
 // condition): the problems here have a few dozen variables, where a general library's bookkeeping costs more than
 // the function. Returns the final error; x is updated in place.
-double minimise_lbfgs(const Problem& p, Eigen::VectorXd& x, int max_evaluations) {
+double minimise_lbfgs(const Problem& p, Eigen::VectorXd& x, int max_evaluations, bool planar) {
     constexpr int kMemory = 6;
     constexpr double kArmijo = 1e-4;
+    constexpr double kStall = 1e-4;  // stop when an iteration gains less than this fraction of the error
     const Eigen::Index n = x.size();
     Eigen::VectorXd g(n), g_new(n), x_new(n), d(n);
     auto eval = [&](const Eigen::VectorXd& at, Eigen::VectorXd& grad) {
         grad.setZero();
-        ++g_evaluations;
-        return error_function(p, at.data(), grad.data());
+        const double value = error_function(p, at.data(), grad.data());
+        if (planar)
+            for (Eigen::Index i = 2; i < grad.size(); i += 3) grad(i) = 0;  // stay in the plane z = 0
+        return value;
     };
     double f = eval(x, g);
     int evaluations = 1;
@@ -237,7 +237,7 @@ double minimise_lbfgs(const Problem& p, Eigen::VectorXd& x, int max_evaluations)
             rho.push_back(1.0 / sy);
         }
         // Stop when progress stalls: a strained system keeps a residual.
-        if (previous - f < (std::getenv("STALL") ? std::atof(std::getenv("STALL")) : 1e-4) * f) break;
+        if (previous - f < kStall * f) break;
     }
     return f;
 }
@@ -265,8 +265,21 @@ EmbedResult evaluate(const DistanceBounds& b, const std::vector<VolumeCondition>
     return r;
 }
 
+// The points in their best plane, as z = 0.
+std::vector<Vector3d> flatten(const std::vector<Vector3d>& xyz) {
+    Vector3d c = Vector3d::Zero();
+    for (const auto& p : xyz) c += p;
+    c /= static_cast<double>(xyz.size());
+    Eigen::Matrix3d cov = Eigen::Matrix3d::Zero();
+    for (const auto& p : xyz) cov += (p - c) * (p - c).transpose();
+    Eigen::SelfAdjointEigenSolver<Eigen::Matrix3d> es(cov);
+    std::vector<Vector3d> out;
+    for (const auto& p : xyz) out.emplace_back((p - c).dot(es.eigenvectors().col(2)), (p - c).dot(es.eigenvectors().col(1)), 0.0);
+    return out;
+}
+
 // Metric-matrix embedding of one set of trial distances.
-std::vector<Vector3d> metric_embedding(const Eigen::MatrixXd& d2) {
+std::vector<Vector3d> metric_embedding(const Eigen::MatrixXd& d2, int dimensions) {
     const int n = static_cast<int>(d2.rows());
     const double total = d2.sum() / (2.0 * n * n);
     Eigen::VectorXd d0(n);
@@ -276,7 +289,7 @@ std::vector<Vector3d> metric_embedding(const Eigen::MatrixXd& d2) {
         for (int j = 0; j < n; ++j) g(i, j) = 0.5 * (d0(i) + d0(j) - d2(i, j));
     Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(g);
     std::vector<Vector3d> xyz(static_cast<size_t>(n), Vector3d::Zero());
-    for (int k = 0; k < std::min(3, n); ++k) {
+    for (int k = 0; k < std::min(dimensions, n); ++k) {
         const int col = n - 1 - k;
         const double lambda = std::sqrt(std::max(es.eigenvalues()(col), 1e-6));
         for (int i = 0; i < n; ++i) xyz[static_cast<size_t>(i)][k] = lambda * es.eigenvectors()(i, col);
@@ -328,26 +341,13 @@ double distance_geometry_error(const DistanceBounds& bounds, const std::vector<V
 
 EmbedResult refine_points(const DistanceBounds& bounds, const std::vector<VolumeCondition>& volumes,
                           const std::vector<TorsionCondition>& torsions, std::vector<Vector3d> coordinates,
-                          int max_evaluations) {
+                          int max_evaluations, bool planar) {
     const Problem p = make_problem(bounds, volumes, torsions);
     const size_t dim = 3 * coordinates.size();
     Eigen::VectorXd x(static_cast<Eigen::Index>(dim));
     for (size_t i = 0; i < coordinates.size(); ++i)
         for (int k = 0; k < 3; ++k) x(static_cast<Eigen::Index>(3 * i) + k) = coordinates[i][k];
-    if (std::getenv("REPEL_DG_GRADCHECK")) {
-        std::vector<double> g(dim), gp(dim);
-        error_function(p, x.data(), g.data());
-        double worst = 0; size_t wi = 0;
-        for (size_t i = 0; i < dim; ++i) {
-            Eigen::VectorXd xp = x, xm = x;
-            xp(i) += 1e-6; xm(i) -= 1e-6;
-            std::fill(gp.begin(), gp.end(), 0.0);
-            const double num = (error_function(p, xp.data(), nullptr) - error_function(p, xm.data(), nullptr)) / 2e-6;
-            if (std::abs(num - g[i]) > worst) { worst = std::abs(num - g[i]); wi = i; }
-        }
-        std::fprintf(stderr, "gradcheck: worst %g at %zu (f=%g)\n", worst, wi, error_function(p, x.data(), nullptr));
-    }
-    const double e = minimise_lbfgs(p, x, max_evaluations);
+    const double e = minimise_lbfgs(p, x, max_evaluations, planar);
     for (size_t i = 0; i < coordinates.size(); ++i)
         coordinates[i] = x.segment<3>(static_cast<Eigen::Index>(3 * i));
     return evaluate(bounds, volumes, torsions, std::move(coordinates), e);
@@ -355,10 +355,10 @@ EmbedResult refine_points(const DistanceBounds& bounds, const std::vector<Volume
 
 EmbedResult embed_points(DistanceBounds bounds, const std::vector<VolumeCondition>& volumes,
                          const std::vector<TorsionCondition>& torsions, int attempts, double tolerance,
-                         const std::vector<Vector3d>& start) {
+                         const std::vector<Vector3d>& start, bool planar) {
     bounds.smooth();
     const int n = bounds.size();
-    const int kEvaluations = std::getenv("EVALS") ? std::atoi(std::getenv("EVALS")) : 300;
+    constexpr int kEvaluations = 300;
     constexpr double kAcceptedTorsion = 5 * M_PI / 180;  // a torsion range missed by up to 5 degrees is accepted
     constexpr double kFairViolation = 0.3;               // Angstrom: what a strained fused ring may leave
     EmbedResult best;
@@ -372,6 +372,7 @@ EmbedResult embed_points(DistanceBounds bounds, const std::vector<VolumeConditio
         if (attempt < 0) {
             if (start.empty()) continue;
             xyz = start;
+            if (planar) xyz = flatten(xyz);
         } else {
             Lcg rng{0x9E3779B97F4A7C15ULL ^ static_cast<std::uint64_t>(attempt + 1) * 0xBF58476D1CE4E5B9ULL};
             Eigen::MatrixXd d2 = Eigen::MatrixXd::Zero(n, n);
@@ -381,7 +382,7 @@ EmbedResult embed_points(DistanceBounds bounds, const std::vector<VolumeConditio
                     const double d = lo + rng.next() * (hi - lo);
                     d2(i, j) = d2(j, i) = d * d;
                 }
-            xyz = metric_embedding(d2);
+            xyz = metric_embedding(d2, planar ? 2 : 3);
             // Take the mirror image when it meets more of the chirality conditions.
             std::vector<double> flat(3 * xyz.size());
             for (size_t i = 0; i < xyz.size(); ++i)
@@ -395,8 +396,7 @@ EmbedResult embed_points(DistanceBounds bounds, const std::vector<VolumeConditio
             if (wrong > met)
                 for (auto& p : xyz) p.x() = -p.x();
         }
-        EmbedResult r = refine_points(bounds, volumes, torsions, std::move(xyz), kEvaluations);
-        if (std::getenv("REPEL_DG_DEBUG")) std::fprintf(stderr, "attempt %d: error %g violation %g volumes %d evaluations %d\n", attempt, r.error, r.worst_violation, (int)r.volumes_met, g_evaluations);
+        EmbedResult r = refine_points(bounds, volumes, torsions, std::move(xyz), kEvaluations, planar);
         if (!have || better(r, best)) {
             best = std::move(r);
             have = true;

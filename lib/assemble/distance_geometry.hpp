@@ -46,15 +46,16 @@ struct EmbedResult {
 
 // Embeds the points: `attempts` deterministic tries (pseudo-random distances between the smoothed bounds, metric
 // matrix, refinement), stopping at the first that meets every bound within `tolerance` and every volume sign; else
-// the best. `start`, when not empty, is tried first instead of a metric-matrix embedding.
+// the best. `start`, when not empty, is tried first instead of a metric-matrix embedding. `planar` embeds and refines
+// in the plane z = 0 (flat ring systems: there cis and trans are distances, and nothing can fold the wrong way).
 EmbedResult embed_points(DistanceBounds bounds, const std::vector<VolumeCondition>& volumes,
                          const std::vector<TorsionCondition>& torsions, int attempts, double tolerance,
-                         const std::vector<Eigen::Vector3d>& start = {});
+                         const std::vector<Eigen::Vector3d>& start = {}, bool planar = false);
 
 // Refines coordinates against the bounds and volumes (the same error function as embed_points).
 EmbedResult refine_points(const DistanceBounds& bounds, const std::vector<VolumeCondition>& volumes,
                           const std::vector<TorsionCondition>& torsions, std::vector<Eigen::Vector3d> coordinates,
-                          int max_evaluations);
+                          int max_evaluations, bool planar = false);
 
 // The error function and its gradient (g may be null) at flat coordinates x (3 per point); for tests.
 double distance_geometry_error(const DistanceBounds& bounds, const std::vector<VolumeCondition>& volumes,

@@ -4,8 +4,6 @@
 #include <algorithm>
 #include <cmath>
 #include <unordered_map>
-#include <cstdio>
-#include <cstdlib>
 
 #include "assemble/distance_geometry.hpp"
 #include "assemble/place.hpp"
@@ -37,6 +35,7 @@ constexpr double kBondTolerance = 0.01;        // Angstrom
 constexpr double kRingAngleTolerance = 3;      // degrees
 constexpr double kFrameAngleTolerance = 5;     // degrees
 constexpr double kPlanarTorsionTolerance = 8;  // degrees
+constexpr double kLargeFlatRingTolerance = 8;  // degrees, frame angles in flat rings beyond kLargestPolygonRing
 // Non-bonded atoms of a ring system more than three bonds apart stay at least this fraction of their van der Waals
 // sum apart (common practice; lets the para atoms of a benzene ring, 2.8 A, stay where they are).
 constexpr double kFarFraction = 0.7;
@@ -190,7 +189,7 @@ private:
     // Ring systems without handedness of their own may be taken as their mirror image (for a chair: the other
     // chair); take the one that puts the substituents of stereocentres equatorial.
     void prefer_equatorial(std::vector<Vector3d>& x) const {
-        for (const VolumeCondition& v : volume_conditions({}))
+        for (const VolumeCondition& v : volume_conditions())
             if (v.sign != 0) return;
         auto mirrored = x;
         for (auto& p : mirrored) p.x() = -p.x();
@@ -293,6 +292,8 @@ private:
         }
         double theta = frame_angle(i, j, k);
         if (r.size == 5) theta = std::min(theta, 106 * kDeg);  // five-membered rings close their sp3 angles a little
+        // In a large flat ring (a porphyrin's inner ring) the angles give way more than elsewhere.
+        if (r.size > kLargestPolygonRing && r.flat) return {theta, kLargeFlatRingTolerance * kDeg};
         return {theta, kFrameAngleTolerance * kDeg};
     }
 
@@ -337,9 +338,7 @@ private:
             local_.count(b.ref_b)) {
             const int ja = local_.at(b.a) == j ? j : k;
             const int ra = local_.at(b.ref_a), rb = local_.at(b.ref_b);
-            const int ka = ja == j ? k : j;
             const int ref_j = ja == j ? ra : rb, ref_k = ja == j ? rb : ra;
-            (void)ka;
             const int relation = (b.stereo == BondStereo::cis ? 1 : -1) * side(j, k, ref_j) * side(k, j, ref_k);
             return relation * side(j, k, i) * side(k, j, l);
         }
@@ -350,7 +349,9 @@ private:
             for (int c : nbrs_[at(k)]) {
                 if (c == j || c == a) continue;
                 const RingNote r = lookup4(a, j, k, c);
-                if (r.size == 0) continue;
+                // A large flat ring may zigzag (a porphyrin's inner ring turns back at each nitrogen): running
+                // through it says nothing about cis or trans.
+                if (r.size == 0 || (r.flat && r.size > kLargestPolygonRing)) continue;
                 const bool ring_cis = r.size <= kLargestCisOnlyRing || r.flat || b.aromatic;
                 const int relation = (ring_cis ? 1 : -1) * side(j, k, a) * side(k, j, c);
                 return relation * side(j, k, i) * side(k, j, l);
@@ -360,8 +361,7 @@ private:
     }
 
     // Signed-volume conditions: the written stereocentres of the system, and planarity of planar fusion atoms.
-    std::vector<VolumeCondition> volume_conditions(const std::vector<Vector3d>& ideal_unused) const {
-        (void)ideal_unused;
+    std::vector<VolumeCondition> volume_conditions() const {
         std::vector<VolumeCondition> out;
         for (const ChiralTarget& t : chiral_) {
             auto it = local_.find(t.centre);
@@ -448,8 +448,16 @@ private:
                         if (lo > 0 || hi < M_PI) torsions.push_back({i, j, k, l, lo, hi});
                         if (close[at(i)][at(l)] == 2) continue;
                         const double b1 = bond_len(i, j), b2 = bond_len(j, k), b3 = bond_len(k, l);
-                        const double t1 = target_angle(i, j, k).first, t2 = target_angle(j, k, l).first;
-                        bounds.narrow(i, l, distance14(b1, b2, b3, t1, t2, lo), distance14(b1, b2, b3, t1, t2, hi));
+                        const auto [t1, tol1] = target_angle(i, j, k);
+                        const auto [t2, tol2] = target_angle(j, k, l);
+                        // The distance range over the corners of the two angle ranges.
+                        double dlo = 1e9, dhi = 0;
+                        for (double s1 : {-1.0, 1.0})
+                            for (double s2 : {-1.0, 1.0}) {
+                                dlo = std::min(dlo, distance14(b1, b2, b3, t1 + s1 * tol1, t2 + s2 * tol2, lo));
+                                dhi = std::max(dhi, distance14(b1, b2, b3, t1 + s1 * tol1, t2 + s2 * tol2, hi));
+                            }
+                        bounds.narrow(i, l, dlo, dhi);
                         close[at(i)][at(l)] = close[at(l)][at(i)] = 3;
                     }
                 }
@@ -461,12 +469,15 @@ private:
                     const double sum = element(m_.atoms[at(atom(a))].z).r_vdw + element(m_.atoms[at(atom(b))].z).r_vdw;
                     bounds.narrow(a, b, kFarFraction * sum, 1e6);
                 }
-        const auto volumes = volume_conditions({});
+        const auto volumes = volume_conditions();
         bounds.smooth();
         // The first try starts from ring templates fused one ring at a time (chairs stay chairs, aromatic systems
         // start flat, macrocycles start as an open crown and cannot come out knotted); then metric-matrix embeddings.
         const std::vector<Vector3d> start = fused_start(bounds, torsions, volumes);
-        const EmbedResult e = embed_points(bounds, volumes, torsions, kAttempts, kAcceptedViolation, start);
+        bool flat = true;
+        for (size_t a = 0; a < atoms_.size(); ++a) flat = flat && planar_[a] && !curved_[a];
+        const EmbedResult e = flat ? embed_points(bounds, {}, {}, kAttempts, kAcceptedViolation, start, true)
+                                   : embed_points(bounds, volumes, torsions, kAttempts, kAcceptedViolation, start);
         RingSystemEmbedding out;
         out.coordinates = e.coordinates;
         out.satisfied = e.volumes_met && e.worst_violation < 0.3 && e.worst_torsion < 20 * kDeg;
@@ -477,13 +488,9 @@ private:
 
     // Template coordinates of one ring, by position in the ring: chair, envelope, polygon, or a crown for larger rings.
     std::vector<Vector3d> ring_template(const std::vector<int>& ring) const {
-        bool all_planar = true, all_sp3 = true;
-        for (int a : ring) {
-            all_planar = all_planar && planar_[at(a)];
-            all_sp3 = all_sp3 && !planar_[at(a)] && d_.atoms[at(atom(a))].steric_number == 4;
-        }
+        bool all_planar = true;
+        for (int a : ring) all_planar = all_planar && planar_[at(a)];
         RingSystemEmbedding e;
-        (void)all_sp3;
         // Any ring with an sp3 atom starts puckered: the refinement flattens what must be flat (a half-chair from a
         // chair), but cannot pucker a flat start the right way.
         if (ring.size() == 6 && !all_planar) e = chair(ring);
@@ -537,18 +544,102 @@ private:
         return score;
     }
 
+    // Points on a circular arc from a to b (both excluded), `count` of them, consecutive points `bond` apart, in the
+    // plane of a, b and `away`, bulging towards `away`.
+    static std::vector<Vector3d> arc(const Vector3d& a, const Vector3d& b, int count, double bond, const Vector3d& away) {
+        const double chord = (b - a).norm();
+        const Vector3d u = (b - a) / std::max(chord, 1e-9);
+        Vector3d w = away - away.dot(u) * u;
+        w = w.norm() > 1e-9 ? w.normalized() : any_perpendicular(u);
+        std::vector<Vector3d> out;
+        if ((count + 1) * bond <= chord * 1.0001) {  // stretched: a straight line
+            for (int k = 1; k <= count; ++k) out.push_back(a + (b - a) * k / (count + 1.0));
+            return out;
+        }
+        // Step angle delta: 2 r sin((count+1) delta / 2) = chord with r = bond / (2 sin(delta / 2)).
+        double lo = 1e-9, hi = 2 * M_PI / (count + 1);
+        for (int it = 0; it < 60; ++it) {
+            const double mid = 0.5 * (lo + hi);
+            const double r = bond / (2 * std::sin(mid / 2));
+            (2 * r * std::sin((count + 1) * mid / 2) - chord > 0 ? lo : hi) = mid;
+        }
+        const double delta = 0.5 * (lo + hi), r = bond / (2 * std::sin(delta / 2));
+        const double total = (count + 1) * delta;
+        const double h = std::sqrt(std::max(0.0, r * r - chord * chord / 4)) * (total > M_PI ? 1 : -1);
+        const Vector3d centre = 0.5 * (a + b) + h * w;
+        const Vector3d e1 = (a - centre) / r;
+        Vector3d e2 = w - w.dot(e1) * e1;
+        e2 = e2.norm() > 1e-9 ? e2.normalized() : u;
+        // Turn from a towards b through the `away` side.
+        for (int k = 1; k <= count; ++k) out.push_back(centre + r * (std::cos(k * delta) * e1 + std::sin(k * delta) * e2));
+        return out;
+    }
+
+    // The fresh atoms of a ring laid on arcs between the placed atoms that bound them, away from what is placed
+    // around those atoms. Empty when a stretch of fresh atoms is not bounded by placed atoms on both sides.
+    std::vector<Vector3d> arc_candidate(const std::vector<int>& ring, const std::vector<char>& placed,
+                                        const std::vector<Vector3d>& x) const {
+        const int size = static_cast<int>(ring.size());
+        std::vector<Vector3d> by_pos(at(size));
+        int start = -1;
+        for (int s = 0; s < size; ++s)
+            if (placed[at(ring[at(s)])] && !placed[at(ring[at((s + 1) % size)])]) {
+                start = s;
+                break;
+            }
+        if (start < 0) return {};
+        for (int s = start, done = 0; done < size;) {
+            // From placed position s, run over the fresh stretch to the next placed position e.
+            int e = (s + 1) % size, count = 0;
+            while (!placed[at(ring[at(e)])]) {
+                e = (e + 1) % size;
+                ++count;
+            }
+            if (count > 0) {
+                const int a = ring[at(s)], b = ring[at(e)];
+                Vector3d centre = Vector3d::Zero();
+                int nc = 0;
+                for (int end : {a, b})
+                    for (int nb : nbrs_[at(end)])
+                        if (placed[at(nb)] && std::find(ring.begin(), ring.end(), nb) == ring.end()) {
+                            centre += x[at(nb)];
+                            ++nc;
+                        }
+                if (nc == 0)  // nothing around: bulge away from the other placed ring atoms
+                    for (int q : ring)
+                        if (placed[at(q)] && q != a && q != b) {
+                            centre += x[at(q)];
+                            ++nc;
+                        }
+                const Vector3d mid = 0.5 * (x[at(a)] + x[at(b)]);
+                const Vector3d away = nc ? Vector3d(mid - centre / nc) : Vector3d(any_perpendicular((x[at(b)] - x[at(a)]).normalized()));
+                const double bond = mean_ring_bond(ring);
+                const auto pts = arc(x[at(a)], x[at(b)], count, bond, away);
+                for (int k = 0; k < count; ++k) by_pos[at((s + 1 + k) % size)] = pts[at(k)];
+            }
+            done += count + 1;
+            s = e;
+        }
+        std::vector<Vector3d> out;
+        for (int s = 0; s < size; ++s)
+            if (!placed[at(ring[at(s)])]) out.push_back(by_pos[at(s)]);
+        return out;
+    }
+
     std::vector<Vector3d> fused_start(const DistanceBounds& b, const std::vector<TorsionCondition>& torsions,
                                       const std::vector<VolumeCondition>& volumes) const {
         const size_t n = atoms_.size();
         std::vector<Vector3d> x(n, Vector3d::Zero());
         std::vector<char> placed(n, 0), ring_done(rings_local_.size(), 0);
         {
-            const auto t = ring_template(rings_local_[0]);
+            // The first (smallest) ring from its template; the others fuse on in order of atoms shared.
+            const size_t first = 0;
+            const auto t = ring_template(rings_local_[first]);
             for (size_t s = 0; s < t.size(); ++s) {
-                x[at(rings_local_[0][s])] = t[s];
-                placed[at(rings_local_[0][s])] = 1;
+                x[at(rings_local_[first][s])] = t[s];
+                placed[at(rings_local_[first][s])] = 1;
             }
-            ring_done[0] = 1;
+            ring_done[first] = 1;
         }
         for (size_t step = 1; step < rings_local_.size(); ++step) {
             int next = -1, best_shared = 0;
@@ -577,8 +668,9 @@ private:
             double best_score = 0;
             for (int mirror = 0; mirror < 2; ++mirror) {
                 auto t = ring_template(ring);
+                // The mirror image (x -> -x: within the plane for a flat template, the other chair for a chair).
                 if (mirror)
-                    for (auto& v : t) v.z() = -v.z();
+                    for (auto& v : t) v.x() = -v.x();
                 std::vector<std::vector<Vector3d>> candidates;
                 auto transform = [&](const Matrix3 & r, const Vector3d& from, const Vector3d& to) {
                     std::vector<Vector3d> y;
@@ -624,6 +716,10 @@ private:
                     constexpr int kSteps = 24;
                     for (int k = 0; k < kSteps; ++k)
                         transform(Eigen::AngleAxisd(2 * M_PI * k / kSteps, axis_x).toRotationMatrix() * r0, from, to);
+                }
+                if (mirror == 0 && shared_pos.size() >= 2) {
+                    auto y = arc_candidate(ring, placed, x);
+                    if (!y.empty()) candidates.push_back(std::move(y));
                 }
                 for (const auto& y : candidates) {
                     const double score = fit_score(b, torsions, volumes, x, placed, fresh, y);

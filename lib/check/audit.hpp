@@ -34,6 +34,7 @@ struct AuditOptions {
     PerceptionOptions perception;
     std::optional<int> charge;        // --charge (else the file's, else 0)
     std::optional<int> multiplicity;  // --multiplicity (else the file's, else none: unpaired electrons are findings)
+    std::string reference_smiles;     // --smiles: the molecule the structure is meant to be (empty: none)
 };
 
 struct Audit {
@@ -48,6 +49,7 @@ struct Audit {
     std::vector<std::string> notes; // facts for the user that are not findings (assigned charges, ground states)
 };
 
+// Throws InputError when options.reference_smiles does not read.
 Audit audit_structure(const ReadStructure& input, const AuditOptions& options = {});
 
 }  // namespace repel

@@ -74,11 +74,13 @@ public:
         const int n = m.atom_count();
         adj_.assign(static_cast<size_t>(n), {});
         pref_.assign(m.bonds.size(), 1.0);
+        length_.assign(m.bonds.size(), 0.0);
         for (int e = 0; e < m.bond_count(); ++e) {
             if (!free_[static_cast<size_t>(e)]) continue;
             const Bond& b = m.bonds[static_cast<size_t>(e)];
             const double single = bond_length(m.atoms[static_cast<size_t>(b.a)].z, m.atoms[static_cast<size_t>(b.b)].z, 1);
-            pref_[static_cast<size_t>(e)] = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm() / single;
+            length_[static_cast<size_t>(e)] = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm();
+            pref_[static_cast<size_t>(e)] = length_[static_cast<size_t>(e)] / single;
         }
         for (int i = 0; i < n; ++i) {
             for (const Neighbor& nb : m.neighbors(i))
@@ -113,14 +115,46 @@ public:
             const std::vector<int> saved_rem = rem_;
             const std::vector<int> saved_x = x_;
             nodes_ = 0;
+            // Each search step scans the component: cap the steps so that the work stays near kWork per component.
+            limit_ = std::clamp<long>(kWork / static_cast<long>(atoms.size()), 2000, kNodeLimit);
             long sum = 0;
             for (int a : atoms) sum += rem_[static_cast<size_t>(a)];
             // Each extra order serves two atoms: an odd total cannot be matched perfectly.
-            if (sum % 2 != 0 || !perfect(atoms)) {
+            if (sum % 2 == 0 && perfect(atoms)) continue;
+            // No perfect matching: one atom keeps an unpaired electron. Which one is decided by the bond lengths:
+            // the Lewis structure whose orders fit the measured lengths best (the CH2 of CH2-C#N, not its N).
+            std::vector<int> candidates;
+            for (int a : atoms)
+                if (saved_rem[static_cast<size_t>(a)] > 0) candidates.push_back(a);
+            std::stable_sort(candidates.begin(), candidates.end(), [&](int a, int b) {
+                return saved_rem[static_cast<size_t>(a)] > saved_rem[static_cast<size_t>(b)];
+            });
+            const size_t max_candidates = atoms.size() > 500 ? 3 : kMaxCandidates;
+            if (candidates.size() > max_candidates) candidates.resize(max_candidates);
+            double best_fit = 1e300;
+            std::vector<int> best_rem, best_x;
+            for (int c : candidates) {
                 rem_ = saved_rem;
                 x_ = saved_x;
-                greedy(atoms);
+                rem_[static_cast<size_t>(c)] -= 1;
+                nodes_ = limit_ - std::min(limit_, kCandidateNodes);
+                if (!perfect(atoms)) continue;
+                const double fit = misfit(atoms);
+                if (fit < best_fit - kFitTie) {
+                    best_fit = fit;
+                    best_rem = rem_;
+                    best_rem[static_cast<size_t>(c)] += 1;  // the electron it keeps
+                    best_x = x_;
+                }
             }
+            if (!best_rem.empty()) {
+                rem_ = best_rem;
+                x_ = best_x;
+                continue;
+            }
+            rem_ = saved_rem;
+            x_ = saved_x;
+            greedy(atoms);
         }
         left = rem_;
         return x_;
@@ -147,7 +181,7 @@ private:
 
     // Depth-first search for a perfect assignment, most constrained atom first (forced choices cost nothing).
     bool perfect(const std::vector<int>& atoms) {
-        if (++nodes_ > kNodeLimit) return false;
+        if (++nodes_ > limit_) return false;
         int best = -1, best_count = 1 << 30;
         for (int a : atoms) {
             if (rem_[static_cast<size_t>(a)] <= 0) continue;
@@ -166,7 +200,7 @@ private:
             step(best, nb, +1);
             if (perfect(atoms)) return true;
             step(best, nb, -1);
-            if (nodes_ > kNodeLimit) return false;
+            if (nodes_ > limit_) return false;
         }
         return false;
     }
@@ -197,7 +231,27 @@ private:
         rem_[static_cast<size_t>(nb.atom)] -= d;
     }
 
-    static constexpr long kNodeLimit = 50000;  // search steps per component before the greedy fallback
+    // Sum over the free bonds of the component of |measured - expected length| for the current orders.
+    double misfit(const std::vector<int>& atoms) const {
+        double sum = 0;
+        for (int a : atoms)
+            for (const Neighbor& nb : adj_[static_cast<size_t>(a)]) {
+                if (nb.atom < a) continue;
+                const Bond& b = m_.bonds[static_cast<size_t>(nb.bond)];
+                const int order = std::min(3, b.order + x_[static_cast<size_t>(nb.bond)]);
+                const double expected = bond_length(m_.atoms[static_cast<size_t>(b.a)].z, m_.atoms[static_cast<size_t>(b.b)].z, order);
+                sum += std::fabs(length_[static_cast<size_t>(nb.bond)] - expected);
+            }
+        return sum;
+    }
+
+    static constexpr long kNodeLimit = 50000;
+    static constexpr long kWork = 50'000'000;     // atom visits per component search
+    long limit_ = kNodeLimit;
+    static constexpr double kFitTie = 0.01;        // Angstrom: closer fits are a tie, won by the most unsaturated site
+    static constexpr size_t kMaxCandidates = 40;   // radical sites tried per component
+    static constexpr long kCandidateNodes = 5000;  // search steps per tried site
+    std::vector<double> length_;  // search steps per component before the greedy fallback
     const Molecule& m_;
     const std::vector<char>& free_;
     std::vector<std::vector<Neighbor>> adj_;
@@ -244,7 +298,9 @@ std::vector<Overlap> perceive_bonds(Molecule& m, const std::vector<Eigen::Vector
                         const double r = ri + element(m.atoms[static_cast<size_t>(j)].z).r_perception;
                         if (d > r + options.tolerance) continue;
                         if (d < options.overlap * r) {
-                            overlaps.push_back({i, j, d});
+                            // The atom left out (b): the hydrogen of a hydrogen and a heavier atom, else the later.
+                            const bool first_is_h = m.atoms[static_cast<size_t>(i)].z == 1 && m.atoms[static_cast<size_t>(j)].z != 1;
+                            overlaps.push_back(first_is_h ? Overlap{j, i, d} : Overlap{i, j, d});
                             continue;
                         }
                         pairs.emplace_back(i, j);
@@ -256,7 +312,7 @@ std::vector<Overlap> perceive_bonds(Molecule& m, const std::vector<Eigen::Vector
     pairs.erase(std::unique(pairs.begin(), pairs.end()), pairs.end());
     std::sort(overlaps.begin(), overlaps.end(), [](const Overlap& x, const Overlap& y) {
         return std::tie(x.a, x.b) < std::tie(y.a, y.b);
-    });
+    });  // a pair is listed once per visit of its cell: keep one
     overlaps.erase(std::unique(overlaps.begin(), overlaps.end(),
                                [](const Overlap& x, const Overlap& y) { return x.a == y.a && x.b == y.b; }),
                    overlaps.end());
@@ -269,7 +325,8 @@ std::vector<Overlap> perceive_bonds(Molecule& m, const std::vector<Eigen::Vector
 }
 
 ValenceResult assign_valences(Molecule& m, const std::vector<Eigen::Vector3d>& pos, int total_charge,
-                              int unpaired_allowed, const std::vector<int>* free_bonds, bool fixed_charges) {
+                              int unpaired_allowed, const std::vector<int>* free_bonds, bool fixed_charges,
+                              const std::vector<char>* ignore) {
     const int n = m.atom_count();
     std::vector<char> is_free(m.bonds.size(), free_bonds ? 0 : 1);
     if (free_bonds)
@@ -285,6 +342,10 @@ ValenceResult assign_valences(Molecule& m, const std::vector<Eigen::Vector3d>& p
     for (int i = 0; i < n; ++i) {
         const Atom& a = m.atoms[static_cast<size_t>(i)];
         const int bonds = fixed_sum[static_cast<size_t>(i)];
+        if (ignore && (*ignore)[static_cast<size_t>(i)]) {
+            state[static_cast<size_t>(i)] = {bonds, fixed_charges ? a.charge : 0};
+            continue;
+        }
         State s = fixed_charges ? first_state(a.z, bonds + std::max(0, a.radical_electrons), a.charge)
                                 : initial_state(a.z, bonds);
         if (fixed_charges && s.valence >= 0) s.valence -= std::max(0, a.radical_electrons);
@@ -362,6 +423,18 @@ ValenceResult assign_valences(Molecule& m, const std::vector<Eigen::Vector3d>& p
                     }
                 if (changed) break;
             }
+        // Rule 1 is kept only when the atoms it leaves unsatisfied (those to take the -1) are the host's
+        // neighbours or theirs: a charge pair across the molecule (C=Cl+ here, C- there) is no Lewis structure
+        // anyone means.
+        auto local = [&](int host) {
+            for (int i = 0; i < n; ++i) {
+                if (left[static_cast<size_t>(i)] <= 0 || i == host) continue;
+                bool near = m.bond_between(i, host) >= 0;
+                for (const Neighbor& nb : m.neighbors(host)) near = near || m.bond_between(i, nb.atom) >= 0;
+                if (!near) return false;
+            }
+            return true;
+        };
         // Rule 1: a neighbour takes +1 and one more bond (N+ of a nitro group, O+ of CO), when the charge is to go up
         // or another atom is left to take the compensating -1.
         if (!changed && !fixed_charges && residual > unpaired_allowed && (q < target || residual >= 2 + unpaired_allowed))
@@ -370,6 +443,11 @@ ValenceResult assign_valences(Molecule& m, const std::vector<Eigen::Vector3d>& p
                 for (const State& s : valence_states(m.atoms[static_cast<size_t>(h)].z))
                     if (s.charge == cur.charge + 1 && s.valence == cur.valence + 1) {
                         changed = try_state(h, s);
+                        if (changed && q >= target && !local(h)) {
+                            state[static_cast<size_t>(h)] = cur;
+                            residual = solve();
+                            changed = false;
+                        }
                         break;
                     }
                 if (changed) break;

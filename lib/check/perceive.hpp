@@ -25,7 +25,8 @@ struct Overlap {
 
 // Adds a single bond for every bonded pair not yet bonded, found through a cell grid (linear in the atom count).
 // Returns the overlapping pairs. Of two overlapping atoms the later one (in file order) is left out of perception
-// altogether (it is where it should not be), so that its presence does not invent bonds for its neighbours.
+// altogether (it is where it should not be), so that its presence does not invent bonds for its neighbours; of a
+// hydrogen and a heavier atom, the hydrogen is left out. Overlap::b is the atom left out.
 std::vector<Overlap> perceive_bonds(Molecule& molecule, const std::vector<Eigen::Vector3d>& positions,
                                     const PerceptionOptions& options = {});
 
@@ -51,10 +52,12 @@ struct ValenceResult {
 //     charge is to go down, C+ when it is to go up) -- each kept only when it helps.
 // unpaired_allowed (multiplicity - 1 when it is known, else 0) electrons may stay unpaired. With fixed_charges the
 // atoms' formal charges (from the file) are kept and step 3 only raises neutral valences.
+// Atoms marked in `ignore` (left out of perception) take no part. Where no perfect assignment exists, the atom left
+// with the unpaired electron is the one whose Lewis structure fits the measured bond lengths best.
 // Deterministic. Sets Bond::order and Atom::charge (and Atom::radical_electrons of the atoms left unpaired).
 ValenceResult assign_valences(Molecule& molecule, const std::vector<Eigen::Vector3d>& positions, int total_charge,
                               int unpaired_allowed, const std::vector<int>* free_bonds = nullptr,
-                              bool fixed_charges = false);
+                              bool fixed_charges = false, const std::vector<char>* ignore = nullptr);
 
 // For a molecule with orders and charges given (SDF): per atom, the electrons by which it falls short of its
 // nearest normal valence for its charge (0 when satisfied or when the charge has no tabulated state), and -1 for an

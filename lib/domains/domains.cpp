@@ -21,6 +21,35 @@ std::string atom_label(const Molecule& m, int i) {
     return label + ")";
 }
 
+// The bond orders a centre's domains feel. One Lewis structure draws equivalent bonds unequally; the molecule does
+// not (common practice: resonance). Aromatic bonds count 1.5; terminal atoms of one element on one centre whose
+// written orders differ (the oxygens of sulfate, nitrate, carboxylate, phosphate) share the mean order.
+std::vector<double> effective_orders(const Molecule& m, int centre) {
+    const auto& nbs = m.neighbors(centre);
+    std::vector<double> orders(nbs.size());
+    for (size_t k = 0; k < nbs.size(); ++k) {
+        const Bond& b = m.bonds[static_cast<size_t>(nbs[k].bond)];
+        orders[k] = b.aromatic ? 1.5 : b.order;
+    }
+    for (size_t k = 0; k < nbs.size(); ++k) {
+        const int zk = m.atoms[static_cast<size_t>(nbs[k].atom)].z;
+        if (m.degree(nbs[k].atom) != 1 || m.atoms[static_cast<size_t>(nbs[k].atom)].hydrogens > 0) continue;
+        double sum = 0;
+        int count = 0;
+        bool differ = false;
+        for (size_t j = 0; j < nbs.size(); ++j) {
+            const Atom& aj = m.atoms[static_cast<size_t>(nbs[j].atom)];
+            if (aj.z != zk || m.degree(nbs[j].atom) != 1 || aj.hydrogens > 0) continue;
+            const int oj = m.bonds[static_cast<size_t>(nbs[j].bond)].order;
+            differ = differ || oj != m.bonds[static_cast<size_t>(nbs[k].bond)].order;
+            sum += oj;
+            ++count;
+        }
+        if (differ) orders[k] = sum / count;
+    }
+    return orders;
+}
+
 double angle_between(const Eigen::Vector3d& a, const Eigen::Vector3d& b) {
     return std::acos(std::clamp(a.dot(b), -1.0, 1.0)) * 180.0 / M_PI;
 }
@@ -121,9 +150,11 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
         c.shape = shape_name(c.bonded, c.lone_pairs + c.single_electrons);
         out.unpaired_electrons += c.single_electrons;
 
-        for (const Neighbor& nb : m.neighbors(i)) {
+        const std::vector<double> orders = effective_orders(m, i);
+        for (size_t k = 0; k < m.neighbors(i).size(); ++k) {
+            const Neighbor& nb = m.neighbors(i)[k];
             const Bond& b = m.bonds[static_cast<size_t>(nb.bond)];
-            SphereDomain sd = bonding_domain(model, atom.z, m.atoms[static_cast<size_t>(nb.atom)].z, b.order);
+            SphereDomain sd = bonding_domain(model, atom.z, m.atoms[static_cast<size_t>(nb.atom)].z, orders[k]);
             c.domains.push_back({DomainKind::bond, nb.atom, nb.bond, b.order, sd.weight, sd.radius});
         }
         for (int k = 0; k < std::max(0, atom.hydrogens); ++k) {
@@ -142,10 +173,14 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
             throw UnsupportedError(fmt::format("{} has {} electron domains; at most 12 are supported",
                                                atom_label(m, i), c.steric_number));
         if (solve && c.bonded >= 2) {
-            std::vector<SphereDomain> sd;
+            std::vector<SphereDomain> sd, arrangement;
             sd.reserve(c.domains.size());
-            for (const Domain& d : c.domains) sd.push_back({d.weight, d.radius, d.kind == DomainKind::bond ? model.bond_exponent : model.lone_pair_exponent});
-            c.directions = solve_sphere(sd);
+            arrangement.reserve(c.domains.size());
+            for (const Domain& d : c.domains) {
+                sd.push_back({d.weight, d.radius, d.kind == DomainKind::bond ? model.bond_exponent : model.lone_pair_exponent});
+                arrangement.push_back(arrangement_domain(d.kind));
+            }
+            c.directions = solve_sphere_staged(arrangement, sd);
             const int nbonds = static_cast<int>(m.neighbors(i).size());
             for (int a = 0; a < nbonds; ++a)
                 for (int b = a + 1; b < nbonds; ++b)

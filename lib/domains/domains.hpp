@@ -6,11 +6,10 @@
 #include <string>
 #include <vector>
 
+#include "domains/model.hpp"
 #include "graph/molecule.hpp"
 
 namespace repel {
-
-enum class DomainKind : std::uint8_t { bond, lone_pair, single_electron };
 
 struct Domain {
     DomainKind kind = DomainKind::bond;

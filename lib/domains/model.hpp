@@ -2,10 +2,14 @@
 // training table of gas-phase structures (tests/test_model_fit.cpp); README.md reports the fit.
 #pragma once
 
+#include <cstdint>
+
 #include "graph/molecule.hpp"
 #include "sphere/sphere.hpp"
 
 namespace repel {
+
+enum class DomainKind : std::uint8_t { bond, lone_pair, single_electron };
 
 struct DomainModel {
     double bond_exponent;           // steepness of a bonding domain's repulsion (pair exponent: the mean of the two)
@@ -22,9 +26,16 @@ struct DomainModel {
 // The fitted model.
 const DomainModel& domain_model();
 
-// The sphere domain for a bond from centre to ligand of the given order, under a model.
-SphereDomain bonding_domain(const DomainModel& model, int centre_z, int ligand_z, int order);
+// The sphere domain for a bond from centre to ligand of the given order (fractional for aromatic and
+// resonance-equivalent bonds: 1.5 in benzene, 1.5 for the S-O bonds of sulfate), under a model.
+SphereDomain bonding_domain(const DomainModel& model, int centre_z, int ligand_z, double order);
 SphereDomain lone_pair_domain(const DomainModel& model, int centre_z);
 SphereDomain single_electron_domain(const DomainModel& model, int centre_z);
+
+// The arrangement stage (sphere.hpp, solve_sphere_staged): plain domains that give every VSEPR class its polyhedron
+// and its sites. Measured before the model was designed (shared notes on the repulsion model): all weights 1,
+// exponent 2, lone pairs on an inner sphere of radius 0.7 make AX4E2 square planar, AX3E2 T-shaped, AX4E1 a seesaw,
+// where one sphere for all domains puts AX4E2's lone pairs cis for every exponent and weight tried.
+SphereDomain arrangement_domain(DomainKind kind);
 
 }  // namespace repel

@@ -598,6 +598,11 @@ size_t Reader::ring_number(size_t i) {
     return i;
 }
 
+// A ring number opens a ring bond at the atom before it, or closes the open one with that number. A bond symbol may
+// stand before either digit; written on both, the two must agree (OpenSMILES). A '/' or '\' is read from the atom
+// it follows towards the partner the digit stands for, as in a chain ("C/1...C1" is "C/partner"). On both digits a
+// mark would be read in opposite directions from the two ends, which the specification itself notes has no
+// consistent meaning (its cyclooctatetraene example), so it is refused as ambiguous (choice).
 void Reader::ring_bond(int number, int column) {
     if (prev_ < 0) {
         if (need_ == '.') error(fmt::format("expected an atom after '.', found ring-closure digit {}", number), column);
@@ -819,7 +824,8 @@ void Reader::double_bond_configurations() {
 // hydrogen, ring closures in the order their digits are written, then branches and the next atom. A mark on the
 // middle atom of an allene becomes @AL and refers to the substituents of the two ends (OpenSMILES "Tetrahedral
 // Allene-like Systems"): the first end's two, then the second end's two, hydrogens of an end standing as
-// kImplicitHydrogen in that end's half of the list.
+// kImplicitHydrogen in that end's half of the list. A tetrahedral mark with three neighbours keeps the three; its
+// lone pair stands where an implicit hydrogen would (see with_lone_pair() in smiles_stereo.hpp).
 void Reader::chirality_orders() {
     const int n = mol_.atom_count();
     ws.event_start.assign(static_cast<size_t>(n) + 1, 0);

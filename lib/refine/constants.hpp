@@ -13,12 +13,22 @@ namespace repel::refine {
 inline constexpr double kBond = 1.0;
 
 // ---- Angles -----------------------------------------------------------------------------------------------------
-// Each predicted angle a-centre-b: E = kAngle (1 - cos(theta - theta0)), about kAngle/2 per rad^2 for every target
-// (a fifth of the bond constant per A^2 at 0.5, the valence force-field ratio from memory, slightly stiffer), linear
-// and trans-octahedral targets included. A purely angular form rather than 1-3 distance restraints: a 1-3 restraint
+// Each predicted angle a-centre-b: E = kAngle (1 - cos(theta - theta0)), about kAngle/2 per rad^2 for every target,
+// linear and trans-octahedral ones included: a quarter of the bond constant per A^2 (valence force fields have about
+// a fifth, from memory). A purely angular form rather than 1-3 distance restraints: a 1-3 restraint
 // turns ring strain into bond stretching (cyclopropane's C-C went 0.2 A long with one at 0.3, since the 1-3 pair of
 // a three-membered ring is itself bonded), while an angle term leaves a regular ring's bonds alone.
 inline constexpr double kAngle = 0.5;
+// Rings the angle targets follow (see targets.cpp), with the values of the ring embedding
+// (assemble/ring_embed.cpp) so that refinement keeps what the assembly built: flat rings up to this size take the
+// angles of the regular polygon (common practice: 108 degrees in pyrrole, 120 in benzene, 128.6 in azulene's
+// seven-ring)...
+inline constexpr int kLargestPolygonRing = 8;
+// ...a puckered five-membered ring's angles are capped at this (cyclopentane averages about 104-106, from memory)...
+inline constexpr double kPuckeredFiveRingAngle = 106.0;
+// ...and a planar centre whose three ring angles add up to less than this is curved (fullerenes, bowls) and not held
+// planar.
+inline constexpr double kCurvedAngleSum = 355.0;
 // Torsions through an angle at or above this are undefined (the bond axes are collinear) and are left out.
 inline constexpr double kLinearAngleDegrees = 175.0;
 
@@ -38,9 +48,9 @@ inline constexpr double kPlanarity = 0.4;
 // barrier against a 310 kcal/mol/A^2 C-C stretch (from memory) gives the ratio 0.01; weak enough that ring torsions
 // (cyclopentane, macrocycles) follow the angles rather than the other way round.
 inline constexpr double kStaggered = 0.01;
-// Single bond between two centres with three domains (conjugation: dienes, biaryls, esters, amides when the domain
-// analysis makes the nitrogen trigonal): 1 - cos^2 phi, minima at 0 and 180. Twice the staggering barrier (butadiene's
-// is about 6 kcal/mol, from memory).
+// Single bond in a conjugated system (two trigonal centres: dienes, biaryls, amides; or a pi centre and a nitrogen or
+// oxygen lone pair: esters, phenols, anilines): 1 - cos^2 phi, minima at 0 and 180. Twice the staggering barrier
+// (butadiene's is about 6 kcal/mol, from memory).
 inline constexpr double kConjugation = 0.02;
 // Double and aromatic bonds: 1 - cos^2 phi. A pi bond's twist barrier is some 60 kcal/mol (from memory), a fifth of a
 // C-C stretch constant: keeps alkenes and aromatic rings flat.
@@ -93,9 +103,9 @@ inline constexpr double kSineRegularisation = 1e-6;
 inline constexpr double kTorsionRegularisation = 1e-4;
 
 // ---- Minimiser --------------------------------------------------------------------------------------------------
-// Correction pairs kept by L-BFGS (Liu and Nocedal 1989 recommend 3 to 20). On alkane chains of 50 and 500 atoms the
-// number of energy evaluations did not change between 3 and 10 pairs, while NLopt's cost per iteration grows with
-// the count; 4 keeps a little curvature history for molecules that mix stiff and soft motions.
+// Correction pairs kept by L-BFGS (Liu and Nocedal 1989 recommend 3 to 20). Measured: on alkane chains the energy
+// evaluations did not change between 3 and 10 pairs; on the assembled drug set (benchmarks/drug_like.smi) 8 and 15
+// pairs saved 8% and 14% of them, while NLopt's cost per iteration grows with the count. 4 is the cheaper side.
 inline constexpr unsigned kLbfgsMemory = 4;
 // L-BFGS can stop early on a failed line search (round-off); it is restarted from the best point this many times as
 // long as each run still lowers the energy.

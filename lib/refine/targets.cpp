@@ -9,6 +9,7 @@
 
 #include "core/bond_length.hpp"
 #include "refine/constants.hpp"
+#include "refine/small_rings.hpp"
 
 namespace repel::refine {
 
@@ -61,15 +62,13 @@ public:
         for (int i = 0; i < n; ++i) {
             donor_[static_cast<size_t>(i)] = conjugated_donor(i);
             const CentreDomains& c = centre(i);
-            if (donor_[static_cast<size_t>(i)] && atom_z(i) == 7 && c.bonded == 3 && c.lone_pairs == 1 &&
-                m_.degree(i) == 3 && angles_[static_cast<size_t>(i)].size() == 3) {
-                planar_nitrogen_[static_cast<size_t>(i)] = true;
-                // Keep the analysis' proportions between the three angles, scaled to the 360 degrees of a plane.
-                double sum = 0;
-                for (const PredictedAngle& a : angles_[static_cast<size_t>(i)]) sum += a.degrees;
-                for (PredictedAngle& a : angles_[static_cast<size_t>(i)]) a.degrees *= 360.0 / sum;
-            }
+            planar_nitrogen_[static_cast<size_t>(i)] = donor_[static_cast<size_t>(i)] && atom_z(i) == 7 &&
+                                                       c.bonded == 3 && c.lone_pairs == 1 && m_.degree(i) == 3 &&
+                                                       angles_[static_cast<size_t>(i)].size() == 3;
         }
+        curved_.resize(static_cast<size_t>(n));
+        SmallRingSearch rings(m_);
+        for (int i = 0; i < n; ++i) fit_angles_to_rings(i, rings);
     }
 
     EnergyTerms build(const std::vector<ChiralTarget>& chiral, const std::vector<DoubleBondTarget>& double_bonds) {
@@ -133,6 +132,65 @@ private:
     // Three domains for the torsion rules, counting a conjugated three-coordinate nitrogen as trigonal.
     int steric(int i) const { return planar_nitrogen_[static_cast<size_t>(i)] ? 3 : centre(i).steric_number; }
 
+    // An atom that keeps its ring flat: trigonal, or on an aromatic bond (the oxygen of furan).
+    bool flat_atom(int i) const {
+        if (steric(i) == 3) return true;
+        for (const Neighbor& nb : m_.neighbors(i))
+            if (m_.bonds[static_cast<size_t>(nb.bond)].aromatic) return true;
+        return false;
+    }
+
+    // The angle a ring forces at a consecutive triple (degrees), or 0 when it forces none: three- and four-membered
+    // rings always, flat rings up to kLargestPolygonRing atoms as the regular polygon.
+    double polygon_angle(const std::vector<int>& ring) const {
+        const int size = static_cast<int>(ring.size());
+        if (size == 3) return 60;
+        if (size == 4) return 90;
+        if (size == 0 || size > kLargestPolygonRing) return 0;
+        for (int atom : ring)
+            if (!flat_atom(atom)) return 0;
+        return 180.0 * (size - 2) / size;
+    }
+
+    // The domain analysis knows no rings: its angles (120-125 degrees at an aromatic carbon, 109.5 in cyclopropane)
+    // cannot all be met in a small or flat ring, and the strain would go into the bonds. Ring angles get what the
+    // ring forces (as in the ring embedding, assemble/ring_embed.cpp); a planar centre shares what its ring angles
+    // leave of 360 degrees among its other angles; a conjugated nitrogen outside small rings keeps the analysis'
+    // proportions scaled to 360.
+    void fit_angles_to_rings(int i, SmallRingSearch& rings) {
+        auto& angles = angles_[static_cast<size_t>(i)];
+        if (angles.empty()) return;
+        const bool planar = steric(i) == 3 && m_.degree(i) == 3 && angles.size() == 3;
+        double fixed_sum = 0;
+        int fixed = 0;
+        bool is_fixed[3] = {false, false, false};
+        for (size_t q = 0; q < angles.size(); ++q) {
+            PredictedAngle& p = angles[q];
+            const std::vector<int> ring = rings.ring_through(p.a, i, p.b, kLargestPolygonRing);
+            const double polygon = polygon_angle(ring);
+            if (polygon > 0) {
+                p.degrees = polygon;
+                fixed_sum += polygon;
+                ++fixed;
+                if (q < 3) is_fixed[q] = true;
+            } else if (ring.size() == 5) {
+                p.degrees = std::min(p.degrees, kPuckeredFiveRingAngle);
+            }
+        }
+        if (!planar) return;
+        if (fixed == 3) {
+            curved_[static_cast<size_t>(i)] = fixed_sum < kCurvedAngleSum;
+        } else if (fixed > 0) {
+            const double share = std::clamp((360.0 - fixed_sum) / (3 - fixed), 90.0, 160.0);
+            for (size_t q = 0; q < 3; ++q)
+                if (!is_fixed[q]) angles[q].degrees = share;
+        } else if (planar_nitrogen_[static_cast<size_t>(i)]) {
+            double sum = 0;
+            for (const PredictedAngle& a : angles) sum += a.degrees;
+            for (PredictedAngle& a : angles) a.degrees *= 360.0 / sum;
+        }
+    }
+
     // Trigonal planar: three bonded domains and nothing else, or a conjugated nitrogen with three neighbours (amide,
     // pyrrole, aniline: planar or nearly so in gas-phase and crystal structures, common practice), whose angles were
     // scaled to a plane above.
@@ -140,6 +198,7 @@ private:
         const CentreDomains& c = centre(i);
         const bool trigonal = c.bonded == 3 && c.lone_pairs == 0 && c.single_electrons == 0;
         if (!(trigonal || planar_nitrogen_[static_cast<size_t>(i)]) || m_.degree(i) != 3) return;
+        if (curved_[static_cast<size_t>(i)]) return;  // three ring angles short of 360: a bowl or cage (fullerenes)
         const auto& nb = m_.neighbors(i);
         const double scale = 1.0 / (length(i, nb[0].atom) * length(i, nb[1].atom) * length(i, nb[2].atom));
         t.planes.push_back({i, nb[0].atom, nb[1].atom, nb[2].atom, scale, kPlanarity});
@@ -154,7 +213,8 @@ private:
     void add_torsions(const Bond& bond, EnergyTerms& t) const {
         const int b = bond.a, c = bond.b;
         const int sb = steric(b), sc = steric(c);
-        const bool conjugated = (sb == 3 && sc == 3) || (pi_[static_cast<size_t>(b)] && donor_[static_cast<size_t>(c)]) ||
+        const bool conjugated = (sb == 3 && sc == 3) ||
+                                (pi_[static_cast<size_t>(b)] && donor_[static_cast<size_t>(c)]) ||
                                 (pi_[static_cast<size_t>(c)] && donor_[static_cast<size_t>(b)]);
         std::array<double, 4> coefficients;
         if (bond.aromatic || bond.order == 2)
@@ -212,6 +272,7 @@ private:
     std::vector<bool> pi_;                             // per atom: pi_centre()
     std::vector<bool> donor_;                          // per atom: conjugated_donor()
     std::vector<bool> planar_nitrogen_;                // per atom: a conjugated nitrogen held planar
+    std::vector<bool> curved_;                         // per atom: planar centre whose ring angles are short of 360
 };
 
 }  // namespace

@@ -1,6 +1,6 @@
 // Which energy terms a molecule gets, and what each pulls towards: bond lengths from the bond-length tables, angles
-// from each centre's domain analysis, planes for sp2 centres, torsion preferences by the kind of bond, and the
-// stereochemistry the caller asks to keep.
+// from each centre's domain analysis (with the angles small and flat rings force), planes for sp2 centres and
+// conjugated nitrogens, torsion preferences by the kind of bond, and the stereochemistry the caller asks to keep.
 #pragma once
 
 #include <vector>

@@ -63,7 +63,7 @@ inline Cosine regularised_cosine(const Vec& u, const Vec& v, double eps) {
     return {c, v / s - (c / a) * u, u / s - (c / b) * v};
 }
 
-// Signed volume a.(b x c) of the three arms from a centre, with its gradient on the four atoms.
+// Signed volume a.(b x c) of the three arms from a centre, with its derivatives by each arm.
 struct Volume {
     double value;
     Vec da, db, dc;

@@ -170,35 +170,42 @@ void canonical_frame(std::vector<Vector3d>& pts) {
     }
 }
 
-// Sorts the domains into a canonical order (by radius, then by weight, larger first) and labels equal ones alike.
-std::vector<int> canonical_order(std::span<const SphereDomain> domains) {
+bool domain_less(const SphereDomain& a, const SphereDomain& b) {
+    if (a.radius != b.radius) return a.radius < b.radius;
+    if (a.exponent != b.exponent) return a.exponent < b.exponent;
+    return a.weight > b.weight;
+}
+
+// Sorts the domains into a canonical order (by the arrangement domains when given, then by the domains: radius,
+// exponent, then weight, larger first) so that equal patterns share a cache entry and equal domains lie together.
+std::vector<int> canonical_order(std::span<const SphereDomain> arrangement, std::span<const SphereDomain> domains) {
     std::vector<int> order(domains.size());
     std::iota(order.begin(), order.end(), 0);
     std::stable_sort(order.begin(), order.end(), [&](int a, int b) {
-        const auto& da = domains[static_cast<size_t>(a)];
-        const auto& db = domains[static_cast<size_t>(b)];
-        if (da.radius != db.radius) return da.radius < db.radius;
-        if (da.exponent != db.exponent) return da.exponent < db.exponent;
-        return da.weight > db.weight;
+        const size_t ia = static_cast<size_t>(a), ib = static_cast<size_t>(b);
+        if (!arrangement.empty()) {
+            if (domain_less(arrangement[ia], arrangement[ib])) return true;
+            if (domain_less(arrangement[ib], arrangement[ia])) return false;
+        }
+        return domain_less(domains[ia], domains[ib]);
     });
     return order;
 }
 
-// The solve in canonical domain order; the result is what the cache keeps.
-std::vector<Vector3d> solve_sorted(const std::vector<SphereDomain>& sorted) {
-    const int n = static_cast<int>(sorted.size());
-    if (n == 0) return {};
-    if (n == 1) return {Vector3d::UnitZ()};
-    if (n == 2) return {Vector3d::UnitZ(), -Vector3d::UnitZ()};
-    std::vector<int> kind(static_cast<size_t>(n), 0);
-    for (int i = 1; i < n; ++i)
-        kind[static_cast<size_t>(i)] = kind[static_cast<size_t>(i - 1)] + (sorted[static_cast<size_t>(i)] == sorted[static_cast<size_t>(i - 1)] ? 0 : 1);
-    std::vector<Seed> seeds = seeds_for(sorted, kind);
+// Labels runs of equal domains in a sorted list 0, 1, 2, ...
+std::vector<int> kinds_of(const std::vector<SphereDomain>& sorted) {
+    std::vector<int> kind(sorted.size(), 0);
+    for (size_t i = 1; i < sorted.size(); ++i) kind[i] = kind[i - 1] + (sorted[i] == sorted[i - 1] ? 0 : 1);
+    return kind;
+}
+
+// Relaxes the best seeds (all of them when there are few) and returns the lowest minimum found.
+std::vector<Vector3d> best_of(const std::vector<SphereDomain>& sorted, std::vector<Seed> seeds) {
     if (static_cast<int>(seeds.size()) > kMaxRelaxedSeeds) {
         std::stable_sort(seeds.begin(), seeds.end(), [](const Seed& a, const Seed& b) { return a.energy < b.energy; });
         seeds.resize(kMaxRelaxedSeeds);
     }
-    Problem pb{sorted.data(), n};
+    Problem pb{sorted.data(), static_cast<int>(sorted.size())};
     std::vector<Vector3d> best;
     double best_e = INFINITY;
     for (Seed& s : seeds) {
@@ -211,6 +218,63 @@ std::vector<Vector3d> solve_sorted(const std::vector<SphereDomain>& sorted) {
     return best;
 }
 
+// The global solve in canonical domain order; the result is what the cache keeps.
+std::vector<Vector3d> solve_sorted(const std::vector<SphereDomain>& sorted) {
+    const int n = static_cast<int>(sorted.size());
+    if (n == 0) return {};
+    if (n == 1) return {Vector3d::UnitZ()};
+    if (n == 2) return {Vector3d::UnitZ(), -Vector3d::UnitZ()};
+    return best_of(sorted, seeds_for(sorted, kinds_of(sorted)));
+}
+
+// Two stages: the arrangement domains fix which polyhedron and which of its sites each kind of domain takes (their
+// global minimum); then the domains themselves, placed on those sites in every distinct way that keeps each domain on
+// a site of its own arrangement kind, relax locally to their angles.
+std::vector<Vector3d> solve_staged_sorted(const std::vector<SphereDomain>& arrangement_sorted,
+                                          const std::vector<SphereDomain>& sorted) {
+    const int n = static_cast<int>(sorted.size());
+    if (n <= 2) return solve_sorted(sorted);
+    const std::vector<Vector3d> sites = solve_sorted(arrangement_sorted);
+    const std::vector<int> site_kind = kinds_of(arrangement_sorted);
+    // Runs of equal arrangement kind [begin, end), and within each the domain kinds (ascending: sorted order).
+    std::vector<std::pair<int, int>> runs;
+    for (int i = 0; i < n; ++i)
+        if (i == 0 || site_kind[static_cast<size_t>(i)] != site_kind[static_cast<size_t>(i - 1)]) runs.push_back({i, i + 1});
+        else runs.back().second = i + 1;
+    const std::vector<int> kind = kinds_of(sorted);
+    std::vector<std::vector<int>> labels;
+    for (auto [b, e] : runs) labels.emplace_back(kind.begin() + b, kind.begin() + e);
+
+    Problem pb{sorted.data(), n};
+    std::vector<Seed> seeds;
+    std::vector<double> x(static_cast<size_t>(3 * n));
+    for (int count = 0; count < kMaxLabellings; ++count) {
+        // Site s of run r takes the next unplaced domain of kind labels[r][s - begin] in that run.
+        std::vector<Vector3d> pts(static_cast<size_t>(n));
+        for (size_t r = 0; r < runs.size(); ++r) {
+            auto [b, e] = runs[r];
+            std::vector<bool> used(static_cast<size_t>(e - b), false);
+            for (int site = b; site < e; ++site) {
+                int want = labels[r][static_cast<size_t>(site - b)];
+                for (int d = b; d < e; ++d)
+                    if (!used[static_cast<size_t>(d - b)] && kind[static_cast<size_t>(d)] == want) {
+                        used[static_cast<size_t>(d - b)] = true;
+                        pts[static_cast<size_t>(d)] = sites[static_cast<size_t>(site)];
+                        break;
+                    }
+            }
+        }
+        for (int i = 0; i < n; ++i)
+            for (int c = 0; c < 3; ++c) x[static_cast<size_t>(3 * i + c)] = pts[static_cast<size_t>(i)][c];
+        seeds.push_back({std::move(pts), energy_and_gradient(pb, x.data(), nullptr)});
+        // Next combination: an odometer over the runs' permutations.
+        size_t r = runs.size();
+        while (r > 0 && !std::next_permutation(labels[r - 1].begin(), labels[r - 1].end())) --r;
+        if (r == 0) break;
+    }
+    return best_of(sorted, std::move(seeds));
+}
+
 void check(std::span<const SphereDomain> domains) {
     if (domains.size() > 12) throw std::invalid_argument("sphere solver: at most 12 domains");
     for (const auto& d : domains)
@@ -219,30 +283,44 @@ void check(std::span<const SphereDomain> domains) {
             throw std::invalid_argument("sphere solver: weights, radii and exponents must be positive and finite");
 }
 
-std::vector<Vector3d> solve(std::span<const SphereDomain> domains, bool use_cache) {
-    check(domains);
-    const std::vector<int> order = canonical_order(domains);
-    std::vector<SphereDomain> sorted;
-    sorted.reserve(domains.size());
-    for (int i : order) sorted.push_back(domains[static_cast<size_t>(i)]);
+void append_key(std::string& key, const std::vector<SphereDomain>& sorted) {
+    for (const SphereDomain& d : sorted) {
+        const double v[3] = {d.weight, d.radius, d.exponent};
+        key.append(reinterpret_cast<const char*>(v), sizeof(v));
+    }
+}
 
+std::vector<Vector3d> solve(std::span<const SphereDomain> arrangement, std::span<const SphereDomain> domains,
+                            bool use_cache) {
+    check(domains);
+    check(arrangement);
+    if (!arrangement.empty() && arrangement.size() != domains.size())
+        throw std::invalid_argument("sphere solver: one arrangement domain per domain");
+    const std::vector<int> order = canonical_order(arrangement, domains);
+    std::vector<SphereDomain> sorted, arrangement_sorted;
+    sorted.reserve(domains.size());
+    for (int i : order) {
+        sorted.push_back(domains[static_cast<size_t>(i)]);
+        if (!arrangement.empty()) arrangement_sorted.push_back(arrangement[static_cast<size_t>(i)]);
+    }
+    auto compute = [&] {
+        return arrangement.empty() ? solve_sorted(sorted) : solve_staged_sorted(arrangement_sorted, sorted);
+    };
     const std::vector<Vector3d>* solution = nullptr;
     std::vector<Vector3d> fresh;
     if (use_cache) {
-        // Key: the sorted pattern, as raw bytes (exact: equal inputs, equal keys).
+        // Key: the sorted patterns as raw bytes (exact: equal inputs, equal keys).
         thread_local std::unordered_map<std::string, std::vector<Vector3d>> cache;
-        constexpr size_t per = 3 * sizeof(double);
-        std::string key(per * sorted.size(), '\0');
-        for (size_t i = 0; i < sorted.size(); ++i) {
-            std::memcpy(key.data() + per * i, &sorted[i].weight, sizeof(double));
-            std::memcpy(key.data() + per * i + sizeof(double), &sorted[i].radius, sizeof(double));
-            std::memcpy(key.data() + per * i + 2 * sizeof(double), &sorted[i].exponent, sizeof(double));
-        }
+        std::string key;
+        key.reserve(48 * sorted.size() + 1);
+        append_key(key, sorted);
+        key.push_back(arrangement.empty() ? 'g' : 's');
+        append_key(key, arrangement_sorted);
         auto it = cache.find(key);
-        if (it == cache.end()) it = cache.emplace(std::move(key), solve_sorted(sorted)).first;
+        if (it == cache.end()) it = cache.emplace(std::move(key), compute()).first;
         solution = &it->second;
     } else {
-        fresh = solve_sorted(sorted);
+        fresh = compute();
         solution = &fresh;
     }
     std::vector<Vector3d> out(domains.size());
@@ -260,8 +338,18 @@ double sphere_energy(std::span<const SphereDomain> domains, std::span<const Vect
     return energy_and_gradient(pb, x.data(), nullptr);
 }
 
-std::vector<Vector3d> solve_sphere(std::span<const SphereDomain> domains) { return solve(domains, true); }
+std::vector<Vector3d> solve_sphere(std::span<const SphereDomain> domains) { return solve({}, domains, true); }
 
-std::vector<Vector3d> solve_sphere_uncached(std::span<const SphereDomain> domains) { return solve(domains, false); }
+std::vector<Vector3d> solve_sphere_uncached(std::span<const SphereDomain> domains) { return solve({}, domains, false); }
+
+std::vector<Vector3d> solve_sphere_staged(std::span<const SphereDomain> arrangement,
+                                          std::span<const SphereDomain> domains) {
+    return solve(arrangement, domains, true);
+}
+
+std::vector<Vector3d> solve_sphere_staged_uncached(std::span<const SphereDomain> arrangement,
+                                                   std::span<const SphereDomain> domains) {
+    return solve(arrangement, domains, false);
+}
 
 }  // namespace repel

@@ -33,4 +33,15 @@ std::vector<Eigen::Vector3d> solve_sphere(std::span<const SphereDomain> domains)
 // The same without the cache (for benchmarks and tests of the cache).
 std::vector<Eigen::Vector3d> solve_sphere_uncached(std::span<const SphereDomain> domains);
 
+// Two stages, for models whose fine constants would otherwise decide the global arrangement: the `arrangement`
+// domains (one per domain, a plain model that gets every shape class right) choose the polyhedron and which site
+// each kind of domain takes, by the global solve above; then `domains` relax locally from those sites, trying every
+// distinct way of putting them on the sites of their own arrangement kind (so that, for example, fluorine can take
+// the axial sites of a trigonal bipyramid and chlorine the equatorial ones), and the lowest minimum is kept.
+// Cached and canonical like solve_sphere.
+std::vector<Eigen::Vector3d> solve_sphere_staged(std::span<const SphereDomain> arrangement,
+                                                 std::span<const SphereDomain> domains);
+std::vector<Eigen::Vector3d> solve_sphere_staged_uncached(std::span<const SphereDomain> arrangement,
+                                                          std::span<const SphereDomain> domains);
+
 }  // namespace repel

@@ -24,6 +24,7 @@ import warnings
 
 import numpy as np
 
+sys.dont_write_bytecode = True  # no __pycache__ in the source tree
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 from common import Tally, angle_deg, parse_xyz, run_repel  # noqa: E402
 
@@ -327,6 +328,15 @@ def main():
         measured[text] = mean
         t.check(abs(mean - expt) <= 2.5, f'{text}: H-X-H {mean:.2f} deg within 2.5 of {expt} (CRC/CCCBDB, from memory)')
         print(f'gas-phase angle {text:2s}: built {mean:.2f}, experiment {expt} (CRC/CCCBDB, from memory)')
+    # Heavier hydrides, near 90 deg in the gas phase (H2S 92.1, PH3 93.3; reference-data.md, from memory): printed
+    # for the README, not asserted here (issue 2 lets the model reproduce them or mark them as its known limit).
+    for text, expt in (('S', 92.1), ('P', 93.3)):
+        r = run_repel(exe, ['build', text])
+        if r.returncode == 0:
+            s, c, _, _ = parse_xyz(r.stdout)
+            a = list(ligand_angles(c, 0, list(range(1, len(s)))).values())
+            print(f'heavier hydride {text}: built H-X-H {sum(a) / len(a):.2f}, experiment {expt} (CRC, from memory; '
+                  'not asserted)')
     if len(measured) == 3:
         t.check(measured['O'] < measured['N'] < measured['C'],
                 f'order H2O < NH3 < CH4 of the H-X-H angles: {measured["O"]:.2f}, {measured["N"]:.2f}, '
@@ -363,18 +373,23 @@ def main():
         print(f'formaldehyde H-C-H: built {x:.2f}, experiment 116.5 (CRC, from memory)')
 
     # ---- charge and multiplicity in the XYZ comment (closed-shell ions; the NO2 radical by formula; O2 triplet
-    # ground state, common practice).
+    # ground state, common practice). The eight-coordinate anions test the valence arithmetic of expanded centres:
+    # IF8- (I: 7 valence electrons + 1 for the charge - 8 bonds = 0 left, AX8) and XeF8 2- (Xe: 8 + 2 - 8 = 2, one
+    # lone pair); both closed-shell, all eight fluorines written.
     for text, charge, mult in (('[O-]S(=O)(=O)[O-]', -2, 1), ('SO4 2-', -2, 1), ('[NH4+]', 1, 1), ('NH4+', 1, 1),
-                               ('NO2', 0, 2), ('O=O', 0, 3)):
+                               ('NO2', 0, 2), ('O=O', 0, 3), ('F[I-](F)(F)(F)(F)(F)(F)F', -1, 1),
+                               ('[Xe-2](F)(F)(F)(F)(F)(F)(F)F', -2, 1)):
         got = build(text)
         if not got:
             continue
-        _, _, fields = got
+        symbols, _, fields = got
+        if 'F)F' in text:
+            t.check(symbols.count('F') == 8 and len(symbols) == 9, f'{text}: eight F and one centre written')
         t.check(fields.get('charge') == str(charge) and fields.get('multiplicity') == str(mult),
                 f'{text}: comment has charge={charge} multiplicity={mult}, got charge={fields.get("charge")} '
                 f'multiplicity={fields.get("multiplicity")}')
 
-    t.finish()
+    t.finish(tmp)
 
 
 if __name__ == '__main__':

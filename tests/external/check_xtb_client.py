@@ -40,6 +40,7 @@ import time
 
 import numpy as np
 
+sys.dont_write_bytecode = True  # no __pycache__ in the source tree
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 from common import (IONIC_METALS, SmilesStereo, Tally, dihedral_deg, expected_chiral_sign,  # noqa: E402
                     kabsch_rmsd, neighbours, parse_sdf_bonds, parse_xyz, perceive_bonds, resolve_neighbour_order,
@@ -124,10 +125,13 @@ def prepare(exe, tmp, number, smiles, name):
         r = run_repel(exe, ['build', smiles, '-o', path])
         if r.returncode != 0 or not os.path.exists(path):
             return f'repel build {smiles} -o {os.path.basename(path)} failed ({r.returncode}: {r.stderr.strip()})'
-    with open(xyz) as f:
-        symbols, coords, fields, _ = parse_xyz(f.read())
-    with open(sdf) as f:
-        s_sym, s_coords, s_bonds = parse_sdf_bonds(f.read())
+    try:
+        with open(xyz) as f:
+            symbols, coords, fields, _ = parse_xyz(f.read())
+        with open(sdf) as f:
+            s_sym, s_coords, s_bonds = parse_sdf_bonds(f.read())
+    except (ValueError, IndexError) as e:
+        return f'cannot read what repel wrote for {smiles}: {e}'
     return {'work': work, 'symbols': symbols, 'coords': coords, 'fields': fields, 'sdf_symbols': s_sym,
             'sdf_coords': s_coords, 'graph': {frozenset((i, j)) for i, j, _ in s_bonds}}
 
@@ -275,7 +279,7 @@ def main():
               f'{statistics.median(rmsds):.3f} A (max {max(rmsds):.3f}); median cycles {statistics.median(cycles):.0f} '
               f'(max {max(cycles)})')
     print(f'wall time {time.time() - clock:.0f} s with {jobs} xtb processes at a time')
-    t.finish()
+    t.finish(tmp)
 
 
 if __name__ == '__main__':

@@ -8,9 +8,9 @@ of their covalent radii, Cordero et al., Dalton Trans. (2008) 2832 (the table as
 factor 1.25 is common practice (it keeps every bond of the G2 set and no 1,3 contact of a four-membered ring).
 """
 
-import itertools
 import math
 import shlex
+import shutil
 import subprocess
 import sys
 
@@ -38,7 +38,14 @@ class Tally:
             print(f'FAIL: {what}', flush=True)
         return bool(condition)
 
-    def finish(self):
+    def finish(self, workdir=None):
+        """Prints the closing line and exits; a temporary folder is removed when every check passed, else kept
+        for inspection and named."""
+        if workdir:
+            if self.failed:
+                print(f'files kept for inspection in {workdir}')
+            else:
+                shutil.rmtree(workdir, ignore_errors=True)
         print(f'{self.passed} passed, {self.failed} failed', flush=True)
         sys.exit(1 if self.failed else 0)
 
@@ -266,7 +273,6 @@ class SmilesStereo:
         chiral_mark = {}
         bracket_h = {}
         edges = []  # (p, q, bond char, position in the string): p written before q
-        component_start = True
         while i < len(s):
             ch = s[i]
             if ch == '(':

@@ -1,0 +1,135 @@
+// `repel check`: reads every structure of a file, audits each, prints the report (or JSON), and with --fix writes
+// the cleaned structures. No chemistry here: lib/check does the work.
+#include "check_command.hpp"
+
+#include <fmt/format.h>
+
+#include <fstream>
+#include <iostream>
+#include <sstream>
+
+#include "check/audit.hpp"
+#include "check/clean.hpp"
+#include "check/report.hpp"
+#include "commands.hpp"
+#include "core/error.hpp"
+#include "input/smiles.hpp"
+#include "input/structure_reader.hpp"
+#include "output/writer.hpp"
+
+namespace repel::app {
+
+int run_check(const CheckArgs& args) {
+    if (args.fix && args.output_file.empty()) {
+        std::cerr << "repel check: --fix needs -o FILE for the cleaned structure\n";
+        return 2;
+    }
+    if (args.file.empty()) {
+        std::cerr << "repel check: give a structure file (.xyz, .pdb, .sdf, .mol)\n";
+        return 2;
+    }
+    if (!args.smiles.empty()) {
+        try {
+            (void)read_smiles(args.smiles);
+        } catch (const std::exception& e) {
+            std::cerr << describe_failure("repel check: --smiles", args.smiles, e) << "\n";
+            return 2;
+        }
+    }
+    std::vector<ReadStructure> structures;
+    try {
+        InputFormat format = InputFormat::xyz;
+        if (!args.format.empty()) {
+            format = args.format == "pdb" ? InputFormat::pdb
+                     : args.format == "sdf" || args.format == "mol" ? InputFormat::sdf
+                     : args.format == "xyz" ? InputFormat::xyz
+                     : throw InputError("--format: expected xyz, pdb or sdf, found '" + args.format + "'");
+        } else if (args.file == "-") {
+            throw InputError("reading standard input needs --format xyz|pdb|sdf");
+        } else {
+            format = input_format_from_path(args.file);
+        }
+        if (args.file == "-") {
+            structures = read_structures(std::cin, format);
+        } else {
+            std::ifstream in(args.file, std::ios::binary);
+            if (!in) throw InputError("cannot open " + args.file);
+            structures = read_structures(in, format);
+        }
+    } catch (const std::exception& e) {
+        std::cerr << describe_failure("repel check: " + args.file, "", e) << "\n";
+        return 2;
+    }
+
+    AuditOptions options;
+    options.angle_rms = args.angle_rms;
+    options.bond_deviation = args.bond_deviation;
+    options.contact_fraction = args.contact_fraction;
+    options.perception.tolerance = args.tolerance;
+    options.charge = args.charge;
+    options.multiplicity = args.multiplicity;
+    options.reference_smiles = args.smiles;
+
+    nlohmann::json doc;
+    doc["file"] = args.file;
+    doc["structures"] = nlohmann::json::array();
+    size_t total = 0, written = 0;
+    std::string text, cleaned;
+    std::unique_ptr<StructureWriter> writer;
+    try {
+        if (args.fix) writer = make_writer(format_from_path(args.output_file));
+        if (writer) cleaned += writer->begin();
+        for (size_t k = 0; k < structures.size(); ++k) {
+            Audit audit = audit_structure(structures[k], options);
+            total += audit.findings.size();
+            if (args.json) doc["structures"].push_back(audit_json(audit));
+            else text += audit_text(audit, static_cast<int>(k + 1));
+            if (writer) {
+                // Only refined structures are written; the others are named on standard error.
+                CleanResult c = clean_structure(audit);
+                if (c.refined) {
+                    if (written > 0) cleaned += writer->separator();
+                    cleaned += writer->record(c.structure, audit.title);
+                    ++written;
+                } else {
+                    std::cerr << fmt::format("repel check: structure {} (line {}) not written to {}: {}\n", k + 1,
+                                             audit.line, args.output_file, c.summary);
+                }
+                if (!args.json) text += "  cleaned: " + c.summary + "\n";
+            }
+        }
+        if (writer) cleaned += writer->end();
+    } catch (const std::exception& e) {
+        std::cerr << "repel check: " << e.what() << "\n";
+        return 2;
+    }
+    doc["findings"] = total;
+    if (args.json) std::cout << doc.dump(2) << "\n";
+    else std::cout << text << fmt::format("{} structure{}, {} finding{}\n", structures.size(),
+                                          structures.size() == 1 ? "" : "s", total, total == 1 ? "" : "s");
+    if (writer && written == 0) {
+        std::cerr << "repel check: no structure could be cleaned; " << args.output_file << " not written\n";
+        return 2;
+    }
+    if (writer) {
+        // Written whole or not at all: a temporary file renamed at the end.
+        const std::string tmp = args.output_file + ".partial";
+        {
+            std::ofstream out(tmp, std::ios::binary | std::ios::trunc);
+            out << cleaned;
+            if (!out) {
+                std::cerr << "repel check: cannot write " << args.output_file << "\n";
+                std::remove(tmp.c_str());
+                return 2;
+            }
+        }
+        if (std::rename(tmp.c_str(), args.output_file.c_str()) != 0) {
+            std::cerr << "repel check: cannot write " << args.output_file << "\n";
+            std::remove(tmp.c_str());
+            return 2;
+        }
+    }
+    return total > 0 ? 1 : 0;
+}
+
+}  // namespace repel::app

@@ -1,0 +1,27 @@
+// `repel check`: the arguments of the audit of structure files and its entry point (options are defined in main.cpp).
+#pragma once
+
+#include <optional>
+#include <string>
+
+namespace repel::app {
+
+struct CheckArgs {
+    std::string file;                 // FILE: .xyz, .pdb, .sdf/.mol, or - for standard input (then --format)
+    std::string format;               // --format xyz|pdb|sdf when the extension does not tell
+    bool json = false;                // --json: one JSON document
+    std::optional<int> charge;        // --charge (default: the file's, else 0)
+    std::optional<int> multiplicity;  // --multiplicity (default: none; unpaired electrons are findings)
+    double angle_rms = 15.0;          // --angle-threshold: degrees RMS from the predicted angles
+    double bond_deviation = 0.25;     // --bond-threshold: Angstrom from the expected bond length
+    double contact_fraction = 0.6;    // --contact-fraction: of the van der Waals contact distance
+    double tolerance = 0.45;          // --bond-tolerance: Angstrom added to the covalent radii for perception
+    std::string smiles;               // --smiles REF: the molecule the structure is meant to be
+    bool fix = false;                 // --fix: write a cleaned structure
+    std::string output_file;          // -o with --fix (.xyz, .pdb, .sdf)
+};
+
+// Exit status of the contract: 0 no finding, 1 findings, 2 the file cannot be read (or a usage error).
+int run_check(const CheckArgs& args);
+
+}  // namespace repel::app

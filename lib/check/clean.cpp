@@ -1,0 +1,84 @@
+#include "check/clean.hpp"
+
+#include <fmt/format.h>
+
+#include <Eigen/Geometry>
+#include <cmath>
+
+#include "core/error.hpp"
+#include "domains/domains.hpp"
+#include "refine/refine.hpp"
+
+namespace repel {
+namespace {
+
+double signed_volume(const std::vector<Eigen::Vector3d>& p, int c, int a, int b, int d) {
+    const Eigen::Vector3d& o = p[static_cast<size_t>(c)];
+    return (p[static_cast<size_t>(a)] - o).dot((p[static_cast<size_t>(b)] - o).cross(p[static_cast<size_t>(d)] - o));
+}
+
+double torsion(const std::vector<Eigen::Vector3d>& p, int a, int b, int c, int d) {
+    const Eigen::Vector3d b1 = p[static_cast<size_t>(b)] - p[static_cast<size_t>(a)];
+    const Eigen::Vector3d b2 = p[static_cast<size_t>(c)] - p[static_cast<size_t>(b)];
+    const Eigen::Vector3d b3 = p[static_cast<size_t>(d)] - p[static_cast<size_t>(c)];
+    const Eigen::Vector3d n1 = b1.cross(b2), n2 = b2.cross(b3);
+    return std::atan2(b2.norm() * b1.dot(n2), n1.dot(n2)) * 180.0 / M_PI;
+}
+
+// A signed volume below this (A^3) is too flat to say which hand the centre has; it is not kept.
+constexpr double kMinVolume = 0.1;
+
+}  // namespace
+
+CleanResult clean_structure(const Audit& audit) {
+    CleanResult out;
+    out.structure = audit.structure;
+    for (const Finding& f : audit.findings)
+        if (f.kind == "overlap" || f.kind == "neighbours" || f.kind == "radical" || f.kind == "charge" ||
+            f.kind == "multiplicity") {
+            out.summary = fmt::format("not refined: a {} finding is a problem of the atoms or their connections, which "
+                                      "relaxing the coordinates cannot fix (fix it by hand, or give --charge or "
+                                      "--multiplicity)",
+                                      f.kind);
+            return out;
+        }
+    const Molecule& m = out.structure.molecule;
+    auto& pos = out.structure.positions;
+    try {
+        MoleculeDomains d = analyse_domains(m);
+        std::vector<ChiralTarget> chiral;
+        for (int i = 0; i < m.atom_count(); ++i) {
+            const auto& nb = m.neighbors(i);
+            if (nb.size() < 3 || d.atoms[static_cast<size_t>(i)].steric_number != 4) continue;
+            const double v = signed_volume(pos, i, nb[0].atom, nb[1].atom, nb[2].atom);
+            if (std::fabs(v) < kMinVolume) continue;
+            chiral.push_back({i, nb[0].atom, nb[1].atom, nb[2].atom, v > 0 ? 1 : -1});
+        }
+        std::vector<DoubleBondTarget> doubles;
+        for (const Bond& b : m.bonds) {
+            if (b.order != 2) continue;
+            int a = -1, c = -1;
+            for (const Neighbor& x : m.neighbors(b.a))
+                if (x.atom != b.b) { a = x.atom; break; }
+            for (const Neighbor& x : m.neighbors(b.b))
+                if (x.atom != b.a) { c = x.atom; break; }
+            if (a < 0 || c < 0 || a == c) continue;  // a == c: the double bond of a three-membered ring
+            doubles.push_back({a, b.a, b.b, c, std::fabs(torsion(pos, a, b.a, b.b, c)) < 90});
+        }
+        const std::vector<Eigen::Vector3d> before = pos;
+        RefineResult r = refine_structure(m, d, chiral, doubles, pos);
+        double s = 0;
+        for (size_t i = 0; i < pos.size(); ++i) s += (pos[i] - before[i]).squaredNorm();
+        out.rms_shift = pos.empty() ? 0 : std::sqrt(s / static_cast<double>(pos.size()));
+        out.refined = true;
+        out.summary = fmt::format("refined ({} iterations{}), atoms moved {:.3f} A RMS; {} centres and {} double bonds "
+                                  "kept",
+                                  r.iterations, r.converged ? "" : ", not converged: " + r.message, out.rms_shift,
+                                  chiral.size(), doubles.size());
+    } catch (const std::exception& e) {
+        out.summary = std::string("not refined: ") + e.what();
+    }
+    return out;
+}
+
+}  // namespace repel

@@ -1,0 +1,216 @@
+#include "check/compare.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <map>
+
+#include "assemble/stereo.hpp"
+#include "core/element.hpp"
+
+namespace repel {
+namespace {
+
+// Classes of atoms that a matching must respect: element and degree, refined a few rounds by the sorted classes of
+// the neighbours (the same rounds on both graphs, so equal classes mean equal surroundings up to that depth).
+std::vector<long> classes(const Molecule& m, int rounds) {
+    const int n = m.atom_count();
+    std::vector<long> c(static_cast<size_t>(n));
+    for (int i = 0; i < n; ++i) c[static_cast<size_t>(i)] = m.atoms[static_cast<size_t>(i)].z * 16 + m.degree(i);
+    for (int r = 0; r < rounds; ++r) {
+        std::vector<long> next(static_cast<size_t>(n));
+        for (int i = 0; i < n; ++i) {
+            std::vector<long> nb;
+            for (const Neighbor& x : m.neighbors(i)) nb.push_back(c[static_cast<size_t>(x.atom)]);
+            std::sort(nb.begin(), nb.end());
+            long h = c[static_cast<size_t>(i)] * 1000003L;
+            for (long v : nb) h = (h ^ v) * 1099511628211L;
+            next[static_cast<size_t>(i)] = h;
+        }
+        c.swap(next);
+    }
+    return c;
+}
+
+class Matcher {
+public:
+    Matcher(const Molecule& ref, const Molecule& s, std::vector<long> cr, std::vector<long> cs)
+        : ref_(ref), s_(s), cr_(std::move(cr)), cs_(std::move(cs)) {
+        map_.assign(ref.atoms.size(), -1);
+        used_.assign(s.atoms.size(), 0);
+        // Reference atoms in breadth-first order, so that each (after the first of a component) has a mapped
+        // neighbour that narrows its candidates.
+        std::vector<char> seen(ref.atoms.size(), 0);
+        for (int start = 0; start < ref.atom_count(); ++start) {
+            if (seen[static_cast<size_t>(start)]) continue;
+            seen[static_cast<size_t>(start)] = 1;
+            size_t head = order_.size();
+            order_.push_back(start);
+            while (head < order_.size()) {
+                int v = order_[head++];
+                for (const Neighbor& nb : ref.neighbors(v))
+                    if (!seen[static_cast<size_t>(nb.atom)]) {
+                        seen[static_cast<size_t>(nb.atom)] = 1;
+                        order_.push_back(nb.atom);
+                    }
+            }
+        }
+    }
+
+    // Calls visit(map) for each complete matching until it returns true or the step budget is spent.
+    template <class Visit>
+    bool run(Visit visit) { return extend(0, visit); }
+    bool exhausted() const { return steps_ > kSteps; }
+
+private:
+    template <class Visit>
+    bool extend(size_t k, Visit& visit) {
+        if (++steps_ > kSteps) return true;
+        if (k == order_.size()) return visit(map_);
+        const int r = order_[k];
+        // Candidates: neighbours of the image of a mapped neighbour, else every atom.
+        int anchor = -1;
+        for (const Neighbor& nb : ref_.neighbors(r))
+            if (map_[static_cast<size_t>(nb.atom)] >= 0) {
+                anchor = map_[static_cast<size_t>(nb.atom)];
+                break;
+            }
+        std::vector<int> cands;
+        if (anchor >= 0)
+            for (const Neighbor& nb : s_.neighbors(anchor)) cands.push_back(nb.atom);
+        else
+            for (int i = 0; i < s_.atom_count(); ++i) cands.push_back(i);
+        for (int c : cands) {
+            if (used_[static_cast<size_t>(c)] || cs_[static_cast<size_t>(c)] != cr_[static_cast<size_t>(r)]) continue;
+            bool ok = true;
+            for (const Neighbor& nb : ref_.neighbors(r)) {
+                const int m = map_[static_cast<size_t>(nb.atom)];
+                if (m >= 0 && s_.bond_between(c, m) < 0) {
+                    ok = false;
+                    break;
+                }
+            }
+            if (!ok) continue;
+            map_[static_cast<size_t>(r)] = c;
+            used_[static_cast<size_t>(c)] = 1;
+            if (extend(k + 1, visit)) return true;
+            map_[static_cast<size_t>(r)] = -1;
+            used_[static_cast<size_t>(c)] = 0;
+        }
+        return false;
+    }
+
+    static constexpr long kSteps = 2'000'000;  // search steps before giving up (highly symmetric large structures)
+    const Molecule& ref_;
+    const Molecule& s_;
+    std::vector<long> cr_, cs_;
+    std::vector<int> map_, used_, order_;
+    long steps_ = 0;
+};
+
+// Hill order (common practice): C, then H, then the other elements alphabetically; without carbon, all alphabetically.
+std::string formula(const std::map<int, int>& count) {
+    std::vector<std::pair<std::string, int>> parts;
+    const bool carbon = count.count(6) && count.at(6) > 0;
+    for (auto [z, n] : count) {
+        if (n == 0) continue;
+        std::string key(element(z).symbol);
+        if (carbon && z == 6) key = std::string("\x01") + key;
+        if (carbon && z == 1) key = std::string("\x02") + key;
+        parts.emplace_back(key, n);
+    }
+    std::sort(parts.begin(), parts.end());
+    std::string out;
+    for (auto& [key, n] : parts) {
+        const std::string symbol = key[0] < ' ' ? key.substr(1) : key;
+        out += symbol + (n == 1 ? "" : std::to_string(n));
+    }
+    return out;
+}
+
+}  // namespace
+
+std::vector<Finding> compare_with_reference(const Molecule& s, const std::vector<Eigen::Vector3d>& pos,
+                                            Molecule ref) {
+    std::vector<Finding> out;
+    ref.make_hydrogens_explicit();
+    std::map<int, int> cr, cs;
+    for (const Atom& a : ref.atoms) ++cr[a.z];
+    for (const Atom& a : s.atoms) ++cs[a.z];
+    if (cr != cs) {
+        std::string diff;
+        std::map<int, int> all = cr;
+        for (auto [z, n] : cs) all[z] += 0, (void)n;
+        for (auto [z, n] : all) {
+            const int d = cs[z] - cr[z];
+            if (d != 0) diff += fmt::format(" {} {} {}", d > 0 ? "extra" : "missing", std::abs(d), element(z).symbol);
+        }
+        out.push_back({"formula", {},
+                       fmt::format("the structure is {}, the reference {}:{}", formula(cs), formula(cr), diff),
+                       std::nullopt, std::nullopt, "", Severity::error, 300});
+        return out;
+    }
+    if (ref.bond_count() != s.bond_count()) {
+        out.push_back({"connectivity", {},
+                       fmt::format("the structure has {} bonds, the reference {}", s.bond_count(), ref.bond_count()),
+                       s.bond_count(), ref.bond_count(), "", Severity::error, 300});
+        return out;
+    }
+    std::vector<std::string> warnings;
+    const std::vector<ChiralTarget> chiral = chiral_targets(ref, warnings);
+    const std::vector<DoubleBondTarget> doubles = double_bond_targets(ref);
+    Matcher matcher(ref, s, classes(ref, 3), classes(s, 3));
+    std::vector<int> best;
+    size_t best_wrong = static_cast<size_t>(-1);
+    long matchings = 0;
+    auto wrong = [&](const std::vector<int>& map, std::vector<Finding>* findings) {
+        size_t count = 0;
+        for (const ChiralTarget& t : chiral) {
+            ChiralTarget u{map[static_cast<size_t>(t.centre)], map[static_cast<size_t>(t.n1)],
+                           map[static_cast<size_t>(t.n2)], map[static_cast<size_t>(t.n3)], t.sign};
+            if (chirality_met(u, pos)) continue;
+            ++count;
+            if (findings)
+                findings->push_back({"stereocentre", {u.centre + 1},
+                                     fmt::format("{}{} has the opposite handedness to the reference's (a mirrored "
+                                                 "stereocentre)",
+                                                 element(s.atoms[static_cast<size_t>(u.centre)].z).symbol, u.centre + 1),
+                                     std::nullopt, std::nullopt, "", Severity::error, 80});
+        }
+        for (const DoubleBondTarget& t : doubles) {
+            DoubleBondTarget u{map[static_cast<size_t>(t.a)], map[static_cast<size_t>(t.b)], map[static_cast<size_t>(t.c)],
+                               map[static_cast<size_t>(t.d)], t.cis};
+            if (double_bond_met(u, pos)) continue;
+            ++count;
+            if (findings)
+                findings->push_back({"double bond", {u.b + 1, u.c + 1},
+                                     fmt::format("the double bond {}{}={}{} is {} in the structure, {} in the reference",
+                                                 element(s.atoms[static_cast<size_t>(u.b)].z).symbol, u.b + 1,
+                                                 element(s.atoms[static_cast<size_t>(u.c)].z).symbol, u.c + 1,
+                                                 t.cis ? "trans" : "cis", t.cis ? "cis" : "trans"),
+                                     std::nullopt, std::nullopt, "", Severity::error, 80});
+        }
+        return count;
+    };
+    matcher.run([&](const std::vector<int>& map) {
+        ++matchings;
+        const size_t w = wrong(map, nullptr);
+        if (w < best_wrong) {
+            best_wrong = w;
+            best = map;
+        }
+        return w == 0 || matchings >= 1000;  // stop at a perfect one, or after enough equivalent matchings
+    });
+    if (best.empty()) {
+        out.push_back({"connectivity", {},
+                       matcher.exhausted()
+                           ? "the structure could not be matched to the reference within the search budget"
+                           : "the structure's bonds do not match the reference's (same atoms, different connections)",
+                       std::nullopt, std::nullopt, "", Severity::error, 300});
+        return out;
+    }
+    wrong(best, &out);
+    return out;
+}
+
+}  // namespace repel
