@@ -23,6 +23,16 @@ std::string describe_failure(const std::string& where, const std::string& text, 
     return where + ": " + e.what();
 }
 
+std::istream* open_input(const std::string& path, std::ifstream& file, const char* command) {
+    if (path == "-") return &std::cin;
+    file.open(path, std::ios::binary);
+    if (!file) {
+        std::cerr << "repel " << command << ": cannot read " << path << "\n";
+        return nullptr;
+    }
+    return &file;
+}
+
 namespace {
 
 // One line of the --errors file: the reason on one line.
@@ -111,15 +121,8 @@ int run_build(const BuildArgs& args) {
 
     // A batch.
     std::ifstream file;
-    std::istream* in = &std::cin;
-    if (args.input_file != "-") {
-        file.open(args.input_file, std::ios::binary);
-        if (!file) {
-            std::cerr << "repel build: cannot read " << args.input_file << "\n";
-            return 2;
-        }
-        in = &file;
-    }
+    std::istream* in = open_input(args.input_file, file, "build");
+    if (!in) return 2;
     std::unique_ptr<OutputFile> out;
     std::ofstream errors;
     try {

@@ -2,6 +2,8 @@
 // process exit status of the contract: 0 all done, 1 some records failed or findings, 2 nothing could be done.
 #pragma once
 
+#include <fstream>
+#include <istream>
 #include <string>
 
 #include "input/species.hpp"
@@ -29,6 +31,10 @@ struct ShapeArgs {
 
 int run_build(const BuildArgs& args);
 int run_shape(const ShapeArgs& args);
+
+// The input stream of a batch: the named file, or standard input for "-". Null (after a message) when the file
+// cannot be read.
+std::istream* open_input(const std::string& path, std::ifstream& file, const char* command);
 
 // One line for the user about a failed record: "line 3 (name): column 5: ...\n  text\n  ^".
 std::string describe_failure(const std::string& where, const std::string& text, const std::exception& e);

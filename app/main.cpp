@@ -63,6 +63,8 @@ int main(int argc, char** argv) {
     cmd_check->add_option("--bond-tolerance", check.tolerance,
                           "Angstrom added to the sum of covalent radii when bonds are perceived from coordinates")
         ->capture_default_str();
+    cmd_check->add_option("--smiles", check.smiles,
+                          "the intended molecule (SMILES): compare atoms, connectivity, stereocentres and double bonds");
     cmd_check->add_flag("--fix", check.fix, "write a cleaned structure (with -o): same atoms and stereochemistry, relaxed");
     cmd_check->add_option("-o,--output", check.output_file, "where --fix writes (.xyz, .pdb, .sdf)");
 

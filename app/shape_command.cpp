@@ -34,15 +34,8 @@ int run_shape(const ShapeArgs& args) {
         return 0;
     }
     std::ifstream file;
-    std::istream* in = &std::cin;
-    if (args.input_file != "-") {
-        file.open(args.input_file, std::ios::binary);
-        if (!file) {
-            std::cerr << "repel shape: cannot read " << args.input_file << "\n";
-            return 2;
-        }
-        in = &file;
-    }
+    std::istream* in = open_input(args.input_file, file, "shape");
+    if (!in) return 2;
     SmiReader reader(*in);
     nlohmann::json all = nlohmann::json::array();
     long read = 0, failed = 0;

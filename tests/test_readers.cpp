@@ -79,6 +79,7 @@ TEST(XyzReader, MalformedFilesNameTheLine) {
     expect_line("1\ncharge=abc\nO 0 0 0\n", InputFormat::xyz, 2, "charge=abc");
     expect_line("-4\ncomment\n", InputFormat::xyz, 1);
     expect_line("1\n", InputFormat::xyz, 2);
+    expect_line("0\nnothing\n", InputFormat::xyz, 1, "0");
 }
 
 TEST(PdbReader, ReadsAtomsElementsChargesAndConect) {

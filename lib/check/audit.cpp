@@ -168,8 +168,7 @@ AngleFit fit_angles(const Molecule& m, const std::vector<Eigen::Vector3d>& pos, 
     return fit;
 }
 
-void check_valences(const ReadStructure& in, Audit& out, const ValenceResult& v, int unpaired_allowed,
-                    bool multiplicity_known) {
+void check_valences(Audit& out, const ValenceResult& v, int unpaired_allowed, bool multiplicity_known) {
     const Molecule& m = out.structure.molecule;
     for (int i : v.overbonded) {
         out.findings.push_back({"neighbours", {i + 1},
@@ -198,7 +197,6 @@ void check_valences(const ReadStructure& in, Audit& out, const ValenceResult& v,
                  m.bond_order_sum(i), m.bond_order_sum(i) + u, "", Severity::error, 50});
         }
     }
-    (void)in;
 }
 
 }  // namespace
@@ -268,7 +266,7 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
             }
         }
     }
-    check_valences(in, out, valence, unpaired_allowed, multiplicity.has_value());
+    check_valences(out, valence, unpaired_allowed, multiplicity.has_value());
     if (valence.charge != out.charge)
         out.findings.push_back({"charge", {},
                                 fmt::format("the formal charges add up to {:+d}, but the total charge is {:+d}{}",

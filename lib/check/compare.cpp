@@ -140,7 +140,7 @@ std::vector<Finding> compare_with_reference(const Molecule& s, const std::vector
     if (cr != cs) {
         std::string diff;
         std::map<int, int> all = cr;
-        for (auto [z, n] : cs) all[z] += 0, (void)n;
+        for (const auto& entry : cs) all.emplace(entry.first, 0);
         for (auto [z, n] : all) {
             const int d = cs[z] - cr[z];
             if (d != 0) diff += fmt::format(" {} {} {}", d > 0 ? "extra" : "missing", std::abs(d), element(z).symbol);

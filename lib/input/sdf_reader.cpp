@@ -261,6 +261,8 @@ std::vector<ReadStructure> read_sdf(std::istream& in) {
                         counts, 35);
             read_v2000(r, rec, *natoms, *nbonds);
         }
+        if (rec.structure.molecule.atom_count() == 0)
+            fail_at(rec.line, "a record of 0 atoms: expected at least one atom", head[0]);
         // Data items until $$$$ (or the end of a .mol file).
         while (auto line = r.next())
             if (line->rfind("$$$$", 0) == 0) break;

@@ -99,6 +99,7 @@ std::vector<ReadStructure> read_xyz(std::istream& in) {
         const long count_at = reader.line();
         auto tokens = split(*count_line);
         auto count = input::parse_integer(tokens.empty() ? "" : tokens[0]);
+        if (count && *count == 0) fail_at(count_at, "a structure of 0 atoms: expected at least one atom", *count_line, 1);
         if (!count || tokens.size() > 1 || *count < 0 || *count > kMaxAtoms) {
             const std::string what =
                 out.empty() ? "expected the atom count (a whole number) on the first line of an XYZ file"

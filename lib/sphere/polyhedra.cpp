@@ -21,14 +21,14 @@ void ring(std::vector<Vector3d>& v, int n, double theta, double phi0 = 0) {
     for (int k = 0; k < n; ++k) v.push_back(polar(theta, phi0 + 360.0 * k / n));
 }
 
-// Every orthogonal map (rotation or reflection) that permutes the vertices, as vertex permutations.
-std::vector<std::vector<int>> symmetry_of(const std::vector<Vector3d>& v) {
+}  // namespace
+
+std::vector<SymmetryOperation> symmetry_operations(const std::vector<Vector3d>& v, double tol) {
     const int n = static_cast<int>(v.size());
-    constexpr double tol = 1e-6;
-    std::vector<std::vector<int>> group;
+    std::vector<SymmetryOperation> group;
     std::vector<int> identity(static_cast<size_t>(n));
     for (int i = 0; i < n; ++i) identity[static_cast<size_t>(i)] = i;
-    group.push_back(identity);
+    group.push_back({Eigen::Matrix3d::Identity(), identity});
     if (n < 3) return group;
     // Two reference vertices that are not collinear.
     int p0 = 0, p1 = -1;
@@ -66,13 +66,15 @@ std::vector<std::vector<int>> symmetry_of(const std::vector<Vector3d>& v) {
                 }
                 if (ok && perm != identity) {
                     bool seen = false;
-                    for (const auto& g : group) seen = seen || g == perm;
-                    if (!seen) group.push_back(perm);
+                    for (const auto& g : group) seen = seen || g.perm == perm;
+                    if (!seen) group.push_back({r, perm});
                 }
             }
         }
     return group;
 }
+
+namespace {
 
 // A small deterministic generator (SplitMix64): the same numbers on every platform and compiler.
 struct SplitMix {
@@ -112,7 +114,7 @@ std::vector<Vector3d> spiral_points(int n) {
 Polyhedron make(const char* name, std::vector<Vector3d> v) {
     for (auto& p : v) p.normalize();
     Polyhedron poly{name, std::move(v), {}};
-    poly.symmetry = symmetry_of(poly.vertices);
+    for (const SymmetryOperation& op : symmetry_operations(poly.vertices, 1e-6)) poly.symmetry.push_back(op.perm);
     return poly;
 }
 

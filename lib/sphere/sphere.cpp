@@ -26,11 +26,30 @@ constexpr int kMaxRelaxedSeeds = 24;
 constexpr int kMaxLabellings = 5000;
 // Seeds are nudged off exact symmetry by this much so that the minimiser can leave a symmetric saddle point.
 constexpr double kSeedNudge = 1e-3;
+// Two arrangement sites count as images under a symmetry operation within this distance: soft modes leave the
+// arrangement solve symmetric only to about 1e-3 (measured on the pentagonal bipyramid); a genuinely unsymmetric
+// arrangement misses by much more.
+constexpr double kSymmetryTolerance = 2e-3;
 
 struct Problem {
     const SphereDomain* domains;
     int n;
+    // When set, the relaxation stays within the symmetry of the domain pattern: coordinates are projected onto the
+    // subspace these operations leave invariant (rotation * x_i = x_perm[i]) before every evaluation.
+    const std::vector<SymmetryOperation>* symmetry = nullptr;
 };
+
+// x -> the average of its images under the operations: the orthogonal projection onto the symmetric subspace.
+void symmetrize(const std::vector<SymmetryOperation>& ops, int n, const double* x, double* out) {
+    std::vector<Vector3d> acc(static_cast<size_t>(n), Vector3d::Zero());
+    for (const SymmetryOperation& op : ops)
+        for (int i = 0; i < n; ++i)
+            acc[static_cast<size_t>(op.perm[static_cast<size_t>(i)])] +=
+                op.rotation * Vector3d(x[3 * i], x[3 * i + 1], x[3 * i + 2]);
+    const double inv = 1.0 / static_cast<double>(ops.size());
+    for (int i = 0; i < n; ++i)
+        for (int c = 0; c < 3; ++c) out[3 * i + c] = acc[static_cast<size_t>(i)][c] * inv;
+}
 
 // Energy and gradient in unconstrained coordinates x_i (u_i = x_i / |x_i|).
 double energy_and_gradient(const Problem& pb, const double* x, double* grad) {
@@ -78,7 +97,14 @@ double energy_and_gradient(const Problem& pb, const double* x, double* grad) {
 }
 
 double nlopt_objective(unsigned, const double* x, double* grad, void* data) {
-    return energy_and_gradient(*static_cast<const Problem*>(data), x, grad);
+    const Problem& pb = *static_cast<const Problem*>(data);
+    if (!pb.symmetry) return energy_and_gradient(pb, x, grad);
+    // E(S x): the gradient is S^T grad E(S x) = S grad E(S x), S being an orthogonal projection (a group average).
+    double sx[36], g[36];
+    symmetrize(*pb.symmetry, pb.n, x, sx);
+    double e = energy_and_gradient(pb, sx, grad ? g : nullptr);
+    if (grad) symmetrize(*pb.symmetry, pb.n, g, grad);
+    return e;
 }
 
 // Relaxes points in place; returns the energy.
@@ -96,6 +122,11 @@ double relax(const Problem& pb, std::vector<Vector3d>& points) {
     double f = 0;
     nlopt_optimize(opt, x.data(), &f);  // a stop for round-off near the minimum is fine: x is the best point seen
     nlopt_destroy(opt);
+    if (pb.symmetry) {
+        std::vector<double> sx(x.size());
+        symmetrize(*pb.symmetry, n, x.data(), sx.data());
+        x = sx;
+    }
     for (int i = 0; i < n; ++i)
         points[static_cast<size_t>(i)] =
             Vector3d(x[static_cast<size_t>(3 * i)], x[static_cast<size_t>(3 * i + 1)], x[static_cast<size_t>(3 * i + 2)])
@@ -106,6 +137,7 @@ double relax(const Problem& pb, std::vector<Vector3d>& points) {
 struct Seed {
     std::vector<Vector3d> points;  // in the problem's domain order
     double energy;
+    std::vector<SymmetryOperation> symmetry;  // operations the relaxation keeps (staged solve only); empty: none
 };
 
 // Every distinct placement of the domain kinds on the vertices of each starting polyhedron.
@@ -205,10 +237,10 @@ std::vector<Vector3d> best_of(const std::vector<SphereDomain>& sorted, std::vect
         std::stable_sort(seeds.begin(), seeds.end(), [](const Seed& a, const Seed& b) { return a.energy < b.energy; });
         seeds.resize(kMaxRelaxedSeeds);
     }
-    Problem pb{sorted.data(), static_cast<int>(sorted.size())};
     std::vector<Vector3d> best;
     double best_e = INFINITY;
     for (Seed& s : seeds) {
+        Problem pb{sorted.data(), static_cast<int>(sorted.size()), s.symmetry.empty() ? nullptr : &s.symmetry};
         double e = relax(pb, s.points);
         if (e < best_e * (1 - 1e-12)) {
             best_e = e;
@@ -248,6 +280,14 @@ std::vector<Vector3d> solve_staged_sorted(const std::vector<SphereDomain>& arran
     Problem pb{sorted.data(), n};
     std::vector<Seed> seeds;
     std::vector<double> x(static_cast<size_t>(3 * n));
+    // Symmetry of the sites, with a tolerance above the arrangement solve's convergence.
+    const std::vector<SymmetryOperation> site_symmetry = symmetry_operations(sites, kSymmetryTolerance);
+    std::vector<int> domain_at(static_cast<size_t>(n), -1);
+    auto site_of = [&](const Vector3d& p) {
+        for (int s = 0; s < n; ++s)
+            if (sites[static_cast<size_t>(s)] == p) return s;
+        return 0;
+    };
     for (int count = 0; count < kMaxLabellings; ++count) {
         // Site s of run r takes the next unplaced domain of kind labels[r][s - begin] in that run.
         std::vector<Vector3d> pts(static_cast<size_t>(n));
@@ -260,13 +300,31 @@ std::vector<Vector3d> solve_staged_sorted(const std::vector<SphereDomain>& arran
                     if (!used[static_cast<size_t>(d - b)] && kind[static_cast<size_t>(d)] == want) {
                         used[static_cast<size_t>(d - b)] = true;
                         pts[static_cast<size_t>(d)] = sites[static_cast<size_t>(site)];
+                        domain_at[static_cast<size_t>(site)] = d;
                         break;
                     }
             }
         }
         for (int i = 0; i < n; ++i)
             for (int c = 0; c < 3; ++c) x[static_cast<size_t>(3 * i + c)] = pts[static_cast<size_t>(i)][c];
-        seeds.push_back({std::move(pts), energy_and_gradient(pb, x.data(), nullptr)});
+        // The operations of the sites that map every domain onto a domain of its own kind: the relaxation keeps
+        // them, so a symmetric pattern keeps its symmetric shape (IF7 stays a pentagonal bipyramid) instead of
+        // sliding off a saddle point that symmetry would otherwise leave it on only by round-off.
+        std::vector<SymmetryOperation> keep;
+        for (const SymmetryOperation& op : site_symmetry) {
+            std::vector<int> dperm(static_cast<size_t>(n));
+            bool ok = true;
+            for (int d = 0; d < n && ok; ++d) {
+                // domain d sits at pts[d]; its image sits at the site op maps that site to.
+                int site = site_of(pts[static_cast<size_t>(d)]);
+                int target_site = op.perm[static_cast<size_t>(site)];
+                int image = domain_at[static_cast<size_t>(target_site)];
+                ok = kind[static_cast<size_t>(image)] == kind[static_cast<size_t>(d)];
+                dperm[static_cast<size_t>(d)] = image;
+            }
+            if (ok) keep.push_back({op.rotation, dperm});
+        }
+        seeds.push_back({std::move(pts), energy_and_gradient(pb, x.data(), nullptr), std::move(keep)});
         // Next combination: an odometer over the runs' permutations.
         size_t r = runs.size();
         while (r > 0 && !std::next_permutation(labels[r - 1].begin(), labels[r - 1].end())) --r;

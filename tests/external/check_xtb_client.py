@@ -102,7 +102,9 @@ def connectivity_problems(symbols, coords, graph, comp):
 
 def run_xtb(workdir, filename, charge, uhf):
     env = dict(os.environ, OMP_NUM_THREADS='1', OMP_STACKSIZE='500M')
-    cmd = [XTB, filename, '--opt', 'normal', '--gfn', '2', '--chrg', str(charge), '--uhf', str(uhf)]
+    # --cycles 600: xtb's default cap scales with the atom count (219 for penicillin G), which floppy molecules
+    # can exceed from any start; the cycles used are recorded and reported, so slow convergence stays visible.
+    cmd = [XTB, filename, '--opt', 'normal', '--gfn', '2', '--chrg', str(charge), '--uhf', str(uhf), '--cycles', '600']
     start = time.time()
     try:
         r = subprocess.run(cmd, cwd=workdir, capture_output=True, text=True, timeout=XTB_TIMEOUT, env=env)

@@ -1,0 +1,54 @@
+"""`repel check` passes structures optimised by a quantum-chemistry program clean.
+
+Client: xtb (Debian package `xtb`, GFN2-xTB, Bannwarth, Ehlert and Grimme, J. Chem. Theory Comput. 15 (2019) 1652).
+For a dozen and a half varied molecules (alcohol, acid, arenes, a nitro group, a sulfoxide and a sulfone, a nitrile,
+SF4, PF5, ClF3, an amide, a furan, a chair, a stereocentre, a trans double bond): `repel build SMILES -o start.xyz`,
+`xtb start.xyz --opt normal --gfn 2` (OMP_NUM_THREADS=1), then `repel check xtbopt.xyz --charge 0 --multiplicity 1`
+must report no finding (exit status 0): an optimised closed-shell structure is what the audit must not complain of.
+Usage: check_audit_xtb.py /path/to/repel
+"""
+import json
+import os
+import subprocess
+import sys
+import tempfile
+
+XTB = "/usr/bin/xtb"
+MOLECULES = ["CCO", "CC(=O)O", "c1ccccc1", "c1ccncc1", "C[N+](=O)[O-]", "CS(C)=O", "CS(=O)(=O)C", "CC#N", "SF4",
+             "PF5", "ClF3", "Oc1ccccc1", "CC(C)=O", "NC=O", "c1ccoc1", "C1CCCCC1", "C[C@H](N)C(=O)O", "F/C=C/F"]
+
+
+def main():
+    repel = sys.argv[1]
+    if not os.path.exists(XTB):
+        print(f"xtb not found at {XTB}: install the Debian package xtb")
+        return 1
+    failures = []
+    env = dict(os.environ, OMP_NUM_THREADS="1")
+    for smiles in MOLECULES:
+        with tempfile.TemporaryDirectory() as tmp:
+            r = subprocess.run([repel, "build", smiles, "-o", "start.xyz"], cwd=tmp, capture_output=True, text=True,
+                               timeout=120)
+            if r.returncode != 0:
+                failures.append(f"{smiles}: repel build failed: {r.stderr.strip()}")
+                continue
+            x = subprocess.run([XTB, "start.xyz", "--opt", "normal", "--gfn", "2"], cwd=tmp, capture_output=True,
+                               text=True, timeout=300, env=env)
+            opt = os.path.join(tmp, "xtbopt.xyz")
+            if x.returncode != 0 or not os.path.exists(opt):
+                failures.append(f"{smiles}: xtb did not optimise (exit {x.returncode})")
+                continue
+            c = subprocess.run([repel, "check", opt, "--json", "--charge", "0", "--multiplicity", "1"],
+                               capture_output=True, text=True, timeout=120)
+            doc = json.loads(c.stdout) if c.stdout.strip() else {}
+            findings = [f["message"] for s in doc.get("structures", []) for f in s["findings"]]
+            if c.returncode != 0 or findings:
+                failures.append(f"{smiles}: exit {c.returncode}, findings {findings} {c.stderr.strip()}")
+    print(f"{len(MOLECULES)} molecules optimised by xtb, {len(failures)} with findings")
+    for f in failures:
+        print("FAIL", f)
+    return 1 if failures else 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
