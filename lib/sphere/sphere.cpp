@@ -259,6 +259,8 @@ std::vector<Vector3d> solve_sorted(const std::vector<SphereDomain>& sorted) {
     return best_of(sorted, seeds_for(sorted, kinds_of(sorted)));
 }
 
+void append_key(std::string& key, const std::vector<SphereDomain>& sorted);
+
 // Two stages: the arrangement domains fix which polyhedron and which of its sites each kind of domain takes (their
 // global minimum); then the domains themselves, placed on those sites in every distinct way that keeps each domain on
 // a site of its own arrangement kind, relax locally to their angles.
@@ -266,7 +268,15 @@ std::vector<Vector3d> solve_staged_sorted(const std::vector<SphereDomain>& arran
                                           const std::vector<SphereDomain>& sorted) {
     const int n = static_cast<int>(sorted.size());
     if (n <= 2) return solve_sorted(sorted);
-    const std::vector<Vector3d> sites = solve_sorted(arrangement_sorted);
+    // The arrangement depends only on the arrangement pattern (a few kinds: bonds, lone pairs, single electron), so
+    // its solve is kept per thread and shared by every model pattern with the same arrangement.
+    thread_local std::unordered_map<std::string, std::vector<Vector3d>> arrangement_cache;
+    std::string arrangement_key;
+    append_key(arrangement_key, arrangement_sorted);
+    auto found = arrangement_cache.find(arrangement_key);
+    if (found == arrangement_cache.end())
+        found = arrangement_cache.emplace(std::move(arrangement_key), solve_sorted(arrangement_sorted)).first;
+    const std::vector<Vector3d>& sites = found->second;
     const std::vector<int> site_kind = kinds_of(arrangement_sorted);
     // Runs of equal arrangement kind [begin, end), and within each the domain kinds (ascending: sorted order).
     std::vector<std::pair<int, int>> runs;
@@ -288,7 +298,34 @@ std::vector<Vector3d> solve_staged_sorted(const std::vector<SphereDomain>& arran
             if (sites[static_cast<size_t>(s)] == p) return s;
         return 0;
     };
+    // Site symmetries that keep every site's arrangement kind: placements they map onto each other are the same
+    // placement, so only the lexicographically smallest of each set is relaxed.
+    std::vector<const SymmetryOperation*> kind_preserving;
+    for (const SymmetryOperation& op : site_symmetry) {
+        bool ok = true;
+        for (int site = 0; site < n && ok; ++site)
+            ok = site_kind[static_cast<size_t>(op.perm[static_cast<size_t>(site)])] == site_kind[static_cast<size_t>(site)];
+        if (ok) kind_preserving.push_back(&op);
+    }
+    std::vector<int> full(static_cast<size_t>(n)), image(static_cast<size_t>(n));
     for (int count = 0; count < kMaxLabellings; ++count) {
+        for (size_t r = 0; r < runs.size(); ++r)
+            std::copy(labels[r].begin(), labels[r].end(), full.begin() + runs[r].first);
+        bool canonical = true;
+        for (const SymmetryOperation* op : kind_preserving) {
+            for (int site = 0; site < n; ++site)
+                image[static_cast<size_t>(op->perm[static_cast<size_t>(site)])] = full[static_cast<size_t>(site)];
+            if (std::lexicographical_compare(image.begin(), image.end(), full.begin(), full.end())) {
+                canonical = false;
+                break;
+            }
+        }
+        if (!canonical) {
+            size_t r = runs.size();
+            while (r > 0 && !std::next_permutation(labels[r - 1].begin(), labels[r - 1].end())) --r;
+            if (r == 0) break;
+            continue;
+        }
         // Site s of run r takes the next unplaced domain of kind labels[r][s - begin] in that run.
         std::vector<Vector3d> pts(static_cast<size_t>(n));
         for (size_t r = 0; r < runs.size(); ++r) {
