@@ -120,7 +120,9 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options)
     pack_components(molecule, s.positions);
 
     if (options.refine && n > 1) {
-        const RefineResult r = refine_structure(molecule, domains, chiral, double_bonds, s.positions);
+        RefineOptions refine_options;
+        refine_options.gradient_tolerance = options.refine_tolerance;
+        const RefineResult r = refine_structure(molecule, domains, chiral, double_bonds, s.positions, refine_options);
         if (!r.converged && r.iterations > 0)
             s.warnings.push_back(fmt::format("refinement not converged after {} iterations{}{}", r.iterations,
                                              r.message.empty() ? "" : ": ", r.message));
