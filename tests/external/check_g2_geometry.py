@@ -177,6 +177,12 @@ def main():
     bond_mae = mae([e for e, _, _ in all_bonds])
     angle_mae = mae([e for e, _, _ in all_angles])
     sc_mae = mae([e for e, _ in single_centre_bonds])
+    # The species issue 2 names (its list ends with "...": the wider set above is ours).
+    named = {'H2O', 'NH3', 'CH4', 'SiH4', 'PH3', 'SH2', 'PF3', 'SiF4', 'CF4', 'NF3', 'ClF3', 'BF3', 'BCl3', 'AlCl3',
+             'CO2', 'CS2', 'OCS', 'SO2'}
+    named_mae = mae([e for e, m in single_centre_bonds if m in named])
+    print(f'the {len(named)} single-centre species issue 2 names: bond MAE {named_mae:.4f} A '
+          f'(target <= {SINGLE_CENTRE_BOND_MAE_MAX})')
     sc_names = sorted({m for _, m in single_centre_bonds})
 
     print()
@@ -215,6 +221,9 @@ def main():
                                         f'{BOND_MAE_MAX}; G2 MP2/6-31G(d), Curtiss et al. 1991/1997)')
     t.check(angle_mae <= ANGLE_MAE_MAX, f'angle MAE {angle_mae:.2f} deg <= {ANGLE_MAE_MAX} over the G2 set (issue 3; '
                                         'G2 MP2/6-31G(d), Curtiss et al. 1991/1997)')
+    t.check(named_mae <= SINGLE_CENTRE_BOND_MAE_MAX,
+            f'bond MAE {named_mae:.4f} A <= {SINGLE_CENTRE_BOND_MAE_MAX} on the single-centre species issue 2 names '
+            '(G2 MP2/6-31G(d), Curtiss et al. 1991/1997)')
     t.check(sc_mae <= SINGLE_CENTRE_BOND_MAE_GUARD,
             f'single-centre bond MAE {sc_mae:.4f} A <= {SINGLE_CENTRE_BOND_MAE_GUARD} (no regression; issue 2 target '
             f'{SINGLE_CENTRE_BOND_MAE_MAX}; G2 MP2/6-31G(d), Curtiss et al. 1991/1997)')
