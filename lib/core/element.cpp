@@ -26,7 +26,7 @@ namespace {
 // r_triple: triple-bond covalent radii, P. Pyykko, S. Riedel and M. Patzschke, Chem. Eur. J. 11 (2005) 3511.
 //   The three Pyykko columns were transcribed from the combined Cordero/Pyykko table shipped in Debian's
 //   python3-periodictable (periodictable.covalent_radius.CorderoPyykko), and agree with two other public
-//   transcriptions for the elements they show. Note the published non-monotonic cases (S, Cu, Ag, Au, In, Tl, ...):
+//   copies for the elements they show. Note the published non-monotonic cases (S, Cu, Ag, Au, In, Tl, ...):
 //   a triple radius larger than the double one is the paper's value, not a typo.
 // r_perception: covalent radii of B. Cordero et al., Dalton Trans. (2008) 2832 (C sp3 0.76; Mn, Fe, Co low spin).
 //   Transcribed from ase.data.covalent_radii in Debian's python3-ase, identical to python3-periodictable's copy.
