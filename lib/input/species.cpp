@@ -9,17 +9,27 @@
 namespace repel {
 namespace {
 
-// A formula uses only element symbols, counts, spaces and a charge; SMILES has its own punctuation.
+// A formula uses only element symbols, counts, spaces and a charge; SMILES has its own punctuation. Ring-closure
+// digits can look like counts ("C1CC"), but a chemist never writes a count of 1 or the same element twice in a row.
 bool looks_like_formula(std::string_view text) {
     for (char ch : text) {
         unsigned char c = static_cast<unsigned char>(ch);
         if (!(std::isalnum(c) || c == '+' || c == '-' || c == ' ' || c == '^' || c == '(' || c == ')')) return false;
     }
-    // A formula has a digit after a letter (SF4) or a space/charge; SMILES like "CCO" has neither.
-    for (size_t i = 1; i < text.size(); ++i)
-        if (std::isdigit(static_cast<unsigned char>(text[i])) && std::isalpha(static_cast<unsigned char>(text[i - 1])))
-            return true;
-    return false;
+    bool has_count = false;
+    std::string_view previous;
+    for (size_t i = 0; i < text.size() && std::isalpha(static_cast<unsigned char>(text[i]));) {
+        size_t start = i++;
+        if (i < text.size() && std::islower(static_cast<unsigned char>(text[i]))) ++i;
+        std::string_view symbol = text.substr(start, i - start);
+        size_t digits = i;
+        while (i < text.size() && std::isdigit(static_cast<unsigned char>(text[i]))) ++i;
+        std::string_view count = text.substr(digits, i - digits);
+        if (count == "1" || (!count.empty() && count[0] == '0') || symbol == previous) return false;
+        has_count = has_count || !count.empty();
+        previous = symbol;
+    }
+    return has_count;
 }
 
 }  // namespace
