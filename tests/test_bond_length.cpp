@@ -113,7 +113,9 @@ double radius(const ElementData& e, int order) {
 double radii_sum(const ReferenceBond& b) {
     const ElementData& a = element(element_number(b.centre));
     const ElementData& c = element(element_number(b.ligand));
-    if (b.order == 1.5) return 0.5 * (radius(a, 1) + radius(c, 1) + radius(a, 2) + radius(c, 2));
+    if (b.order == 1.5)  // between the orders along Pauling's logarithmic relation, as bond_length_fractional does
+        return radius(a, 1) + radius(c, 1) +
+               std::log(1.5) / std::log(2.0) * (radius(a, 2) + radius(c, 2) - radius(a, 1) - radius(c, 1));
     const int o = static_cast<int>(b.order);
     return radius(a, o) + radius(c, o);
 }
@@ -236,20 +238,25 @@ TEST(BondLength, IsSymmetricInTheTwoElements) {
                 EXPECT_DOUBLE_EQ(bond_length(a, b, order), bond_length(b, a, order)) << a << " " << b;
 }
 
+// Between tabulated orders: Pauling's logarithmic relation (J. Am. Chem. Soc. 69 (1947) 542) through both ends.
+static double pauling(double r_low, double r_high, double order, int lower) {
+    return r_low + std::log(order / lower) / std::log((lower + 1.0) / lower) * (r_high - r_low);
+}
+
 TEST(BondLength, AromaticIsOrderOneAndAHalf) {
     const double aromatic = bond_length(6, 6, 1, true);
-    EXPECT_NEAR(aromatic, 0.5 * (1.50 + 1.34), 1e-12);
+    EXPECT_NEAR(aromatic, pauling(1.50, 1.34, 1.5, 1), 1e-12);
     EXPECT_DOUBLE_EQ(aromatic, bond_length_fractional(6, 6, 1.5));
-    // Benzene's C-C bond is 1.39 A (gas-phase electron diffraction, from memory).
-    EXPECT_NEAR(aromatic, 1.39, 0.04);
-    EXPECT_NEAR(bond_length(6, 7, 1, true), 0.5 * (0.75 + 0.71 + 0.67 + 0.60), 1e-12);
+    // Benzene's C-C bond is 1.39 A (gas-phase electron diffraction, from memory); a straight line gives 1.42.
+    EXPECT_NEAR(aromatic, 1.39, 0.02);
+    EXPECT_NEAR(bond_length(6, 7, 1, true), pauling(0.75 + 0.71, 0.67 + 0.60, 1.5, 1), 1e-12);
 }
 
 TEST(BondLength, FractionalOrderInterpolatesBetweenTabulatedOrders) {
     for (int order = 1; order <= 3; ++order)
         EXPECT_DOUBLE_EQ(bond_length_fractional(6, 7, order), bond_length(6, 7, order));
-    EXPECT_NEAR(bond_length_fractional(6, 6, 1.25), 1.50 - 0.25 * 0.16, 1e-12);
-    EXPECT_NEAR(bond_length_fractional(6, 6, 2.5), 0.5 * (1.34 + 1.20), 1e-12);
+    EXPECT_NEAR(bond_length_fractional(6, 6, 1.25), pauling(1.50, 1.34, 1.25, 1), 1e-12);
+    EXPECT_NEAR(bond_length_fractional(6, 6, 2.5), pauling(1.34, 1.20, 2.5, 2), 1e-12);
     double previous = bond_length_fractional(6, 6, 1.0);
     for (double order = 1.1; order <= 3.0; order += 0.1) {
         const double l = bond_length_fractional(6, 6, order);

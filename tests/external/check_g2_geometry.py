@@ -46,7 +46,7 @@ SINGLE_CENTRE_BOND_MAE_MAX = 0.03  # A, issue 2
 # asserted is (a) the targets that are met, (b) no regression beyond today's measured values for the ones that are
 # not (issue 2 and 3 stay open on them), and (c) per-molecule limits except for the known limits below, each with
 # its reason. README.md lists the same.
-BOND_MAE_GUARD = 0.027             # measured 0.0266 A (target 0.025 not met)
+BOND_MAE_GUARD = 0.027             # measured 0.0264 A (target 0.025 not met)
 SINGLE_CENTRE_BOND_MAE_GUARD = 0.037  # measured 0.0363 A (target 0.03 not met)
 KNOWN_LIMITS = {
     # Bonds between two atoms that both carry lone pairs are longer than the covalent-radius sums say (lone-pair
