@@ -335,9 +335,9 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
                 const double ratio = fit.rms / threshold;
                 out.findings.push_back(
                     {"geometry", {i + 1},
-                     fmt::format("{} ({}, {} {}): its angles deviate from the predicted ones by {:.1f} degrees RMS; "
+                     fmt::format("{} ({}, {}{}): its angles deviate from the predicted ones by {:.1f} degrees RMS; "
                                  "worst {}-{}-{} measured {:.1f}, predicted {:.1f}",
-                                 label(m, i), c.axe, c.electron_geometry, c.shape == c.electron_geometry ? "" : "-> " + c.shape,
+                                 label(m, i), c.axe, c.electron_geometry, c.shape == c.electron_geometry ? "" : " -> " + c.shape,
                                  fit.rms, label(m, fit.worst_a), label(m, i), label(m, fit.worst_b), fit.worst_measured,
                                  fit.worst_predicted),
                      fit.worst_measured, fit.worst_predicted, "degrees", severity_of(ratio), ratio});
