@@ -6,7 +6,7 @@
 #include <stdexcept>
 #include <tuple>
 
-#include "assemble/grid.hpp"
+#include "core/neighbor_grid.hpp"
 #include "assemble/place.hpp"
 #include "core/bond_length.hpp"
 #include "core/element.hpp"

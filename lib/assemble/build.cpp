@@ -6,7 +6,7 @@
 
 #include "assemble/assemble.hpp"
 #include "assemble/components.hpp"
-#include "assemble/grid.hpp"
+#include "core/neighbor_grid.hpp"
 #include "assemble/ring_embed.hpp"
 #include "assemble/rings.hpp"
 #include "assemble/stereo.hpp"

@@ -4,7 +4,7 @@
 #include <cmath>
 #include <limits>
 
-#include "assemble/grid.hpp"
+#include "core/neighbor_grid.hpp"
 #include "core/element.hpp"
 
 namespace repel {

@@ -15,6 +15,7 @@
 #include "core/bond_length.hpp"
 #include "core/element.hpp"
 #include "core/error.hpp"
+#include "core/neighbor_grid.hpp"
 #include "check/compare.hpp"
 #include "domains/domains.hpp"
 #include "input/smiles.hpp"
@@ -436,44 +437,28 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
         const double reach = opt.contact_fraction * 2 * vmax;
         if (n > 1 && reach > 0) {
             const double cell = std::max(reach, 0.5);
-            Eigen::Vector3d lo = pos[0];
-            for (const auto& p : pos) lo = lo.cwiseMin(p);
-            std::unordered_map<long, std::vector<int>> grid;
-            auto key = [&](const Eigen::Vector3d& p, long dx, long dy, long dz) {
-                const Eigen::Vector3d c = ((p - lo) / cell).array().floor();
-                const long x = static_cast<long>(c.x()) + dx, y = static_cast<long>(c.y()) + dy,
-                           z = static_cast<long>(c.z()) + dz;
-                return (x * 73856093L) ^ (y * 19349663L) ^ (z * 83492791L);
-            };
-            for (int i = 0; i < n; ++i) grid[key(pos[static_cast<size_t>(i)], 0, 0, 0)].push_back(i);
-            std::set<std::pair<int, int>> seen;  // a hash collision may visit a cell twice
+            NeighborGrid grid(cell);
+            for (int i = 0; i < n; ++i) grid.insert(i, pos[static_cast<size_t>(i)]);
+            std::set<std::pair<int, int>> seen;  // each pair reported once
             for (int i = 0; i < n; ++i)
-                for (long dx = -1; dx <= 1; ++dx)
-                    for (long dy = -1; dy <= 1; ++dy)
-                        for (long dz = -1; dz <= 1; ++dz) {
-                            auto it = grid.find(key(pos[static_cast<size_t>(i)], dx, dy, dz));
-                            if (it == grid.end()) continue;
-                            for (int j : it->second) {
-                                if (j <= i || excluded[static_cast<size_t>(j)] || excluded[static_cast<size_t>(i)]) continue;
-                                const double rv = element(m.atoms[static_cast<size_t>(i)].z).r_vdw +
-                                                  element(m.atoms[static_cast<size_t>(j)].z).r_vdw;
-                                const double d = (pos[static_cast<size_t>(i)] - pos[static_cast<size_t>(j)]).norm();
-                                if (rv <= 0 || d >= opt.contact_fraction * rv) continue;
-                                if (m.bond_between(i, j) >= 0) continue;
-                                bool one_three = false;
-                                for (const Neighbor& nb : m.neighbors(i))
-                                    if (m.bond_between(nb.atom, j) >= 0) one_three = true;
-                                if (one_three) continue;
-                                if (!seen.emplace(i, j).second) continue;
-                                const double ratio = (opt.contact_fraction * rv - d) / (0.1 * rv) + 1;
-                                out.findings.push_back(
-                                    {"contact", {i + 1, j + 1},
-                                     fmt::format("{} and {} are {:.2f} A apart, closer than {:.0f}% of their van der "
-                                                 "Waals contact ({:.2f} A)",
-                                                 label(m, i), label(m, j), d, 100 * opt.contact_fraction, rv),
-                                     d, opt.contact_fraction * rv, "angstrom", severity_of(ratio), ratio});
-                            }
-                        }
+                grid.for_each_near(pos[static_cast<size_t>(i)], [&](int j) {
+                    if (j <= i || excluded[static_cast<size_t>(j)] || excluded[static_cast<size_t>(i)]) return;
+                    const double rv = element(m.atoms[static_cast<size_t>(i)].z).r_vdw +
+                                      element(m.atoms[static_cast<size_t>(j)].z).r_vdw;
+                    const double d = (pos[static_cast<size_t>(i)] - pos[static_cast<size_t>(j)]).norm();
+                    if (rv <= 0 || d >= opt.contact_fraction * rv) return;
+                    if (m.bond_between(i, j) >= 0) return;
+                    for (const Neighbor& nb : m.neighbors(i))
+                        if (m.bond_between(nb.atom, j) >= 0) return;  // 1-3 pairs are angles, not contacts
+                    if (!seen.emplace(i, j).second) return;
+                    const double ratio = (opt.contact_fraction * rv - d) / (0.1 * rv) + 1;
+                    out.findings.push_back(
+                        {"contact", {i + 1, j + 1},
+                         fmt::format("{} and {} are {:.2f} A apart, closer than {:.0f}% of their van der "
+                                     "Waals contact ({:.2f} A)",
+                                     label(m, i), label(m, j), d, 100 * opt.contact_fraction, rv),
+                         d, opt.contact_fraction * rv, "angstrom", severity_of(ratio), ratio});
+                });
         }
     }
 

@@ -11,6 +11,7 @@
 
 #include "core/bond_length.hpp"
 #include "core/element.hpp"
+#include "core/neighbor_grid.hpp"
 
 namespace repel {
 namespace {
@@ -270,44 +271,27 @@ std::vector<Overlap> perceive_bonds(Molecule& m, const std::vector<Eigen::Vector
     double rmax = 0;
     for (const Atom& a : m.atoms) rmax = std::max(rmax, element(a.z).r_perception);
     const double cell = std::max(0.5, 2 * rmax + options.tolerance);
-    Eigen::Vector3d lo = pos[0];
-    for (const auto& p : pos) lo = lo.cwiseMin(p);
-    auto key = [&](const Eigen::Vector3d& p) {
-        const Eigen::Vector3d c = ((p - lo) / cell).array().floor();
-        return std::array<long, 3>{static_cast<long>(c.x()), static_cast<long>(c.y()), static_cast<long>(c.z())};
-    };
-    auto hash = [](long x, long y, long z) { return (x * 73856093L) ^ (y * 19349663L) ^ (z * 83492791L); };
-    std::unordered_map<long, std::vector<int>> grid;
-    for (int i = 0; i < n; ++i) {
-        auto k = key(pos[static_cast<size_t>(i)]);
-        grid[hash(k[0], k[1], k[2])].push_back(i);
-    }
+    NeighborGrid grid(cell);
+    for (int i = 0; i < n; ++i) grid.insert(i, pos[static_cast<size_t>(i)]);
     std::vector<std::pair<int, int>> pairs;  // candidate bonds, i < j
     std::vector<char> excluded(static_cast<size_t>(n), 0);
     for (int i = 0; i < n; ++i) {
-        auto k = key(pos[static_cast<size_t>(i)]);
         const double ri = element(m.atoms[static_cast<size_t>(i)].z).r_perception;
-        for (long dx = -1; dx <= 1; ++dx)
-            for (long dy = -1; dy <= 1; ++dy)
-                for (long dz = -1; dz <= 1; ++dz) {
-                    auto it = grid.find(hash(k[0] + dx, k[1] + dy, k[2] + dz));
-                    if (it == grid.end()) continue;
-                    for (int j : it->second) {
-                        if (j <= i) continue;
+        grid.for_each_near(pos[static_cast<size_t>(i)], [&](int j) {
+                        if (j <= i) return;
                         const double d = (pos[static_cast<size_t>(i)] - pos[static_cast<size_t>(j)]).norm();
                         const double r = ri + element(m.atoms[static_cast<size_t>(j)].z).r_perception;
-                        if (d > r + options.tolerance) continue;
+                        if (d > r + options.tolerance) return;
                         if (d < options.overlap * r) {
                             // The atom left out (b): the hydrogen of a hydrogen and a heavier atom, else the later.
                             const bool first_is_h = m.atoms[static_cast<size_t>(i)].z == 1 && m.atoms[static_cast<size_t>(j)].z != 1;
                             overlaps.push_back(first_is_h ? Overlap{j, i, d} : Overlap{i, j, d});
-                            continue;
+                            return;
                         }
                         pairs.emplace_back(i, j);
-                    }
-                }
+        });
     }
-    // Hash collisions may list a pair twice; sort and unique.
+    // Keep the pair list canonical (sorted, each pair once) whatever order the grid visits cells in.
     std::sort(pairs.begin(), pairs.end());
     pairs.erase(std::unique(pairs.begin(), pairs.end()), pairs.end());
     std::sort(overlaps.begin(), overlaps.end(), [](const Overlap& x, const Overlap& y) {
