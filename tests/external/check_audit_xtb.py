@@ -13,55 +13,39 @@ import subprocess
 import sys
 import tempfile
 
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from common import parse_xyz, perceive_bonds  # noqa: E402
+
 XTB = "/usr/bin/xtb"
 MOLECULES = ["CCO", "CC(=O)O", "c1ccccc1", "c1ccncc1", "C[N+](=O)[O-]", "CS(C)=O", "CS(=O)(=O)C", "CC#N", "SF4",
              "PF5", "ClF3", "Oc1ccccc1", "CC(C)=O", "NC=O", "c1ccoc1", "C1CCCCC1", "C[C@H](N)C(=O)O", "F/C=C/F"]
 
 
 # Damaged copies cleaned by --fix, then optimised by xtb: the connectivity must survive (issue 4). Bonds are perceived
-# at 1.25 x the sum of Cordero covalent radii (ase.data.covalent_radii; common practice for the factor).
+# as in common.py (1.25 x the sum of Cordero covalent radii).
 FIX_MOLECULES = ["CCO", "CC(=O)O", "c1ccncc1", "CS(C)=O", "SF4", "C[C@H](N)C(=O)O"]
 
 
 def read_xyz(path):
     with open(path) as f:
-        lines = f.read().splitlines()
-    n = int(lines[0])
-    atoms = []
-    for line in lines[2:2 + n]:
-        el, x, y, z = line.split()[:4]
-        atoms.append((el, [float(x), float(y), float(z)]))
-    return atoms
+        symbols, coords, _, _ = parse_xyz(f.read())
+    return symbols, coords
 
 
-def write_xyz(path, atoms, comment="damaged"):
-    with open(path, "w") as f:
-        f.write(f"{len(atoms)}\n{comment}\n")
-        for el, p in atoms:
-            f.write(f"{el} {p[0]:.6f} {p[1]:.6f} {p[2]:.6f}\n")
-
-
-def bonds_of(atoms):
-    from ase.data import atomic_numbers, covalent_radii
-    out = set()
-    for i in range(len(atoms)):
-        for j in range(i + 1, len(atoms)):
-            ri = covalent_radii[atomic_numbers[atoms[i][0]]]
-            rj = covalent_radii[atomic_numbers[atoms[j][0]]]
-            d = sum((a - b) ** 2 for a, b in zip(atoms[i][1], atoms[j][1])) ** 0.5
-            if d <= 1.25 * (ri + rj):
-                out.add((i, j))
-    return out
+def bonds_of(symbols, coords):
+    return perceive_bonds(symbols, coords)
 
 
 def fix_round_trip(repel, smiles, tmp, env):
     """Stretch the first bond by 0.3 A, --fix it, check the result clean, optimise it with xtb, compare bonds."""
-    atoms = read_xyz(os.path.join(tmp, "xtbopt.xyz"))
-    i, j = sorted(bonds_of(atoms))[0]
-    v = [b - a for a, b in zip(atoms[i][1], atoms[j][1])]
-    length = sum(c * c for c in v) ** 0.5
-    atoms[j] = (atoms[j][0], [p + 0.3 * c / length for p, c in zip(atoms[j][1], v)])
-    write_xyz(os.path.join(tmp, "damaged.xyz"), atoms)
+    symbols, coords = read_xyz(os.path.join(tmp, "xtbopt.xyz"))
+    i, j = sorted(tuple(sorted(b)) for b in bonds_of(symbols, coords))[0]
+    v = coords[j] - coords[i]
+    coords[j] = coords[j] + 0.3 * v / (v @ v) ** 0.5
+    with open(os.path.join(tmp, "damaged.xyz"), "w") as out:
+        out.write(f"{len(symbols)}\ndamaged\n")
+        for el, p in zip(symbols, coords):
+            out.write(f"{el} {p[0]:.6f} {p[1]:.6f} {p[2]:.6f}\n")
     f = subprocess.run([repel, "check", "damaged.xyz", "--charge", "0", "--multiplicity", "1", "--fix", "-o",
                         "fixed.xyz"], cwd=tmp, capture_output=True, text=True, timeout=120)
     if not os.path.exists(os.path.join(tmp, "fixed.xyz")):
@@ -76,7 +60,7 @@ def fix_round_trip(repel, smiles, tmp, env):
                        timeout=300, env=env)
     if x.returncode != 0:
         return f"{smiles}: xtb did not optimise the --fix output (exit {x.returncode})"
-    if bonds_of(read_xyz(os.path.join(tmp, "xtbopt.xyz"))) != bonds_of(fixed):
+    if bonds_of(*read_xyz(os.path.join(tmp, "xtbopt.xyz"))) != bonds_of(*fixed):
         return f"{smiles}: xtb changed the connectivity of the --fix output"
     return None
 
