@@ -103,12 +103,14 @@ inline constexpr double kSineRegularisation = 1e-6;
 inline constexpr double kTorsionRegularisation = 1e-4;
 
 // ---- Minimiser --------------------------------------------------------------------------------------------------
-// Correction pairs kept by L-BFGS (Liu and Nocedal 1989 recommend 3 to 20). Measured: on alkane chains the energy
-// evaluations did not change between 3 and 10 pairs; on the assembled drug set (benchmarks/drug_like.smi) 8 and 15
-// pairs saved 8% and 14% of them, while NLopt's cost per iteration grows with the count. 4 is the cheaper side.
-inline constexpr unsigned kLbfgsMemory = 4;
-// L-BFGS can stop early on a failed line search (round-off); it is restarted from the best point this many times as
-// long as each run still lowers the energy.
-inline constexpr int kMaxRestarts = 5;
+// Correction pairs kept by L-BFGS (lbfgs.hpp; Liu and Nocedal 1989 recommend 3 to 20). On the assembled drug set
+// (benchmarks/drug_like.smi) more pairs saved evaluations (NLopt's L-BFGS: 8 and 15 pairs 8% and 14% fewer than 4),
+// and with plain vector loops a pair costs little next to an energy evaluation.
+inline constexpr int kLbfgsMemory = 4;
+// Longest move of any coordinate in one trial step, and at most this long the very first step (Angstrom): an
+// assembled structure is near its minimum, so a step of several Angstrom is a line search overshooting, which would
+// only throw atoms through each other and force a rebuild of the contact list (at half the skin).
+inline constexpr double kMaxStep = 1.0;
+inline constexpr double kFirstStep = 0.1;
 
 }  // namespace repel::refine
