@@ -108,8 +108,7 @@ double error_function(const Problem& p, const double* x, double* g) {
         }
     }
     for (const TorsionCondition& t : *p.torsions) {
-        Vector3d grad[4];
-        const double phi = torsion_of(x, t, g ? grad : nullptr);
+        const double phi = torsion_of(x, t, nullptr);
         const double a = std::abs(phi);
         double excess = 0;
         if (a < t.lower) excess = a - t.lower;
@@ -117,6 +116,9 @@ double error_function(const Problem& p, const double* x, double* g) {
         else continue;
         e += kTorsionWeight * excess * excess;
         if (g) {
+            // The gradient only for a torsion outside its range (most are inside once the embedding settles).
+            Vector3d grad[4];
+            torsion_of(x, t, grad);
             const double factor = 2 * kTorsionWeight * excess * (phi < 0 ? -1.0 : 1.0);
             const int idx[4] = {t.i, t.j, t.k, t.l};
             for (int q = 0; q < 4; ++q)

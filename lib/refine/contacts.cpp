@@ -52,6 +52,20 @@ ContactModel::ContactModel(const Molecule& molecule) : neighbourhood_(molecule) 
         largest = std::max(largest, r);
     }
     max_distance_ = kContactFraction * 2.0 * largest;
+    const int n = molecule.atom_count();
+    use_all_pairs_ = n <= kAllPairsAtoms;
+    if (use_all_pairs_)
+        for (int i = 0; i < n; ++i)
+            for (int j = i + 1; j < n; ++j) {
+                const int apart = neighbourhood_.bonds_apart(i, j);
+                if (apart != 1 && apart != 2) all_pairs_.push_back(pair_for(i, j, apart));
+            }
+}
+
+ContactPair ContactModel::pair_for(int i, int j, int apart) const {
+    const double vdw = radius_[static_cast<size_t>(i)] + radius_[static_cast<size_t>(j)];
+    if (apart == 3) return {i, j, kOneFourFraction * vdw, kOneFourScale * kContact};
+    return {i, j, kContactFraction * vdw, kContact};
 }
 
 void ContactModel::update(std::span<const double> x) {
@@ -73,19 +87,23 @@ void ContactModel::rebuild(std::span<const double> x) {
     ++rebuilds_;
     reference_.assign(x.begin(), x.end());
     pairs_.clear();
+    // Keep a pair if it can come within its contact distance before the next rebuild.
+    auto keep_if_near = [&](const ContactPair& p) {
+        const double* a = &x[3 * static_cast<size_t>(p.i)];
+        const double* b = &x[3 * static_cast<size_t>(p.j)];
+        const double dx = a[0] - b[0], dy = a[1] - b[1], dz = a[2] - b[2];
+        const double reach = p.distance + kContactSkin;
+        if (dx * dx + dy * dy + dz * dz < reach * reach) pairs_.push_back(p);
+    };
+    if (use_all_pairs_) {
+        for (const ContactPair& p : all_pairs_) keep_if_near(p);
+        return;
+    }
     grid_.close_pairs(x, max_distance_ + kContactSkin, candidates_);
     for (const auto& [i, j] : candidates_) {
         const int apart = neighbourhood_.bonds_apart(i, j);
         if (apart == 1 || apart == 2) continue;
-        const double vdw = radius_[static_cast<size_t>(i)] + radius_[static_cast<size_t>(j)];
-        ContactPair p{i, j, kContactFraction * vdw, kContact};
-        if (apart == 3) p = {i, j, kOneFourFraction * vdw, kOneFourScale * kContact};
-        // Keep the pair if it can come within its contact distance before the next rebuild.
-        const double* a = &x[3 * static_cast<size_t>(i)];
-        const double* b = &x[3 * static_cast<size_t>(j)];
-        const double dx = a[0] - b[0], dy = a[1] - b[1], dz = a[2] - b[2];
-        const double reach = p.distance + kContactSkin;
-        if (dx * dx + dy * dy + dz * dz < reach * reach) pairs_.push_back(p);
+        keep_if_near(pair_for(i, j, apart));
     }
 }
 

@@ -41,7 +41,12 @@ public:
 
 private:
     void rebuild(std::span<const double> x);
+    ContactPair pair_for(int i, int j, int apart) const;
 
+    // Every pair that can be a contact, with its contact distance, for molecules of up to kAllPairsAtoms atoms: a
+    // rebuild then filters this list by distance (no grid and no look-up of the bond distance per candidate).
+    std::vector<ContactPair> all_pairs_;
+    bool use_all_pairs_ = false;
     BondNeighbourhood neighbourhood_;
     std::vector<double> radius_;     // van der Waals radius per atom
     double max_distance_ = 0;        // largest contact distance of any pair

@@ -1,5 +1,7 @@
 #include "refine/lbfgs.hpp"
 
+#include <Eigen/Core>
+
 #include <algorithm>
 #include <cmath>
 #include <limits>
@@ -19,26 +21,18 @@ constexpr int kMaxLineEvaluations = 20;
 // A correction pair enters the memory only with s.y > this * |s| |y| (positive curvature, not round-off).
 constexpr double kMinCurvature = 1e-10;
 
-// a.b over n entries, summed in four interleaved partial sums (so that the compiler can use vector instructions
-// without reordering a single sum; the order is fixed, so the result is deterministic).
+// a.b over n entries. Eigen's vectorised reduction: a fixed order of partial sums, so deterministic.
 double dot(const double* a, const double* b, size_t n) {
-    double s0 = 0, s1 = 0, s2 = 0, s3 = 0;
-    size_t i = 0;
-    for (; i + 4 <= n; i += 4) {
-        s0 += a[i] * b[i];
-        s1 += a[i + 1] * b[i + 1];
-        s2 += a[i + 2] * b[i + 2];
-        s3 += a[i + 3] * b[i + 3];
-    }
-    for (; i < n; ++i) s0 += a[i] * b[i];
-    return (s0 + s1) + (s2 + s3);
+    const auto len = static_cast<Eigen::Index>(n);
+    return Eigen::Map<const Eigen::VectorXd>(a, len).dot(Eigen::Map<const Eigen::VectorXd>(b, len));
 }
 
 double dot(const std::vector<double>& a, const std::vector<double>& b) { return dot(a.data(), b.data(), a.size()); }
 
 // y += c x over n entries.
 void add_scaled(double* y, double c, const double* x, size_t n) {
-    for (size_t i = 0; i < n; ++i) y[i] += c * x[i];
+    const auto len = static_cast<Eigen::Index>(n);
+    Eigen::Map<Eigen::VectorXd>(y, len) += c * Eigen::Map<const Eigen::VectorXd>(x, len);
 }
 
 double max_abs(const std::vector<double>& a) {

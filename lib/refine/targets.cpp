@@ -50,7 +50,8 @@ public:
         for (int i = 0; i < n; ++i) {
             angles_.push_back(centre_angles(d_.atoms[static_cast<size_t>(i)]));
             for (const PredictedAngle& a : angles_.back())
-                require(m_.bond_between(i, a.a) >= 0 && m_.bond_between(i, a.b) >= 0 && a.a != a.b,
+                if (!(m_.bond_between(i, a.a) >= 0 && m_.bond_between(i, a.b) >= 0 && a.a != a.b))  // message only then
+                    require(false,
                         "the predicted angle " + std::to_string(a.a + 1) + "-" + std::to_string(i + 1) + "-" +
                             std::to_string(a.b + 1) + " is not between two neighbours of atom " +
                             std::to_string(i + 1));

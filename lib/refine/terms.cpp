@@ -103,22 +103,26 @@ double angle_energy(std::span<const AngleTerm> terms, const double* x, double* g
     for (const AngleTerm& t : terms) {
         const Vec o = at(x, t.centre);
         const Vec u = at(x, t.i) - o, v = at(x, t.j) - o;
-        const double inv_a = 1.0 / (u.squaredNorm() + kAngleRegularisation);
-        const double inv_b = 1.0 / (v.squaredNorm() + kAngleRegularisation);
-        const double inv_ab = std::sqrt(inv_a * inv_b);
-        const Vec w = u.cross(v);
-        const double sw = std::sqrt(w.squaredNorm() + kSineRegularisation);
-        const double c = u.dot(v) * inv_ab;  // cos theta
-        const double s = sw * inv_ab;        // sin theta
+        const double a = u.squaredNorm() + kAngleRegularisation;
+        const double b = v.squaredNorm() + kAngleRegularisation;
+        const double uv = u.dot(v);
+        const double inv_ab = 1.0 / std::sqrt(a * b);
+        const double sw = std::sqrt(u.cross(v).squaredNorm() + kSineRegularisation);  // |u x v|, regularised
+        const double c = uv * inv_ab;  // cos theta
+        const double s = sw * inv_ab;  // sin theta
         e += t.k * (1.0 - t.cos0 * c - t.sin0 * s);
         if (g) {
-            // dc/du = v/sqrt(ab) - c u/a, ds/du = (v x w)/(sw sqrt(ab)) - s u/a, and the same for v; then
-            // dE = -k (cos0 dc + sin0 ds).
+            // dc/du = v/sqrt(ab) - c u/a, ds/du = (v x w)/(sw sqrt(ab)) - s u/a with w = u x v, and the same for v;
+            // then dE = -k (cos0 dc + sin0 ds). v x w = (v.v) u - (u.v) v and w x u = (u.u) v - (u.v) u, so both
+            // gradients are combinations of u and v (no cross product), and 1/a = b/(ab), 1/b = a/(ab).
             const double kc = -t.k * t.cos0, ks = -t.k * t.sin0;
             const double f = ks * inv_ab / sw;
-            const double along_u = -(kc * c + ks * s) * inv_a, along_v = -(kc * c + ks * s) * inv_b;
-            const Vec gu = (kc * inv_ab) * v + f * v.cross(w) + along_u * u;
-            const Vec gv = (kc * inv_ab) * u + f * w.cross(u) + along_v * v;
+            const double inv_ab2 = inv_ab * inv_ab;
+            const double radial = -(kc * c + ks * s) * inv_ab2;  // times b for u, times a for v
+            const double cross_term = kc * inv_ab - f * uv;
+            const double uu = a - kAngleRegularisation, vv = b - kAngleRegularisation;
+            const Vec gu = (f * vv + radial * b) * u + cross_term * v;
+            const Vec gv = cross_term * u + (f * uu + radial * a) * v;
             add(g, t.i, gu);
             add(g, t.j, gv);
             add(g, t.centre, -(gu + gv));
