@@ -465,3 +465,19 @@ TEST(Output, LongChainBuildsWithoutOverlap) {
     // Anti chain: the ends are far apart, nothing folds back.
     EXPECT_GT(dist(s, 0, 1999), 1000.0);
 }
+
+// A refinement that does not reach its tolerance (here one it cannot reach: an RMS gradient below 0) is reported by
+// RefineResult::converged and surfaces as a warning of the structure, which still gets coordinates.
+TEST(Build, UnconvergedRefinementIsAWarning) {
+    Molecule m = read_smiles("CCO");
+    m.make_hydrogens_explicit();
+    BuildOptions o;
+    o.refine_tolerance = 0;
+    const Structure s = build_structure(m, o);
+    const bool warned = std::any_of(s.warnings.begin(), s.warnings.end(), [](const std::string& w) {
+        return w.find("refinement not converged") != std::string::npos;
+    });
+    EXPECT_TRUE(warned);
+    for (const Vector3d& p : s.positions) EXPECT_TRUE(p.allFinite());
+    EXPECT_TRUE(build("CCO").warnings.empty());  // at the default tolerance it converges without a warning
+}

@@ -10,10 +10,13 @@
 #include <cstdint>
 #include <functional>
 #include <numbers>
+#include <span>
+#include <vector>
 
 #include "core/bond_length.hpp"
 #include "refine/contacts.hpp"
 #include "refine/grid.hpp"
+#include "refine/lbfgs.hpp"
 #include "refine/refine.hpp"
 #include "refine/targets.hpp"
 #include "refine/terms.hpp"
@@ -768,4 +771,104 @@ TEST(Refine, TenThousandAtomChainConverges) {
     const RefineResult r = m.refine();
     EXPECT_TRUE(r.converged) << r.message;
     expect_at_targets(m, 0.005, 1.0);
+}
+
+// ---- The minimiser on its own (lbfgs.hpp) ------------------------------------------------------------------------
+
+TEST(Lbfgs, FindsTheRosenbrockMinimum) {
+    // Rosenbrock's function (Rosenbrock, Comput. J. 3 (1960) 175): a curved valley with its minimum 0 at (1, 1),
+    // from the customary start (-1.2, 1).
+    auto f = [](std::span<const double> x, std::span<double> g) {
+        const double a = 1 - x[0], b = x[1] - x[0] * x[0];
+        g[0] = -2 * a - 400 * x[0] * b;
+        g[1] = 200 * b;
+        return a * a + 100 * b * b;
+    };
+    std::vector<double> x = {-1.2, 1.0};
+    refine::LbfgsOptions o;
+    o.gradient_tolerance = 1e-8;
+    o.max_step = 10;
+    o.first_step = 1;
+    const refine::LbfgsResult r = refine::minimise_lbfgs(f, x, o);
+    EXPECT_EQ(r.status, refine::LbfgsStatus::converged);
+    EXPECT_NEAR(x[0], 1.0, 1e-6);
+    EXPECT_NEAR(x[1], 1.0, 1e-6);
+    EXPECT_LT(r.rms_gradient, 1e-8);
+}
+
+TEST(Lbfgs, SolvesAnIllConditionedQuadratic) {
+    // sum_i c_i (x_i - i)^2 with c_i from 1 to 1000 over 60 variables: minimum at x_i = i.
+    const int n = 60;
+    auto f = [n](std::span<const double> x, std::span<double> g) {
+        double e = 0;
+        for (int i = 0; i < n; ++i) {
+            const double c = std::pow(1000.0, i / (n - 1.0)), d = x[static_cast<size_t>(i)] - i;
+            e += c * d * d;
+            g[static_cast<size_t>(i)] = 2 * c * d;
+        }
+        return e;
+    };
+    std::vector<double> x(n, 0.0);
+    refine::LbfgsOptions o;
+    o.gradient_tolerance = 1e-9;
+    o.max_step = 100;
+    const refine::LbfgsResult r = refine::minimise_lbfgs(f, x, o);
+    EXPECT_EQ(r.status, refine::LbfgsStatus::converged);
+    for (int i = 0; i < n; ++i) EXPECT_NEAR(x[static_cast<size_t>(i)], i, 1e-6) << i;
+}
+
+TEST(Lbfgs, NoTrialStepLongerThanTheCap) {
+    // (x - 100)^2 from 0 with a cap of 1: the minimiser must walk; consecutive evaluated points are never more than
+    // the cap apart, and the minimum is still reached.
+    std::vector<double> seen;
+    auto f = [&seen](std::span<const double> x, std::span<double> g) {
+        seen.push_back(x[0]);
+        g[0] = 2 * (x[0] - 100);
+        return (x[0] - 100) * (x[0] - 100);
+    };
+    std::vector<double> x = {0.0};
+    refine::LbfgsOptions o;
+    o.max_step = 1.0;
+    o.first_step = 0.1;
+    o.gradient_tolerance = 1e-6;
+    const refine::LbfgsResult r = refine::minimise_lbfgs(f, x, o);
+    EXPECT_EQ(r.status, refine::LbfgsStatus::converged);
+    EXPECT_NEAR(x[0], 100.0, 1e-5);
+    ASSERT_GT(seen.size(), 100u);  // at least 100 steps of at most 1
+    for (size_t k = 1; k < seen.size(); ++k) EXPECT_LE(std::abs(seen[k] - seen[k - 1]), 1.0 + 1e-12) << k;
+}
+
+TEST(Lbfgs, StopsAtTheBudgetWithTheLowestPoint) {
+    auto f = [](std::span<const double> x, std::span<double> g) {
+        const double a = 1 - x[0], b = x[1] - x[0] * x[0];
+        g[0] = -2 * a - 400 * x[0] * b;
+        g[1] = 200 * b;
+        return a * a + 100 * b * b;
+    };
+    std::vector<double> x = {-1.2, 1.0};
+    std::vector<double> g(2);
+    const double start = f(x, g);
+    refine::LbfgsOptions o;
+    o.max_evaluations = 5;
+    const refine::LbfgsResult r = refine::minimise_lbfgs(f, x, o);
+    EXPECT_EQ(r.status, refine::LbfgsStatus::budget);
+    EXPECT_LE(r.evaluations, 5);
+    EXPECT_LT(r.energy, start);
+    EXPECT_DOUBLE_EQ(f(x, g), r.energy);  // x is the point the energy belongs to
+}
+
+TEST(Lbfgs, StopsOnANonFiniteEnergyAndKeepsTheLastFinitePoint) {
+    // Finite for x < 2, NaN beyond: the first steps towards the minimum at 5 run into it.
+    auto f = [](std::span<const double> x, std::span<double> g) {
+        g[0] = 2 * (x[0] - 5);
+        return x[0] < 2 ? (x[0] - 5) * (x[0] - 5) : std::nan("");
+    };
+    std::vector<double> x = {0.0};
+    refine::LbfgsOptions o;
+    o.first_step = 1;
+    o.max_step = 10;
+    const refine::LbfgsResult r = refine::minimise_lbfgs(f, x, o);
+    EXPECT_EQ(r.status, refine::LbfgsStatus::non_finite);
+    EXPECT_TRUE(std::isfinite(x[0]));
+    EXPECT_LT(x[0], 2.0);
 }
