@@ -6,8 +6,8 @@
 // set (benchmarks/README.md), NLopt's L-BFGS spent about 52,000 instructions of bookkeeping per energy evaluation
 // for these ~150-variable problems (its Fortran-derived vector routines test a bound flag per element, since the
 // wrapper always runs the box-constrained variant), more than the energy itself (about 46,000). This one does the
-// same iteration with plain (Eigen-vectorised) vector loops, stops on the RMS gradient (which NLopt's L-BFGS has no criterion for), and
-// caps the step in Angstrom so that a trial step never throws atoms across the molecule.
+// same iteration with plain (Eigen-vectorised) vector loops, stops on the RMS gradient (which NLopt's L-BFGS has no
+// criterion for), and caps the step in Angstrom so that a trial step never throws atoms across the molecule.
 #pragma once
 
 #include <cstddef>
