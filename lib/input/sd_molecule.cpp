@@ -1,0 +1,178 @@
+#include "input/sd_molecule.hpp"
+
+#include <fmt/format.h>
+
+#include <Eigen/Geometry>
+
+#include <cmath>
+#include <deque>
+#include <sstream>
+
+#include "assemble/stereo.hpp"
+#include "core/error.hpp"
+#include "input/kekulize.hpp"
+#include "input/organic_subset.hpp"
+#include "input/structure_reader.hpp"
+
+namespace repel {
+namespace {
+
+// The valence an organic-subset atom takes with formal charge q (isoelectronic counting: N+ like C, O- like F, C+ and
+// C- with three bonds, B- like C); common practice, the rule CTfile readers apply to atoms without stated hydrogens.
+int target_valence(const OrganicElement& e, int charge, int sum) {
+    if (charge == 0) return e.lowest_valence_at_least(sum);
+    if (e.z == 6) return 4 - std::abs(charge);
+    if (e.z == 5) return 3 - charge;
+    return e.valences[0] + charge;
+}
+
+// The line numbers of the reader count from the record's first line; the file's count from first_line.
+[[noreturn]] void rethrow_with_file_lines(const InputError& e, long first_line) {
+    std::string message = e.what();
+    if (message.rfind("line ", 0) == 0) {
+        size_t end = message.find(':');
+        try {
+            const long local = std::stol(message.substr(5, end - 5));
+            message = fmt::format("line {}{}", local + first_line - 1, message.substr(end));
+        } catch (const std::exception&) {
+        }
+    }
+    throw InputError(message, e.text(), e.column());
+}
+
+// Whether a and b are joined by a path of at most max_bonds bonds that avoids the bond between them (a small ring,
+// where a double bond's configuration is fixed by the ring and is not marked).
+bool in_small_ring(const Molecule& m, int bond, int max_bonds) {
+    const Bond& b = m.bonds[static_cast<size_t>(bond)];
+    std::vector<int> depth(static_cast<size_t>(m.atom_count()), -1);
+    std::deque<int> queue{b.a};
+    depth[static_cast<size_t>(b.a)] = 0;
+    while (!queue.empty()) {
+        const int at = queue.front();
+        queue.pop_front();
+        if (depth[static_cast<size_t>(at)] >= max_bonds) continue;
+        for (const Neighbor& n : m.neighbors(at)) {
+            if (n.bond == bond || depth[static_cast<size_t>(n.atom)] >= 0) continue;
+            if (n.atom == b.b) return true;
+            depth[static_cast<size_t>(n.atom)] = depth[static_cast<size_t>(at)] + 1;
+            queue.push_back(n.atom);
+        }
+    }
+    return false;
+}
+
+}  // namespace
+
+Molecule molecule_from_sd_record(const std::string& text, long first_line) {
+    std::istringstream in(text);
+    std::vector<ReadStructure> records;
+    try {
+        records = read_sdf(in);
+    } catch (const InputError& e) {
+        rethrow_with_file_lines(e, first_line);
+    }
+    if (records.empty()) throw InputError(fmt::format("line {}: an empty SD record", first_line), "", 0);
+    ReadStructure& rec = records.front();
+    Molecule m = std::move(rec.structure.molecule);
+    const std::vector<Eigen::Vector3d>& pos = rec.structure.positions;
+    const int n = m.atom_count();
+    if (n == 0) throw InputError(fmt::format("line {}: the record has no atoms", first_line), "", 0);
+
+    // Aromatic bonds (type 4): orders by kekulization, one double bond for each aromatic atom that has a valence left.
+    if (!rec.needs_orders.empty()) {
+        std::vector<unsigned char> needs(static_cast<size_t>(n), 0);
+        std::vector<unsigned char> on_aromatic(static_cast<size_t>(n), 0);
+        for (int b : rec.needs_orders) {
+            on_aromatic[static_cast<size_t>(m.bonds[static_cast<size_t>(b)].a)] = 1;
+            on_aromatic[static_cast<size_t>(m.bonds[static_cast<size_t>(b)].b)] = 1;
+        }
+        for (int a = 0; a < n; ++a) {
+            Atom& atom = m.atoms[static_cast<size_t>(a)];
+            if (!on_aromatic[static_cast<size_t>(a)]) continue;
+            atom.aromatic = true;
+            const OrganicElement* e = organic_element(atom.z);
+            if (!e) continue;
+            const int sum = m.bond_order_sum(a);
+            const int v = target_valence(*e, atom.charge, sum + 1);
+            const int unpaired = atom.radical_electrons > 0 ? atom.radical_electrons : 0;
+            needs[static_cast<size_t>(a)] = v - sum - unpaired >= 1 ? 1 : 0;
+        }
+        const int left = kekulize(m, needs);
+        if (left >= 0)
+            throw InputError(fmt::format("line {}: the aromatic bonds cannot be given single and double orders (atom {} "
+                                         "is left without a double bond)",
+                                         first_line, left + 1),
+                             "", 0);
+    }
+
+    // Hydrogens the file leaves out: organic-subset atoms up to their normal valence.
+    for (int a = 0; a < n; ++a) {
+        Atom& atom = m.atoms[static_cast<size_t>(a)];
+        const OrganicElement* e = organic_element(atom.z);
+        if (!e) continue;
+        const int sum = m.bond_order_sum(a);
+        const int unpaired = atom.radical_electrons > 0 ? atom.radical_electrons : 0;
+        const int v = target_valence(*e, atom.charge, sum + unpaired);
+        if (v < 0 || sum + unpaired > v) continue;  // more bonds than a normal valence: hypervalent as written
+        atom.hydrogens = v - sum - unpaired;
+    }
+
+    // Stereo from the coordinates. Tetrahedral centres only from 3D coordinates (a flat drawing without wedges does
+    // not show them); a centre is marked when its four substituents are not two hydrogens or more.
+    bool three_d = false;
+    for (const auto& p : pos)
+        if (std::abs(p.z()) > 1e-4) three_d = true;
+    if (three_d) {
+        for (int a = 0; a < n; ++a) {
+            Atom& atom = m.atoms[static_cast<size_t>(a)];
+            const int degree = m.degree(a);
+            if (degree + atom.hydrogens != 4 || degree < 3) continue;
+            int hydrogens = atom.hydrogens;
+            for (const Neighbor& nb : m.neighbors(a))
+                if (m.atoms[static_cast<size_t>(nb.atom)].z == 1) ++hydrogens;
+            if (hydrogens >= 2) continue;
+            // The signed volume that the library's chirality targets use (assemble/stereo.hpp): with the
+            // neighbours in list order n0 n1 n2 n3, '@' puts (n1, n2, n3) at kAnticlockwiseSign; with an implicit
+            // hydrogen listed second (n0 H n1 n2), the even permutation (H n0 n2 n1) puts (n0, n2, n1) there.
+            const auto& nbs = m.neighbors(a);
+            const Eigen::Vector3d c = pos[static_cast<size_t>(a)];
+            auto dir = [&](int k) { return Eigen::Vector3d((pos[static_cast<size_t>(nbs[static_cast<size_t>(k)].atom)] - c).normalized()); };
+            const double volume = degree == 4 ? dir(1).dot(dir(2).cross(dir(3))) : dir(0).dot(dir(2).cross(dir(1)));
+            if (std::abs(volume) < 0.1) continue;  // drawn flat: no handedness to keep
+            atom.stereo_neighbors.clear();
+            for (const Neighbor& nb : nbs) atom.stereo_neighbors.push_back(nb.atom);
+            if (degree == 3) atom.stereo_neighbors.insert(atom.stereo_neighbors.begin() + 1, kImplicitHydrogen);
+            atom.chiral_class = ChiralClass::TH;
+            atom.chiral_index = (volume < 0 ? -1 : 1) == kAnticlockwiseSign ? 1 : 2;
+        }
+    }
+    // Double bonds outside rings of up to 8 atoms, with a substituent at each end: cis or trans as drawn.
+    for (int b = 0; b < m.bond_count(); ++b) {
+        Bond& bond = m.bonds[static_cast<size_t>(b)];
+        if (bond.order != 2 || bond.aromatic) continue;
+        auto pick = [&](int at, int other) {
+            int best = -1;
+            for (const Neighbor& nb : m.neighbors(at))
+                if (nb.atom != other && (best < 0 || (m.atoms[static_cast<size_t>(best)].z == 1 &&
+                                                      m.atoms[static_cast<size_t>(nb.atom)].z != 1)))
+                    best = nb.atom;
+            return best;
+        };
+        const int ra = pick(bond.a, bond.b), rb = pick(bond.b, bond.a);
+        if (ra < 0 || rb < 0 || in_small_ring(m, b, 7)) continue;
+        const Eigen::Vector3d b1 = pos[static_cast<size_t>(bond.a)] - pos[static_cast<size_t>(ra)];
+        const Eigen::Vector3d b2 = pos[static_cast<size_t>(bond.b)] - pos[static_cast<size_t>(bond.a)];
+        const Eigen::Vector3d b3 = pos[static_cast<size_t>(rb)] - pos[static_cast<size_t>(bond.b)];
+        const Eigen::Vector3d n1 = b1.cross(b2), n2 = b2.cross(b3);
+        if (n1.norm() < 1e-6 || n2.norm() < 1e-6) continue;  // a linear end
+        const double cosine = n1.normalized().dot(n2.normalized());
+        if (std::abs(cosine) < 0.2) continue;  // drawn near 90 degrees: no configuration to read
+        bond.stereo = cosine > 0 ? BondStereo::cis : BondStereo::trans;
+        bond.ref_a = ra;
+        bond.ref_b = rb;
+    }
+    m.name = rec.title;
+    return m;
+}
+
+}  // namespace repel
