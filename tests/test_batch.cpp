@@ -93,9 +93,9 @@ TEST(ChunkReader, ChunksAreBoundedInRecordsAndBytes) {
     }
     EXPECT_EQ(total, 1000);
     CountingSource src2(1000);
-    ChunkReader by_bytes(src2, {}, 0, ChunkLimits{1000, 30});  // "r123name123" is 11 bytes: 3 records reach 30
+    ChunkReader by_bytes(src2, {}, 0, ChunkLimits{1000, 30});  // "r0" + "name0" is 7 bytes: the 5th reaches 30
     ASSERT_TRUE(by_bytes.next(c));
-    EXPECT_EQ(c.items.size(), 3u);
+    EXPECT_EQ(c.items.size(), 5u);
 }
 
 TEST(ChunkReader, ShardsAndSkipPickTheRightIndices) {

@@ -21,7 +21,33 @@
 
 namespace repel::batch {
 
+std::string printable(std::string_view in) {
+    std::string out;
+    out.reserve(in.size());
+    for (size_t i = 0; i < in.size();) {
+        const auto c = static_cast<unsigned char>(in[i]);
+        if (c < 0x80) {
+            out += (c < 0x20 && c != '\n' && c != '\t') || c == 0x7f ? '?' : static_cast<char>(c);
+            ++i;
+            continue;
+        }
+        // A valid UTF-8 sequence is kept whole; any other byte becomes '?'.
+        const size_t len = (c & 0xe0) == 0xc0 ? 2 : (c & 0xf0) == 0xe0 ? 3 : (c & 0xf8) == 0xf0 ? 4 : 0;
+        bool ok = len > 0 && i + len <= in.size() && c >= 0xc2 && c <= 0xf4;
+        for (size_t k = 1; ok && k < len; ++k) ok = (static_cast<unsigned char>(in[i + k]) & 0xc0) == 0x80;
+        if (ok) {
+            out.append(in.substr(i, len));
+            i += len;
+        } else {
+            out += '?';
+            ++i;
+        }
+    }
+    return out;
+}
+
 std::string one_line(std::string s) {
+    s = printable(s);
     for (char& c : s)
         if (c == '\n' || c == '\t' || c == '\r') c = ' ';
     return s;
@@ -351,7 +377,7 @@ void BatchOutput::write(Chunk& chunk) {
             if (options_.message) {
                 if (drawn_) std::fputs("\r\033[K", stderr);
                 drawn_ = false;
-                options_.message(o.message);
+                options_.message(printable(o.message));
             }
         }
     }

@@ -184,7 +184,9 @@ private:
     bool drawn_ = false;
 };
 
-// One line for a text file: tabs, newlines and carriage returns become spaces.
+// Text safe to show: control characters other than newline and tab, and bytes that are not valid UTF-8, become '?'.
+std::string printable(std::string_view text);
+// One line for a text file: printable(), with tabs, newlines and carriage returns as spaces.
 std::string one_line(std::string text);
 
 }  // namespace repel::batch

@@ -4,10 +4,12 @@
 
 #include <Eigen/Geometry>
 
+#include <algorithm>
 #include <cmath>
 #include <deque>
 #include <sstream>
 
+#include "assemble/rings.hpp"
 #include "assemble/stereo.hpp"
 #include "core/error.hpp"
 #include "input/kekulize.hpp"
@@ -59,6 +61,94 @@ bool in_small_ring(const Molecule& m, int bond, int max_bonds) {
         }
     }
     return false;
+}
+
+// SD files usually state aromatic rings in one Kekule structure (types 1 and 2). The builder treats aromatic bonds as
+// order 1.5 (bond lengths, planarity), so rings of 5 to 7 atoms whose pi electrons count 4n + 2 (Hueckel's rule) are
+// marked aromatic, as a SMILES in lower case would have them. Per ring atom: 1 electron for a double bond in the ring
+// (or to an atom of a ring already found aromatic), 0 for an exocyclic double bond to a heteroatom (the C=O of a
+// pyridone or a coumarin, which a SMILES writes c(=O)), 2 for N, O, S, P, Se with a lone pair and no double bond, or
+// for C-; anything else (an sp3 atom, an exocyclic C=C) makes the ring not aromatic. Repeated until nothing changes, so
+// the inner rings of fused systems are found once their neighbours are.
+void perceive_aromatic_rings(Molecule& m) {
+    const RingInfo rings = perceive_rings(m);
+    // Candidates: every ring of 5 to 7 atoms, then every two such rings fused (sharing a bond) taken together, for
+    // systems like imidazo[1,2-a]pyridine that count 4n + 2 only as a whole.
+    struct Candidate {
+        std::vector<int> atoms, bonds;
+    };
+    std::vector<Candidate> candidates;
+    auto ring_bonds = [&](const std::vector<int>& ring) {
+        std::vector<int> out;
+        for (size_t i = 0; i < ring.size(); ++i) out.push_back(m.bond_between(ring[i], ring[(i + 1) % ring.size()]));
+        return out;
+    };
+    std::vector<size_t> small;
+    for (size_t r = 0; r < rings.rings.size(); ++r)
+        if (rings.rings[r].size() >= 5 && rings.rings[r].size() <= 7) {
+            small.push_back(r);
+            candidates.push_back({rings.rings[r], ring_bonds(rings.rings[r])});
+        }
+    for (size_t i = 0; i < small.size(); ++i)
+        for (size_t j = i + 1; j < small.size(); ++j) {
+            const auto& ra = rings.rings[small[i]];
+            const auto& rb = rings.rings[small[j]];
+            int shared = 0;
+            for (int x : ra) shared += static_cast<int>(std::count(rb.begin(), rb.end(), x));
+            if (shared != 2) continue;
+            Candidate c{ra, ring_bonds(ra)};
+            for (int x : rb)
+                if (std::find(ra.begin(), ra.end(), x) == ra.end()) c.atoms.push_back(x);
+            for (int bnd : ring_bonds(rb))
+                if (std::find(c.bonds.begin(), c.bonds.end(), bnd) == c.bonds.end()) c.bonds.push_back(bnd);
+            candidates.push_back(std::move(c));
+        }
+    std::vector<char> aromatic_atom(static_cast<size_t>(m.atom_count()), 0);
+    std::vector<char> done(candidates.size(), 0);
+    for (bool changed = true; changed;) {
+        changed = false;
+        for (size_t r = 0; r < candidates.size(); ++r) {
+            const Candidate& cand = candidates[r];
+            if (done[r]) continue;
+            std::vector<char> in_ring(static_cast<size_t>(m.atom_count()), 0);
+            for (int a : cand.atoms) in_ring[static_cast<size_t>(a)] = 1;
+            int electrons = 0;
+            bool ok = true;
+            for (int a : cand.atoms) {
+                const Atom& atom = m.atoms[static_cast<size_t>(a)];
+                int contribution = -1;
+                bool has_double = false;
+                for (const Neighbor& nb : m.neighbors(a)) {
+                    const Bond& b = m.bonds[static_cast<size_t>(nb.bond)];
+                    if (b.order != 2) continue;
+                    has_double = true;
+                    if (in_ring[static_cast<size_t>(nb.atom)] || aromatic_atom[static_cast<size_t>(nb.atom)]) contribution = 1;
+                    else if (contribution < 0 && m.atoms[static_cast<size_t>(nb.atom)].z != 6) contribution = 0;
+                }
+                if (!has_double) {
+                    const int connections = m.degree(a) + atom.hydrogens;
+                    const bool lone_pair = ((atom.z == 7 || atom.z == 15) && atom.charge == 0 && connections == 3) ||
+                                           ((atom.z == 8 || atom.z == 16 || atom.z == 34) && atom.charge == 0 && connections == 2) ||
+                                           (atom.z == 6 && atom.charge == -1 && connections == 3);
+                    if (lone_pair) contribution = 2;
+                }
+                if (contribution < 0) {
+                    ok = false;
+                    break;
+                }
+                electrons += contribution;
+            }
+            if (!ok || electrons % 4 != 2) continue;
+            done[r] = 1;
+            changed = true;
+            for (int a : cand.atoms) {
+                aromatic_atom[static_cast<size_t>(a)] = 1;
+                m.atoms[static_cast<size_t>(a)].aromatic = true;
+            }
+            for (int bond : cand.bonds)
+                if (bond >= 0) m.bonds[static_cast<size_t>(bond)].aromatic = true;
+        }
+    }
 }
 
 }  // namespace
@@ -116,6 +206,8 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
         if (v < 0 || sum + unpaired > v) continue;  // more bonds than a normal valence: hypervalent as written
         atom.hydrogens = v - sum - unpaired;
     }
+
+    perceive_aromatic_rings(m);
 
     // Stereo from the coordinates. Tetrahedral centres only from 3D coordinates (a flat drawing without wedges does
     // not show them); a centre is marked when its four substituents are not two hydrogens or more.
