@@ -335,7 +335,8 @@ std::string clock_text(double s) {
 }  // namespace
 
 BatchOutput::BatchOutput(Options options) : options_(std::move(options)) {
-    start_ = last_draw_ = seconds_now();
+    start_ = seconds_now();
+    last_draw_ = start_ - 1;  // the first chunk draws the line at once
     const bool to_file = !options_.output_path.empty();
     if (to_file) checkpoint_path_ = options_.output_path + ".checkpoint";
     if (options_.resume && !to_file) throw std::runtime_error("--resume needs -o FILE (standard output cannot be continued)");

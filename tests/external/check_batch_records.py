@@ -147,6 +147,32 @@ def pipes(repel, tmp, smi):
     check(b"\r" not in p.stderr, "a progress line was drawn although standard error is not a terminal")
 
 
+def progress_on_terminal(repel, tmp):
+    """Standard error on a pseudo-terminal: the progress line is drawn (and cleared at the end); in a pipe, none."""
+    import pty
+    smi = library(tmp, 300)
+    master, slave = pty.openpty()
+    proc = subprocess.Popen([repel, "build", "-i", smi, "-o", os.path.join(tmp, "tty.sdf")], stdout=subprocess.DEVNULL,
+                            stderr=slave)
+    os.close(slave)
+    seen = b""
+    while True:
+        try:
+            data = os.read(master, 65536)
+        except OSError:
+            break
+        if not data:
+            break
+        seen += data
+    proc.wait(timeout=600)
+    os.close(master)
+    text = seen.decode(errors="replace")
+    check(re.search(r"\r\x1b\[K\d+ done, \d+/s, \d+%.*, 0 failed", text) is not None,
+          f"no progress line on a terminal: {text[:300]!r}")
+    check(text.rstrip().endswith("read 300, built 300, failed 0"), f"terminal: the summary is not the last line: {text[-200:]!r}")
+    print("progress line drawn on a terminal, none in a pipe")
+
+
 def library(tmp, count):
     d = drugs()
     path = os.path.join(tmp, f"library{count}.smi")
@@ -316,6 +342,7 @@ def main():
     with tempfile.TemporaryDirectory() as tmp:
         smi = bad_records(repel, tmp)
         pipes(repel, tmp, smi)
+        progress_on_terminal(repel, tmp)
         resume(repel, tmp)
         sdf = ase_reads(repel, tmp)
         sdf_input(repel, tmp, sdf)
