@@ -31,7 +31,7 @@ int run(int argc, char** argv) {
     bool build_formula = false, build_smiles = false, no_refine = false;
     CLI::App* cmd_build = app.add_subcommand("build", "3D coordinates for a molecule (XYZ on standard output by default)");
     cmd_build->add_option("INPUT", build.input, "a SMILES string, or a formula of a single-centre species (XeF4, 'SO4 2-')");
-    cmd_build->add_option("-i,--input", build.input_file, "a .smi file (SMILES and an optional name a line), or - for standard input");
+    cmd_build->add_option("-i,--input", build.input_file, "a batch: a .smi file (SMILES and an optional name a line), an .sdf file (new coordinates for its molecules), or - for standard input");
     cmd_build->add_option("-o,--output", build.output_file, "output file; the format follows the extension (.xyz .pdb .sdf .mol .json)");
     cmd_build->add_option("--format", build.format, "output format when not given by -o's extension")
         ->check(CLI::IsMember({"xyz", "pdb", "sdf", "mol", "json"}));
