@@ -18,7 +18,7 @@ work=$(mktemp -d)
 trap 'rm -rf "$work"' EXIT
 
 make_set() {  # make_set COUNT FILE: the drug set cycled to COUNT records, each with its own name
-    awk -v n="$1" '!/^[ \t]*(#|$)/ { s[m] = $1; nm[m] = $2; m++ }
+    awk -v n="$1" -v m=0 'NF && $1 !~ /^#/ { s[m] = $1; nm[m] = $2; m++ }
         END { for (i = 0; i < n; i++) printf "%s %s-%d\n", s[i % m], nm[i % m], i + 1 }' "$here/drug_like.smi" >"$2"
 }
 
@@ -71,3 +71,18 @@ kib=$(peak_kib "$repel" build -i "$work/big.smi" -o "$work/big.sdf")
 t1=$(date +%s%N)
 printf '   %-48s %10.1f   (%.0f s, %s)\n' "$big molecules, every core" "$(awk -v k="$kib" 'BEGIN { print k / 1024 }')" \
     "$(awk -v ns=$((t1 - t0)) 'BEGIN { print ns / 1e9 }')" "$(du -h "$work/big.sdf" | cut -f1) of SDF"
+
+echo "3. share of the work that is serial (instruction counts, valgrind --tool=callgrind, repeatable on a busy machine)"
+if command -v valgrind >/dev/null && command -v callgrind_annotate >/dev/null; then
+    make_set 408 "$work/cg.smi"
+    valgrind --tool=callgrind --callgrind-out-file="$work/cg.out" "$repel" build -i "$work/cg.smi" -o "$work/cg.sdf" \
+        --threads 1 >/dev/null 2>&1 || true
+    callgrind_annotate --inclusive=yes "$work/cg.out" 2>/dev/null | awk '
+        /PROGRAM TOTALS/ { gsub(/,/, "", $1); total = $1 }
+        /repel::batch::build_chunk/ && !b { gsub(/,/, "", $1); b = $1 }
+        END { s = 1 - b / total;
+              printf "   408 molecules: %.4g instructions in all, %.2f%% in build_chunk (the parallel stage)\n", total, 100 * b / total;
+              printf "   serial share (start-up, reading, writing, checkpoints) %.2f%%: Amdahl bound for 2 threads %.2f\n", 100 * s, 1 / (s + (1 - s) / 2) }'
+else
+    echo "   (valgrind not installed)"
+fi
