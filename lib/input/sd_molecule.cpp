@@ -39,6 +39,9 @@ int target_valence(const OrganicElement& e, int charge, int sum) {
         } catch (const std::exception&) {
         }
     }
+    const std::string local_start = "record starting on line 1)";
+    if (const size_t at = message.find(local_start); at != std::string::npos)
+        message.replace(at, local_start.size(), fmt::format("record starting on line {})", first_line));
     throw InputError(message, e.text(), e.column());
 }
 
