@@ -5,6 +5,7 @@
 #include <gtest/gtest.h>
 
 #include <Eigen/Geometry>
+#include <fmt/format.h>
 
 #include "assemble/build.hpp"
 #include "core/error.hpp"
@@ -96,4 +97,29 @@ TEST(SdInput, ErrorsNameTheFileLine) {
     } catch (const InputError& e) {
         EXPECT_EQ(std::string(e.what()).rfind("line 105:", 0), 0u) << e.what();
     }
+}
+
+// A flat drawing of a C(F)(Cl)(Br)CH3 centre: the wedge (CTfile bond stereo 1: toward the viewer) must give the
+// handedness of the same drawing with the wedged methyl lifted toward the viewer (+z; CTfile coordinates are
+// right-handed with z toward the viewer), the hash (6) the handedness of the methyl pushed away, and no wedge none.
+TEST(SdInput, WedgesOfAFlatDrawingGiveTheHandedness) {
+    auto record = [](double methyl_z, int stereo) {
+        return fmt::format(
+            "drawn\n  lab\n\n  5  4  0  0  0  0  0  0  0  0999 V2000\n"
+            "    0.0000    0.0000    0.0000 C   0  0  0  0  0  0  0  0  0  0  0  0\n"
+            "   -1.3000    0.7500    0.0000 F   0  0  0  0  0  0  0  0  0  0  0  0\n"
+            "    1.3000    0.7500    0.0000 Cl  0  0  0  0  0  0  0  0  0  0  0  0\n"
+            "    0.0000   -1.5000{:10.4f} C   0  0  0  0  0  0  0  0  0  0  0  0\n"
+            "    0.0000    1.5000    0.0000 Br  0  0  0  0  0  0  0  0  0  0  0  0\n"
+            "  1  2  1  0\n  1  3  1  0\n  1  4  1{:3d}\n  1  5  1  0\nM  END\n$$$$\n",
+            methyl_z, stereo);
+    };
+    const Molecule up = molecule_from_sd_record(record(1.2, 0), 1), down = molecule_from_sd_record(record(-1.2, 0), 1);
+    const Molecule wedge = molecule_from_sd_record(record(0, 1), 1), hash = molecule_from_sd_record(record(0, 6), 1),
+                   plain = molecule_from_sd_record(record(0, 0), 1);
+    ASSERT_EQ(up.atoms[0].chiral_class, ChiralClass::TH);
+    EXPECT_NE(up.atoms[0].chiral_index, down.atoms[0].chiral_index);
+    EXPECT_EQ(wedge.atoms[0].chiral_index, up.atoms[0].chiral_index);
+    EXPECT_EQ(hash.atoms[0].chiral_index, down.atoms[0].chiral_index);
+    EXPECT_EQ(plain.atoms[0].chiral_class, ChiralClass::none);
 }

@@ -7,6 +7,7 @@
 #include <algorithm>
 #include <cmath>
 #include <deque>
+#include <cstdlib>
 #include <sstream>
 
 #include "assemble/rings.hpp"
@@ -154,6 +155,27 @@ void perceive_aromatic_rings(Molecule& m) {
     }
 }
 
+// Bond stereo codes of a V2000 record (bond line columns 10-12: 1 wedge, 6 hash, 4 either, 0 none), one per bond in
+// file order; empty for V3000 records (their CFG= bond keywords are not read).
+std::vector<int> wedge_codes(const std::string& text, int bonds) {
+    std::vector<std::string> lines;
+    std::istringstream in(text);
+    for (std::string line; std::getline(in, line);) {
+        if (!line.empty() && line.back() == '\r') line.pop_back();
+        lines.push_back(line);
+    }
+    if (lines.size() < 4 || lines[3].find("V2000") == std::string::npos) return {};
+    const long atoms = std::strtol(lines[3].substr(0, 3).c_str(), nullptr, 10);
+    std::vector<int> codes;
+    for (int i = 0; i < bonds; ++i) {
+        const size_t at = static_cast<size_t>(4 + atoms + i);
+        if (at >= lines.size()) return {};
+        const std::string& l = lines[at];
+        codes.push_back(l.size() >= 12 ? static_cast<int>(std::strtol(l.substr(9, 3).c_str(), nullptr, 10)) : 0);
+    }
+    return codes;
+}
+
 }  // namespace
 
 Molecule molecule_from_sd_record(const std::string& text, long first_line) {
@@ -212,34 +234,51 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
 
     perceive_aromatic_rings(m);
 
-    // Stereo from the coordinates. Tetrahedral centres only from 3D coordinates (a flat drawing without wedges does
-    // not show them); a centre is marked when its four substituents are not two hydrogens or more.
+    // Stereo from the coordinates. Tetrahedral centres from 3D coordinates, or from a flat drawing's wedge and hash
+    // bonds; a centre is marked when its four substituents are not two hydrogens or more.
     bool three_d = false;
     for (const auto& p : pos)
         if (std::abs(p.z()) > 1e-4) three_d = true;
-    if (three_d) {
-        for (int a = 0; a < n; ++a) {
-            Atom& atom = m.atoms[static_cast<size_t>(a)];
-            const int degree = m.degree(a);
-            if (degree + atom.hydrogens != 4 || degree < 3) continue;
-            int hydrogens = atom.hydrogens;
-            for (const Neighbor& nb : m.neighbors(a))
-                if (m.atoms[static_cast<size_t>(nb.atom)].z == 1) ++hydrogens;
-            if (hydrogens >= 2) continue;
-            // The signed volume that the library's chirality targets use (assemble/stereo.hpp): with the
-            // neighbours in list order n0 n1 n2 n3, '@' puts (n1, n2, n3) at kAnticlockwiseSign; with an implicit
-            // hydrogen listed second (n0 H n1 n2), the even permutation (H n0 n2 n1) puts (n0, n2, n1) there.
-            const auto& nbs = m.neighbors(a);
-            const Eigen::Vector3d c = pos[static_cast<size_t>(a)];
-            auto dir = [&](int k) { return Eigen::Vector3d((pos[static_cast<size_t>(nbs[static_cast<size_t>(k)].atom)] - c).normalized()); };
-            const double volume = degree == 4 ? dir(1).dot(dir(2).cross(dir(3))) : dir(0).dot(dir(2).cross(dir(1)));
-            if (std::abs(volume) < 0.1) continue;  // drawn flat: no handedness to keep
-            atom.stereo_neighbors.clear();
-            for (const Neighbor& nb : nbs) atom.stereo_neighbors.push_back(nb.atom);
-            if (degree == 3) atom.stereo_neighbors.insert(atom.stereo_neighbors.begin() + 1, kImplicitHydrogen);
-            atom.chiral_class = ChiralClass::TH;
-            atom.chiral_index = (volume < 0 ? -1 : 1) == kAnticlockwiseSign ? 1 : 2;
+    // A flat drawing shows a centre's handedness by wedge (toward the viewer) and hash (away) bonds starting at it:
+    // the wedged neighbour is lifted out of the plane (by 0.8 of the bond length) for the volume below.
+    const std::vector<int> wedges = three_d ? std::vector<int>() : wedge_codes(text, m.bond_count());
+    for (int a = 0; a < n; ++a) {
+        Atom& atom = m.atoms[static_cast<size_t>(a)];
+        const int degree = m.degree(a);
+        if (degree + atom.hydrogens != 4 || degree < 3) continue;
+        int hydrogens = atom.hydrogens;
+        for (const Neighbor& nb : m.neighbors(a))
+            if (m.atoms[static_cast<size_t>(nb.atom)].z == 1) ++hydrogens;
+        if (hydrogens >= 2) continue;
+        const auto& nbs = m.neighbors(a);
+        const Eigen::Vector3d c = pos[static_cast<size_t>(a)];
+        std::vector<Eigen::Vector3d> d;
+        bool wedged = three_d;
+        for (const Neighbor& nb : nbs) {
+            Eigen::Vector3d v = pos[static_cast<size_t>(nb.atom)] - c;
+            if (!three_d && !wedges.empty() && m.bonds[static_cast<size_t>(nb.bond)].a == a) {
+                const int code = wedges[static_cast<size_t>(nb.bond)];
+                if (code == 1 || code == 6) {
+                    v.z() += (code == 1 ? 0.8 : -0.8) * v.norm();
+                    wedged = true;
+                }
+            }
+            d.push_back(v.normalized());
         }
+        if (!wedged) continue;  // a flat drawing without wedges at this centre: no handedness shown
+        // The orientation that the library's chirality targets use (assemble/stereo.hpp): with the neighbours in list
+        // order n0 n1 n2 n3, '@' puts (n1, n2, n3) at kAnticlockwiseSign seen from the centre, which has the sign of
+        // the tetrahedron (n0, n1, n2, n3) since the centre lies on n0's side of the face n1 n2 n3 (this form also
+        // works when only n0 is out of the plane of a drawing). With an implicit hydrogen listed second (n0 H n1 n2),
+        // the even permutation (H n0 n2 n1) puts (n0, n2, n1) there.
+        const double volume = degree == 4 ? (d[1] - d[0]).dot((d[2] - d[0]).cross(d[3] - d[0]))
+                                          : d[0].dot(d[2].cross(d[1]));
+        if (std::abs(volume) < 0.1) continue;  // drawn flat: no handedness to keep
+        atom.stereo_neighbors.clear();
+        for (const Neighbor& nb : nbs) atom.stereo_neighbors.push_back(nb.atom);
+        if (degree == 3) atom.stereo_neighbors.insert(atom.stereo_neighbors.begin() + 1, kImplicitHydrogen);
+        atom.chiral_class = ChiralClass::TH;
+        atom.chiral_index = (volume < 0 ? -1 : 1) == kAnticlockwiseSign ? 1 : 2;
     }
     // Double bonds outside rings of up to 8 atoms, with a substituent at each end: cis or trans as drawn.
     for (int b = 0; b < m.bond_count(); ++b) {

@@ -1,7 +1,8 @@
 // A molecule to build from an SD record: connectivity, bond orders, formal charges and radicals as the file states
-// them, hydrogens the file leaves out added at the normal valences, and the stereochemistry the file's coordinates
-// show turned into the molecule's stereo marks (tetrahedral centres from 3D coordinates, double bonds from 2D or 3D),
-// so that the builder keeps it. The file's coordinates themselves are not kept.
+// them, hydrogens the file leaves out added at the normal valences, aromatic rings of a Kekule structure marked
+// aromatic, and the stereochemistry the file shows turned into the molecule's stereo marks so that the builder keeps
+// it: tetrahedral centres from 3D coordinates or from the wedge and hash bonds of a flat V2000 drawing, double bonds
+// from 2D or 3D coordinates. The file's coordinates themselves are not kept.
 #pragma once
 
 #include <string>
