@@ -356,7 +356,8 @@ BatchOutput::BatchOutput(Options options) : options_(std::move(options)) {
         out_.write(options_.begin);
         if (to_file) {
             counts_.output_bytes = out_.offset();
-            save_checkpoint(checkpoint_path_, counts_);
+            unsaved_ = true;
+            save_state();
         }
     }
 }
@@ -386,12 +387,29 @@ void BatchOutput::write(Chunk& chunk) {
     if (!options_.errors_path.empty()) errors_.write(errors);
     counts_.consumed = chunk.consumed;
     bytes_ = chunk.bytes;
-    if (out_.is_file()) {
-        counts_.output_bytes = out_.offset();
-        counts_.errors_bytes = options_.errors_path.empty() ? 0 : errors_.offset();
-        save_checkpoint(checkpoint_path_, counts_);
-    }
+    counts_.output_bytes = out_.offset();
+    counts_.errors_bytes = options_.errors_path.empty() ? 0 : errors_.offset();
+    unsaved_ = true;
+    if (out_.is_file() && seconds_now() - last_save_ >= options_.checkpoint_interval) save_state();
     if (options_.progress) draw_progress(false);
+}
+
+// The counts and byte lengths describe only what write(2) has already handed to the kernel, so the files are at
+// least as long as the checkpoint says whenever it is read.
+void BatchOutput::save_state() {
+    if (!out_.is_file() || !unsaved_) return;
+    save_checkpoint(checkpoint_path_, counts_);
+    unsaved_ = false;
+    last_save_ = seconds_now();
+}
+
+BatchOutput::~BatchOutput() {
+    if (finished_) return;
+    try {
+        save_state();
+    } catch (const std::exception&) {
+        // The last checkpoint written stays valid: resume starts from there.
+    }
 }
 
 void BatchOutput::draw_progress(bool final) {
@@ -416,12 +434,18 @@ void BatchOutput::finish() {
     out_.write(options_.end);
     out_.finish();
     if (!options_.errors_path.empty()) errors_.finish();
+    finished_ = true;
     if (!checkpoint_path_.empty()) std::filesystem::remove(checkpoint_path_);
     if (drawn_) std::fputs("\r\033[K", stderr);
     drawn_ = false;
 }
 
 void BatchOutput::interrupt() {
+    try {
+        save_state();
+    } catch (const std::exception&) {
+        // The last checkpoint written stays valid.
+    }
     if (drawn_) std::fputs("\r\033[K", stderr);
     drawn_ = false;
 }

@@ -156,8 +156,15 @@ public:
         bool progress = false;       // draw a progress line on standard error
         std::uint64_t input_size = 0;  // bytes of the input when known (progress: time left)
         std::function<void(const std::string&)> message;  // failure messages (standard error)
+        // Seconds between checkpoint writes (0: after every chunk). Between two writes a kill loses the chunks
+        // written since the last one (resume rebuilds them); the checkpoint is also written on interrupt() and when
+        // the object is destroyed unfinished.
+        double checkpoint_interval = 1.0;
     };
     explicit BatchOutput(Options options);
+    ~BatchOutput();
+    BatchOutput(const BatchOutput&) = delete;
+    BatchOutput& operator=(const BatchOutput&) = delete;
     // The records of the input already done by a previous run (0 when not resuming or no checkpoint).
     long skip() const { return resumed_.consumed; }
     bool resumed() const { return resumed_from_checkpoint_; }
@@ -173,13 +180,15 @@ public:
 
 private:
     void draw_progress(bool final);
+    void save_state();
     Options options_;
     AppendFile out_, errors_;
     std::string checkpoint_path_;
     Checkpoint resumed_, counts_;
     bool resumed_from_checkpoint_ = false;
     std::uint64_t bytes_ = 0;
-    double start_ = 0, last_draw_ = 0;
+    double start_ = 0, last_draw_ = 0, last_save_ = 0;
+    bool finished_ = false, unsaved_ = false;
     long run_read_ = 0;
     bool drawn_ = false;
 };
