@@ -129,7 +129,9 @@ def main():
         mpiexec = os.environ.get("REPEL_MPIEXEC") or "mpirun"
         if repel_mpi:
             env = dict(os.environ, OMPI_ALLOW_RUN_AS_ROOT="1", OMPI_ALLOW_RUN_AS_ROOT_CONFIRM="1",
-                       OMPI_MCA_btl="self,tcp,vader", OMPI_MCA_rmaps_base_oversubscribe="1")
+                       OMPI_MCA_btl="self,tcp,vader", OMPI_MCA_rmaps_base_oversubscribe="1",
+                       # containers often forbid the cross-memory copy of the shared-memory transport
+                       OMPI_MCA_btl_vader_single_copy_mechanism="none")
             out = os.path.join(tmp, "mpi2.sdf")
             cmd = [mpiexec, "--oversubscribe", "-np", "2", repel_mpi, "build", "-i", smi, "-o", out]
             p = subprocess.run(cmd, capture_output=True, text=True, timeout=1200, env=env)
