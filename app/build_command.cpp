@@ -1,6 +1,11 @@
 // `repel build`: reads records, builds each, writes each whole record, reports failures by record.
 #include <fmt/format.h>
 
+#include <unistd.h>
+
+#include <atomic>
+#include <cctype>
+#include <csignal>
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
@@ -11,7 +16,10 @@
 #include "assemble/build.hpp"
 #include "commands.hpp"
 #include "core/error.hpp"
+#include "batch/batch.hpp"
 #include "input/records.hpp"
+#include "input/sd_molecule.hpp"
+#include "mpi_driver.hpp"
 
 namespace repel::app {
 
@@ -34,13 +42,6 @@ std::istream* open_input(const std::string& path, std::ifstream& file, const cha
 }
 
 namespace {
-
-// One line of the --errors file: the reason on one line.
-std::string one_line(std::string s) {
-    for (char& c : s)
-        if (c == '\n' || c == '\t' || c == '\r') c = ' ';
-    return s;
-}
 
 // Writes to a temporary file beside the target and renames it at the end, so that a file is never left half written.
 class OutputFile {
@@ -75,7 +76,55 @@ private:
     std::ofstream file_;
 };
 
+// SIGINT / SIGTERM during a batch: stop reading, write what is built, leave the checkpoint. A second signal ends the
+// process at once (the default action), and the checkpoint still makes --resume exact.
+std::atomic<bool> stop_requested{false};
+volatile std::sig_atomic_t stop_signal = 0;
+void on_stop_signal(int sig) {
+    stop_signal = sig;
+    stop_requested.store(true);
+    std::signal(sig, SIG_DFL);
+}
+
+class SmiSource : public batch::RecordSource {
+public:
+    explicit SmiSource(std::istream& in) : reader_(in) {}
+    bool next(batch::Item& item) override {
+        auto rec = reader_.next();
+        if (!rec) return false;
+        item.line = rec->line;
+        item.text = std::move(rec->text);
+        item.name = std::move(rec->name);
+        if (reader_.too_long()) item.read_error = "line too long (more than 1 MiB)";
+        return true;
+    }
+    std::uint64_t bytes() const override { return reader_.bytes(); }
+
+private:
+    SmiReader reader_;
+};
+
+class SdfSource : public batch::RecordSource {
+public:
+    explicit SdfSource(std::istream& in) : reader_(in) {}
+    bool next(batch::Item& item) override {
+        auto rec = reader_.next();
+        if (!rec) return false;
+        item.line = rec->line;
+        item.text = std::move(rec->text);
+        item.name = std::move(rec->title);
+        if (reader_.too_long()) item.read_error = "record too long (more than 16 MiB)";
+        return true;
+    }
+    std::uint64_t bytes() const override { return reader_.bytes(); }
+
+private:
+    SdfRecordReader reader_;
+};
+
 }  // namespace
+
+int run_batch(const BuildArgs& args, const StructureWriter& writer, const BuildOptions& options);
 
 int run_build(const BuildArgs& args) {
     std::unique_ptr<StructureWriter> writer;
@@ -120,61 +169,134 @@ int run_build(const BuildArgs& args) {
     }
 
     // A batch.
+    return run_batch(args, *writer, options);
+}
+
+int run_batch(const BuildArgs& args, const StructureWriter& writer, const BuildOptions& options) {
+    const bool mpi_run = mpi::size() > 1;
+    const bool root = mpi::rank() == 0;
+    std::string input_format = args.input_format;
+    if (input_format.empty()) {
+        std::string ext = std::filesystem::path(args.input_file).extension().string();
+        for (char& c : ext) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
+        input_format = (ext == ".sdf" || ext == ".sd" || ext == ".mol") ? "sdf" : "smi";
+    }
+    const bool sdf = input_format == "sdf";
+
+    // What one record is built into: the chemistry, behind the batch machinery's callback.
+    batch::BuildFn build = [&](const batch::Item& item) -> batch::Outcome {
+        batch::Outcome o;
+        try {
+            Molecule mol = sdf ? molecule_from_sd_record(item.text, item.line) : read_species(item.text, args.notation);
+            mol.name = item.name;
+            mol.make_hydrogens_explicit();
+            Structure s = build_structure(mol, options);
+            o.record = writer.record(s, item.name.empty() ? (sdf ? std::string("record ") + std::to_string(item.index + 1) : item.text) : item.name);
+            o.ok = true;
+        } catch (const std::exception& e) {
+            const std::string where =
+                fmt::format("line {}{}", item.line, item.name.empty() ? "" : " (" + item.name + ")");
+            o.message = describe_failure(where, sdf ? std::string() : item.text, e);
+            o.reason = e.what();
+            if (const auto* ie = dynamic_cast<const InputError*>(&e); ie && ie->column() > 0 && !sdf)
+                o.reason = fmt::format("column {}: {}", ie->column(), e.what());
+        }
+        return o;
+    };
+    if (mpi_run && !root) {
+        mpi::work(build);
+        return 0;
+    }
+
+    batch::Shard shard;
+    try {
+        if (!args.shard.empty()) shard = batch::parse_shard(args.shard);
+    } catch (const std::exception& e) {
+        std::cerr << "repel build: " << e.what() << "\n";
+        mpi::release_workers();
+        return 2;
+    }
     std::ifstream file;
     std::istream* in = open_input(args.input_file, file, "build");
-    if (!in) return 2;
-    std::unique_ptr<OutputFile> out;
-    std::ofstream errors;
+    if (!in) {
+        mpi::release_workers();
+        return 2;
+    }
+    std::uint64_t input_size = 0;
+    if (args.input_file != "-") {
+        std::error_code ec;
+        input_size = std::filesystem::file_size(args.input_file, ec);
+        if (ec) input_size = 0;
+    }
+    batch::BatchOutput::Options out_options;
+    out_options.output_path = args.output_file;
+    out_options.errors_path = args.errors_file;
+    out_options.begin = writer.begin();
+    out_options.separator = writer.separator();
+    out_options.end = writer.end();
+    out_options.identity = fmt::format("input={} input-format={} shard={}/{} format={} refine={}", args.input_file,
+                                       input_format, shard.k, shard.n, args.format.empty() ? std::filesystem::path(args.output_file).extension().string() : args.format,
+                                       options.refine ? 1 : 0);
+    out_options.resume = args.resume;
+    out_options.progress = args.progress && isatty(STDERR_FILENO);
+    out_options.input_size = input_size;
+    out_options.message = [](const std::string& m) { std::cerr << m << "\n"; };
+    std::unique_ptr<batch::BatchOutput> out;
     try {
-        out = std::make_unique<OutputFile>(args.output_file);
-        if (!args.errors_file.empty()) {
-            errors.open(args.errors_file, std::ios::trunc);
-            if (!errors) throw std::runtime_error("cannot write " + args.errors_file);
-        }
+        out = std::make_unique<batch::BatchOutput>(out_options);
     } catch (const std::exception& e) {
+        std::cerr << "repel build: " << e.what() << "\n";
+        mpi::release_workers();
+        return 2;
+    }
+    if (out->resumed())
+        std::cerr << fmt::format("repel build: resuming after input record {} ({} built, {} failed so far)\n",
+                                 out->skip(), out->built(), out->failed());
+
+    std::unique_ptr<batch::RecordSource> source;
+    if (sdf) source = std::make_unique<SdfSource>(*in);
+    else source = std::make_unique<SmiSource>(*in);
+    batch::ChunkReader reader(*source, shard, out->skip(), batch::ChunkLimits{}, &stop_requested);
+
+    stop_requested = false;
+    auto old_int = std::signal(SIGINT, on_stop_signal);
+    auto old_term = std::signal(SIGTERM, on_stop_signal);
+    auto write = [&](batch::Chunk& chunk) { out->write(chunk); };
+    try {
+        if (mpi_run) {
+            try {
+                mpi::coordinate(reader, write);
+            } catch (const std::exception& e) {
+                std::cerr << "repel build: " << e.what() << "\n";
+                mpi::abort_job(2);
+            }
+        } else {
+            batch::run_threaded(reader, build, write, args.threads > 0 ? args.threads : batch::default_threads());
+        }
+        if (reader.stopped()) {
+            out->interrupt();
+            std::signal(SIGINT, old_int);
+            std::signal(SIGTERM, old_term);
+            std::cerr << fmt::format("repel build: interrupted (signal {}) after input record {}; every record "
+                                     "written is whole{}\n",
+                                     static_cast<int>(stop_signal), reader.consumed(),
+                                     args.output_file.empty() ? ""
+                                                              : "; run the same command with --resume to continue");
+            std::cerr << fmt::format("read {}, built {}, failed {}\n", out->read(), out->built(), out->failed());
+            return 2;
+        }
+        out->finish();
+    } catch (const std::exception& e) {
+        std::signal(SIGINT, old_int);
+        std::signal(SIGTERM, old_term);
+        out->interrupt();
         std::cerr << "repel build: " << e.what() << "\n";
         return 2;
     }
-    long read = 0, built = 0, failed = 0;
-    SmiReader reader(*in);
-    bool first = true;
-    out->write(writer->begin());
-    while (auto rec = reader.next()) {
-        ++read;
-        std::string record;
-        std::string reason;
-        if (reader.too_long()) {
-            reason = "line too long";
-        } else {
-            try {
-                record = build_one(rec->text, rec->name);
-            } catch (const std::exception& e) {
-                reason = describe_failure(fmt::format("line {}{}", rec->line, rec->name.empty() ? "" : " (" + rec->name + ")"),
-                                          rec->text, e);
-                std::cerr << reason << "\n";
-                std::string short_reason = e.what();
-                if (const auto* ie = dynamic_cast<const InputError*>(&e); ie && ie->column() > 0)
-                    short_reason = fmt::format("column {}: {}", ie->column(), e.what());
-                reason = short_reason;
-            }
-        }
-        if (!reason.empty()) {
-            ++failed;
-            if (errors) errors << rec->line << '\t' << one_line(rec->name) << '\t' << one_line(reason) << '\n';
-            continue;
-        }
-        if (!first) out->write(writer->separator());
-        first = false;
-        out->write(record);
-        ++built;
-    }
-    out->write(writer->end());
-    if (!out->commit()) {
-        std::cerr << "repel build: cannot write " << args.output_file << "\n";
-        return 2;
-    }
-    std::cerr << fmt::format("read {}, built {}, failed {}\n", read, built, failed);
-    return failed > 0 ? 1 : 0;
+    std::signal(SIGINT, old_int);
+    std::signal(SIGTERM, old_term);
+    std::cerr << fmt::format("read {}, built {}, failed {}\n", out->read(), out->built(), out->failed());
+    return out->failed() > 0 ? 1 : 0;
 }
 
 }  // namespace repel::app

@@ -20,6 +20,11 @@ struct BuildArgs {
     Notation notation = Notation::automatic;
     bool refine = true;
     std::string name;         // --name for a single input
+    std::string input_format; // --input-format smi|sdf (default: from -i's extension; smi for standard input)
+    int threads = 0;          // --threads (0: every core this process may use)
+    std::string shard;        // --shard K/N
+    bool resume = false;      // --resume
+    bool progress = true;     // a progress line when standard error is a terminal (--no-progress turns it off)
 };
 
 struct ShapeArgs {

@@ -5,9 +5,23 @@
 
 #include "check_command.hpp"
 #include "commands.hpp"
+#include "mpi_driver.hpp"
+
+namespace {
+int run(int argc, char** argv);
+}
 
 int main(int argc, char** argv) {
+    repel::app::mpi::init(&argc, &argv);
+    const int status = run(argc, argv);
+    repel::app::mpi::finalize();
+    return status;
+}
+
+namespace {
+int run(int argc, char** argv) {
     using namespace repel::app;
+    const bool root = mpi::rank() == 0;
     CLI::App app{"repel: 3D structures from electron domains (VSEPR). Builds coordinates from SMILES or a formula,\n"
                  "explains each centre's electron-domain shape, and checks structures built elsewhere."};
     app.set_version_flag("--version", std::string("repel ") + REPEL_VERSION);
@@ -17,7 +31,7 @@ int main(int argc, char** argv) {
     bool build_formula = false, build_smiles = false, no_refine = false;
     CLI::App* cmd_build = app.add_subcommand("build", "3D coordinates for a molecule (XYZ on standard output by default)");
     cmd_build->add_option("INPUT", build.input, "a SMILES string, or a formula of a single-centre species (XeF4, 'SO4 2-')");
-    cmd_build->add_option("-i,--input", build.input_file, "a .smi file (SMILES and an optional name a line), or - for standard input");
+    cmd_build->add_option("-i,--input", build.input_file, "a batch: a .smi file (SMILES and an optional name a line), an .sdf file (new coordinates for its molecules), or - for standard input");
     cmd_build->add_option("-o,--output", build.output_file, "output file; the format follows the extension (.xyz .pdb .sdf .mol .json)");
     cmd_build->add_option("--format", build.format, "output format when not given by -o's extension")
         ->check(CLI::IsMember({"xyz", "pdb", "sdf", "mol", "json"}));
@@ -26,6 +40,16 @@ int main(int argc, char** argv) {
     cmd_build->add_flag("--formula", build_formula, "read INPUT as a formula only");
     cmd_build->add_flag("--smiles", build_smiles, "read INPUT as SMILES only");
     cmd_build->add_flag("--no-refine", no_refine, "skip the whole-molecule refinement (assembled frames only)");
+    cmd_build->add_option("--input-format", build.input_format, "the format of -i when its extension does not tell (standard input: smi)")
+        ->check(CLI::IsMember({"smi", "sdf"}));
+    cmd_build->add_option("-j,--threads", build.threads, "threads for a batch (default: every core this process may use)")
+        ->check(CLI::PositiveNumber);
+    cmd_build->add_option("--shard", build.shard,
+                          "K/N: build only the K-th of N interleaved slices of -i (record i, counted from 0, when i mod N = K-1)");
+    cmd_build->add_flag("--resume", build.resume,
+                        "continue an interrupted batch from the checkpoint beside -o (starts afresh when there is none)");
+    bool no_progress = false;
+    cmd_build->add_flag("--no-progress", no_progress, "no progress line on standard error (it is only drawn on a terminal)");
     auto* in_opt = cmd_build->get_option("INPUT");
     auto* file_opt = cmd_build->get_option("--input");
     in_opt->excludes(file_opt);
@@ -77,14 +101,17 @@ int main(int argc, char** argv) {
     } catch (const CLI::CallForVersion& e) {
         return app.exit(e);
     } catch (const CLI::ParseError& e) {
-        app.exit(e);
+        if (root) app.exit(e);
         return 2;  // a usage error is exit status 2 (shared/docs/interface.md), whatever code the parser uses
     }
 
     auto notation = [](bool formula, bool smiles) {
         return formula ? repel::Notation::formula : smiles ? repel::Notation::smiles : repel::Notation::automatic;
     };
+    // Under mpirun every rank parses the same command line; ranks other than 0 only take part in a batch build.
+    if (!root && !(cmd_build->parsed() && !build.input_file.empty())) return 0;
     if (cmd_build->parsed()) {
+        build.progress = !no_progress;
         if (build.input.empty() && build.input_file.empty()) {
             std::cerr << "repel build: give a SMILES or formula, or -i FILE (see repel build --help)\n";
             return 2;
@@ -112,3 +139,4 @@ int main(int argc, char** argv) {
     }
     return 2;
 }
+}  // namespace

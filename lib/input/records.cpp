@@ -12,6 +12,7 @@ std::optional<SmiRecord> SmiReader::next() {
         bool over = false;
         while ((c = in_.get()) != EOF) {
             any = true;
+            ++bytes_;
             if (c == '\n') break;
             if (buf.size() < max_) buf.push_back(static_cast<char>(c));
             else over = true;
@@ -38,6 +39,50 @@ std::optional<SmiRecord> SmiReader::next() {
         }
         return rec;
     }
+}
+
+std::optional<SdfRecordText> SdfRecordReader::next() {
+    too_long_ = false;
+    SdfRecordText rec;
+    std::string line;
+    bool started = false, content = false;
+    while (true) {
+        line.clear();
+        int c;
+        bool any = false;
+        while ((c = in_.get()) != EOF) {
+            any = true;
+            ++bytes_;
+            if (c == '\n') break;
+            if (line.size() < max_) line.push_back(static_cast<char>(c));
+        }
+        if (!any) break;
+        ++line_;
+        if (!line.empty() && line.back() == '\r') line.pop_back();
+        if (!started) {
+            // A record starts on the line after a `$$$$` (its title line may be blank).
+            started = true;
+            rec.line = line_;
+            size_t s = line.find_first_not_of(" \t");
+            size_t e = line.find_last_not_of(" \t");
+            if (s != std::string::npos) rec.title = line.substr(s, e - s + 1);
+        }
+        if (line.find_first_not_of(" \t") != std::string::npos) content = true;
+        const bool end = line.rfind("$$$$", 0) == 0;
+        if (!too_long_) {
+            if (rec.text.size() + line.size() + 1 > max_) {
+                too_long_ = true;
+                rec.text.clear();
+                rec.text.shrink_to_fit();
+            } else {
+                rec.text += line;
+                rec.text += '\n';
+            }
+        }
+        if (end) return rec;
+    }
+    if (!content) return std::nullopt;  // nothing but blank lines after the last `$$$$`
+    return rec;  // the last record without its `$$$$`
 }
 
 }  // namespace repel
