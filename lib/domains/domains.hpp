@@ -46,6 +46,9 @@ struct MoleculeDomains {
     int unpaired_electrons = 0;        // single-electron domains in the Lewis structure
     int multiplicity = 1;              // 2S+1 (with the ground-state triplets handled, see domains.cpp)
     std::vector<std::string> warnings;
+    // Target length of every bond (Angstrom, in Molecule::bonds order): covalent radii by the bond's order, with
+    // resonance-shared orders and the corrections of core/bond_length.cpp for the Lewis structure at its ends.
+    std::vector<double> bond_lengths;
 };
 
 // The domains of every atom of a molecule whose hydrogens are explicit. Throws InputError for a valence that

@@ -45,7 +45,13 @@ public:
         require(static_cast<int>(d_.atoms.size()) == n, "the domain analysis has " + std::to_string(d_.atoms.size()) +
                                                             " atoms, the molecule " + std::to_string(n));
         length_.reserve(m_.bonds.size());
-        for (const Bond& b : m_.bonds) length_.push_back(bond_length(atom_z(b.a), atom_z(b.b), b.order, b.aromatic));
+        // The domain analysis' lengths (resonance and the Lewis structure at each end, domains.hpp); the plain
+        // radii by order when it has none (a hand-made analysis).
+        const bool analysed = d_.bond_lengths.size() == m_.bonds.size();
+        for (size_t e = 0; e < m_.bonds.size(); ++e) {
+            const Bond& b = m_.bonds[e];
+            length_.push_back(analysed ? d_.bond_lengths[e] : bond_length(atom_z(b.a), atom_z(b.b), b.order, b.aromatic));
+        }
         angles_.reserve(static_cast<size_t>(n));
         for (int i = 0; i < n; ++i) {
             angles_.push_back(centre_angles(d_.atoms[static_cast<size_t>(i)]));
