@@ -347,6 +347,52 @@ TEST(Rings, CubaneIsACubeAndIsWarnedAbout) {
     bool warned = false;
     for (const auto& w : s.warnings) warned |= w.find("strained") != std::string::npos;
     EXPECT_TRUE(warned);
+    // Each hydrogen points along the cube's body diagonal: H-C-C arccos(-1/sqrt 3) = 125.26 degrees by symmetry
+    // (symmetry alone gives it; the check is that the ring rule keeps it).
+    for (int c = 0; c < s.molecule.atom_count(); ++c) {
+        if (s.molecule.atoms[c].z != 6) continue;
+        for (const Neighbor& h : s.molecule.neighbors(c)) {
+            if (s.molecule.atoms[h.atom].z != 1) continue;
+            for (const Neighbor& o : s.molecule.neighbors(c))
+                if (o.atom != h.atom) EXPECT_NEAR(angle(s, h.atom, c, o.atom), 125.26, 2.0);
+        }
+    }
+}
+
+// Bicyclobutane's bridgehead hydrogens (G2, MP2(full)/6-31G(d), ase.collections.g2: H-C-C 128.1 to the other
+// bridgehead, 129.6 to the CH2 carbons) point away from the three ring bonds, not at 109.5 degrees to them.
+TEST(Rings, BicyclobutaneBridgeheadHydrogensPointAway) {
+    const Structure s = build("C1C2C1C2");
+    int checked = 0;
+    for (int c = 0; c < s.molecule.atom_count(); ++c) {
+        int carbons = 0, h = -1;
+        for (const Neighbor& n : s.molecule.neighbors(c)) {
+            if (s.molecule.atoms[n.atom].z == 6) ++carbons;
+            if (s.molecule.atoms[n.atom].z == 1) h = n.atom;
+        }
+        if (s.molecule.atoms[c].z != 6 || carbons != 3) continue;
+        for (const Neighbor& n : s.molecule.neighbors(c))
+            if (n.atom != h) {
+                EXPECT_NEAR(angle(s, h, c, n.atom), 129.0, 8.0);
+                ++checked;
+            }
+    }
+    EXPECT_EQ(checked, 6);
+}
+
+// Furan's alpha C-H leans towards the oxygen (G2: H-C-O 115.5, H-C-C 134.0): the ring leaves 252 degrees to the
+// two exocyclic angles, shared keeping the analysis' difference between them.
+TEST(Rings, FuranAlphaHydrogenLeansTowardsTheOxygen) {
+    const Structure s = build("c1ccoc1");
+    const int o = 3, c = 2;  // atoms as written: c1 c c o c1
+    ASSERT_EQ(s.molecule.atoms[o].z, 8);
+    int h = -1, other = -1;
+    for (const Neighbor& n : s.molecule.neighbors(c)) {
+        if (s.molecule.atoms[n.atom].z == 1) h = n.atom;
+        else if (n.atom != o) other = n.atom;
+    }
+    ASSERT_GE(h, 0);
+    EXPECT_LT(angle(s, h, c, o), angle(s, h, c, other));
 }
 
 namespace {

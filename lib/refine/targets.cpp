@@ -1,5 +1,6 @@
 #include "refine/targets.hpp"
 
+#include <Eigen/Dense>
 #include <algorithm>
 #include <array>
 #include <cmath>
@@ -170,6 +171,7 @@ private:
         double fixed_sum = 0;
         int fixed = 0;
         bool is_fixed[3] = {false, false, false};
+        std::vector<char> forced(angles.size(), 0);
         for (size_t q = 0; q < angles.size(); ++q) {
             PredictedAngle& p = angles[q];
             const std::vector<int> ring = rings.ring_through(p.a, i, p.b, kLargestPolygonRing);
@@ -178,23 +180,82 @@ private:
                 p.degrees = polygon;
                 fixed_sum += polygon;
                 ++fixed;
+                forced[q] = 1;
                 if (q < 3) is_fixed[q] = true;
             } else if (ring.size() == 5) {
                 p.degrees = std::min(p.degrees, kPuckeredFiveRingAngle);
             }
         }
-        if (!planar) return;
+        if (!planar) {
+            if (fixed == 3 && angles.size() == 6) point_away_from_ring_bonds(angles, forced);
+            return;
+        }
         if (fixed == 3) {
             curved_[static_cast<size_t>(i)] = fixed_sum < kCurvedAngleSum;
         } else if (fixed > 0) {
-            const double share = std::clamp((360.0 - fixed_sum) / (3 - fixed), 90.0, 160.0);
+            // What the ring angles leave of 360 degrees, shared so that the analysis' differences between the other
+            // angles stay (furan's C-H leans towards the O: H-C-O smaller than H-C-C), within 90..160.
+            double free_sum = 0;
             for (size_t q = 0; q < 3; ++q)
-                if (!is_fixed[q]) angles[q].degrees = share;
+                if (!is_fixed[q]) free_sum += angles[q].degrees;
+            const double shift = (360.0 - fixed_sum - free_sum) / (3 - fixed);
+            for (size_t q = 0; q < 3; ++q)
+                if (!is_fixed[q]) angles[q].degrees = std::clamp(angles[q].degrees + shift, 90.0, 160.0);
         } else if (planar_nitrogen_[static_cast<size_t>(i)]) {
             double sum = 0;
             for (const PredictedAngle& a : angles) sum += a.degrees;
             for (PredictedAngle& a : angles) a.degrees *= 360.0 / sum;
         }
+    }
+
+    // A centre with four neighbours whose three ring angles are all forced (the bridgeheads of bicyclobutane, the
+    // corners of cubane or prismane): the analysis' angles to the fourth neighbour (about 109.5 degrees) cannot be
+    // met beside 60- and 90-degree ring angles. The fourth bond takes the direction at equal angles to the three ring
+    // bonds (the axis of the cone they span; 125.3 degrees in cubane by symmetry, 135 at the bridgehead of
+    // bicyclobutane's ideal 60/60/90 frame against 128-130 in G2).
+    static void point_away_from_ring_bonds(std::vector<PredictedAngle>& angles, const std::vector<char>& forced) {
+        std::vector<int> ring_atoms, all;
+        for (const PredictedAngle& p : angles)
+            for (int x : {p.a, p.b})
+                if (std::find(all.begin(), all.end(), x) == all.end()) all.push_back(x);
+        if (all.size() != 4) return;
+        // The exo neighbour is the one in no forced angle: the three forced angles are those among the other three.
+        int exo = -1;
+        for (int x : all) {
+            int in_forced = 0;
+            for (size_t q = 0; q < angles.size(); ++q)
+                if ((angles[q].a == x || angles[q].b == x) && forced[q]) ++in_forced;
+            if (in_forced == 0) exo = x;
+        }
+        if (exo < 0) return;
+        for (int x : all)
+            if (x != exo) ring_atoms.push_back(x);
+        auto ring_angle = [&](int x, int y) {
+            for (const PredictedAngle& p : angles)
+                if ((p.a == x && p.b == y) || (p.a == y && p.b == x)) return p.degrees * kDegree;
+            return 0.0;
+        };
+        const double a01 = ring_angle(ring_atoms[0], ring_atoms[1]), a02 = ring_angle(ring_atoms[0], ring_atoms[2]),
+                     a12 = ring_angle(ring_atoms[1], ring_atoms[2]);
+        // Three unit vectors with these mutual angles: u0 along z, u1 in the xz plane, u2 from the two others.
+        const Eigen::Vector3d u0(0, 0, 1), u1(std::sin(a01), 0, std::cos(a01));
+        const double x2 = (std::cos(a12) - std::cos(a01) * std::cos(a02)) / std::sin(a01);
+        const double y2sq = 1 - x2 * x2 - std::cos(a02) * std::cos(a02);
+        if (!(y2sq > 1e-6) || !(std::sin(a01) > 1e-6)) return;  // the forced angles admit no such frame
+        const Eigen::Vector3d u2(x2, std::sqrt(y2sq), std::cos(a02));
+        Eigen::Matrix3d rows;
+        rows.row(0) = u0;
+        rows.row(1) = u1;
+        rows.row(2) = u2;
+        Eigen::Vector3d w = -rows.fullPivLu().solve(Eigen::Vector3d::Ones());
+        if (!(w.norm() > 1e-9)) return;
+        w.normalize();
+        const Eigen::Vector3d u[3] = {u0, u1, u2};
+        for (PredictedAngle& p : angles)
+            for (int k = 0; k < 3; ++k)
+                if ((p.a == exo && p.b == ring_atoms[static_cast<size_t>(k)]) ||
+                    (p.b == exo && p.a == ring_atoms[static_cast<size_t>(k)]))
+                    p.degrees = std::acos(std::clamp(w.dot(u[k]), -1.0, 1.0)) / kDegree;
     }
 
     // Trigonal planar: three bonded domains and nothing else, or a conjugated nitrogen with three neighbours (amide,

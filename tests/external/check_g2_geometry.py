@@ -53,10 +53,11 @@ KNOWN_LIMITS = {
     'ClNO': 'N-Cl of a nitrosyl halide: 2.03 A, 0.33 A longer than any radius sum (X- NO+ character)',
     'Li2': 'alkali-metal dimer: the Pyykko radius of Li comes from its polar bonds (Li-Li 0.11 A short)',
     'LiF': 'ionic bond: the linear polar correction leaves Li-F 0.10 A long',
-    # Angles: strained and conjugated cases the refinement does not yet reproduce within 10 deg.
-    'bicyclobutane': 'bridgehead hydrogens of a strained bicycle', 'CH3ONO': 'conjugated nitrite',
-    'C4H4O': 'five-membered aromatic ring angles', 'H2CCHF': 'vinyl fluoride angles', 'HCOOCH3': 'ester angles',
-    'H2CCO': 'ketene angles',
+    # Angles the domain model misses (README.md, known limits of the domain model).
+    'H2CCHF': '=CH2 H-C-H 108.7 against 119.2: the fitted double-bond weight is too large at carbon',
+    'H2CCO': '=CH2 H-C-H 108.7 against 120.7: the fitted double-bond weight is too large at carbon',
+    'HCOOCH3': 'C-O-C 103.5 against 114.0: the two ligands\' own repulsion is not in the domain model',
+    'CH3ONO': 'C-O-N 103.0 against 114.6: the two ligands\' own repulsion is not in the domain model',
 }
 
 HERE = os.path.dirname(os.path.abspath(__file__))
@@ -128,7 +129,10 @@ def main():
                        f'{name} ({smiles}): repel build exits 0 (got {r.returncode}: {r.stderr.strip()})'):
             continue
         with open(path) as f:
-            b_sym, b_pos, b_bonds = parse_sdf_bonds(f.read())
+            sdf_text = f.read()
+        b_sym, b_pos, b_bonds = parse_sdf_bonds(sdf_text)
+        if name in KNOWN_LIMITS:
+            t.check('> <warnings>' in sdf_text, f'{name} ({smiles}), a known limit, carries a warning in its SD file')
         ref_bond_set = perceive_bonds(ref_sym, ref_pos)
         built_bond_set = {frozenset((i, j)) for i, j, _ in b_bonds}
         if not t.check(Counter(b_sym) == Counter(ref_sym) and len(built_bond_set) == len(ref_bond_set),
