@@ -57,6 +57,13 @@ TEST(BondTargets, BondsBetweenLonePairAtomsFollowSchomakerStevenson) {
     }
     // Nitrogen keeps Pyykko's radius: hydrazine N-N 1.438 in G2.
     EXPECT_NEAR(target_length("NN", 0, 1), 1.438, 0.03);
+    // O and F to saturated carbon: CH3F C-F 1.392, CF4 1.323 (1.341 between them), CH3OH C-O 1.424; the ester's
+    // O-C(=O) bond keeps Pyykko's sum (HCOOCH3 1.345).
+    EXPECT_NEAR(target_length("CF", 0, 1), 1.357, 0.04);
+    EXPECT_GT(1.392 - bond_length(6, 9, 1), 0.0);
+    EXPECT_NEAR(target_length("CO", 0, 1), 1.424, 0.02);
+    EXPECT_GT(1.424 - bond_length(6, 8, 1), 0.04);
+    EXPECT_NEAR(target_length("COC=O", 1, 2), 1.345, 0.04);
 }
 
 TEST(BondTargets, ResonanceSharesTheOrdersOfTerminalAtoms) {
