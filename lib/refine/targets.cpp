@@ -193,14 +193,28 @@ private:
         if (fixed == 3) {
             curved_[static_cast<size_t>(i)] = fixed_sum < kCurvedAngleSum;
         } else if (fixed > 0) {
-            // What the ring angles leave of 360 degrees, shared so that the analysis' differences between the other
-            // angles stay (furan's C-H leans towards the O: H-C-O smaller than H-C-C), within 90..160.
+            // What the ring angles leave of 360 degrees. With one forced angle whose two ring bonds are aromatic,
+            // the analysis' difference between the two other angles comes from the ligands' electronegativity
+            // (Bent's rule: furan's C-H leans towards the O, H-C-O 115.5 and H-C-C 134.0 in G2) and is kept; where
+            // the ring bonds differ in order (cyclobutene's C=C and C-C) the fitted double-bond weight overstates
+            // the difference (G2 cyclobutene: 133.6 and 132.2, nearly equal), so the two share equally. Within
+            // 90..160 degrees.
+            bool keep_difference = false;
+            if (fixed == 1)
+                for (size_t q = 0; q < 3; ++q)
+                    if (is_fixed[q]) {
+                        const int ba = m_.bond_between(i, angles[q].a), bb = m_.bond_between(i, angles[q].b);
+                        keep_difference = ba >= 0 && bb >= 0 && m_.bonds[static_cast<size_t>(ba)].aromatic &&
+                                          m_.bonds[static_cast<size_t>(bb)].aromatic;
+                    }
             double free_sum = 0;
             for (size_t q = 0; q < 3; ++q)
                 if (!is_fixed[q]) free_sum += angles[q].degrees;
+            const double share = (360.0 - fixed_sum) / (3 - fixed);
             const double shift = (360.0 - fixed_sum - free_sum) / (3 - fixed);
             for (size_t q = 0; q < 3; ++q)
-                if (!is_fixed[q]) angles[q].degrees = std::clamp(angles[q].degrees + shift, 90.0, 160.0);
+                if (!is_fixed[q])
+                    angles[q].degrees = std::clamp(keep_difference ? angles[q].degrees + shift : share, 90.0, 160.0);
         } else if (planar_nitrogen_[static_cast<size_t>(i)]) {
             double sum = 0;
             for (const PredictedAngle& a : angles) sum += a.degrees;
