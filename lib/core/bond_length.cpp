@@ -33,11 +33,14 @@ namespace {
 // c = 0.10 is the optimum of a scan (0.07: 0.049, 0.09: 0.046, 0.11: 0.046, 0.12: 0.048); Schomaker and
 // Stevenson's own value was 0.09 (from memory). The correction depends on the element pair only, not on the order,
 // so that lengths keep the order-to-order steps of the radii and bond_length_fractional interpolates between
-// consistent ends; the cost is the one class multiple bond in G2, Si#O in SiO, which the plain triple radii give
-// within 0.01 A and the correction makes 0.15 A too short. (P=O, common in SMILES input, goes the other way: plain double radii give
-// 1.59 A against about 1.48 A observed in phosphine oxides, from memory; the correction gives 1.47 A.)
-// What remains is beyond additive radii: bonds between two lone-pair-rich atoms (F-F +0.14, O-F +0.15, O-Cl +0.10,
-// N-Cl in ClNO +0.33, O3 +0.10, axial Cl-F in ClF3 +0.09 too short), H2 and Li2 (0.10 too short).
+// consistent ends. The one class multiple bond in G2, Si#O in SiO (written [Si-]#[O+]), which the plain triple
+// radii give within 0.01 A, keeps them: with the Lewis structure known (bond_length_between), the correction is left
+// out where the formal charges run against the polarity (below). (P=O, common in SMILES input, goes the other way:
+// plain double radii give 1.59 A against about 1.48 A observed in phosphine oxides, from memory; the correction gives
+// 1.47 A.) The c = 0.10 scan above was made on G2 bonds: the G2 check is not independent of this one constant.
+// What plain radii by order miss and bond_length_between() handles: bonds between two lone-pair-bearing atoms and
+// of O and F to carbon, resonance-shared orders (O3, N2O: the caller passes the shared order), C-H, sp carbons.
+// What remains: N-Cl in ClNO (0.33 A too short), axial Cl-F in ClF3 (0.08), H2 and Li2 (0.10-0.11 too short).
 constexpr double kPolarCorrection = 0.10;  // Angstrom per unit of Pauling electronegativity difference
 
 double polar_correction(const ElementData& a, const ElementData& b) {
