@@ -105,21 +105,25 @@ std::vector<double> length_orders(const Molecule& m) {
 }
 
 // Whether neighbours a and b of centre are joined by a path of at most max_atoms - 1 bonds avoiding the centre: the
-// centre then sits in a ring of at most max_atoms atoms, whose angles the ring forces.
-bool in_small_ring(const Molecule& m, int centre, int a, int b, int max_atoms) {
+// centre then sits in a ring of at most max_atoms atoms, whose angles the ring forces. mark has one entry per atom,
+// all 0 on entry and on return.
+bool in_small_ring(const Molecule& m, int centre, int a, int b, int max_atoms, std::vector<char>& mark) {
     std::vector<std::pair<int, int>> queue{{a, 2}};  // atom, ring size so far (centre and a)
-    std::vector<int> seen{centre, a};
-    for (size_t k = 0; k < queue.size(); ++k) {
+    mark[static_cast<size_t>(centre)] = mark[static_cast<size_t>(a)] = 1;
+    bool found = false;
+    for (size_t k = 0; k < queue.size() && !found; ++k) {
         const auto [x, size] = queue[k];
-        if (x == b) return true;
+        if (x == b) found = true;
         if (size >= max_atoms) continue;
         for (const Neighbor& nb : m.neighbors(x)) {
-            if (std::find(seen.begin(), seen.end(), nb.atom) != seen.end()) continue;
-            seen.push_back(nb.atom);
+            if (mark[static_cast<size_t>(nb.atom)]) continue;
+            mark[static_cast<size_t>(nb.atom)] = 1;
             queue.push_back({nb.atom, size + 1});
         }
     }
-    return false;
+    mark[static_cast<size_t>(centre)] = 0;
+    for (const auto& [x, size] : queue) mark[static_cast<size_t>(x)] = 0;
+    return found;
 }
 
 double angle_between(const Eigen::Vector3d& a, const Eigen::Vector3d& b) {
@@ -306,6 +310,7 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
     }
     // Angles the domain model is known to miss by 8 to 12 degrees (G2, MP2(full)/6-31G(d),
     // tests/external/check_g2_geometry.py), said in the structure rather than left silent.
+    std::vector<char> mark(m.atoms.size(), 0);
     for (int i = 0; i < m.atom_count(); ++i) {
         const Atom& atom = m.atoms[static_cast<size_t>(i)];
         const CentreDomains& c = out.atoms[static_cast<size_t>(i)];
@@ -337,7 +342,7 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
         // Two heavy atoms on a two-coordinate oxygen outside small rings: the repulsion between the two ligands
         // themselves (ligand close packing, R. J. Gillespie and co-workers) is not in the domain model.
         if (atom.z == 8 && c.bonded == 2 && c.lone_pairs == 2 && heavy == 2 && next_to_pi &&
-            !in_small_ring(m, i, heavy_neighbours[0], heavy_neighbours[1], 8))
+            !in_small_ring(m, i, heavy_neighbours[0], heavy_neighbours[1], 8, mark))
             out.warnings.push_back(fmt::format(
                 "atom {}: the angle at an oxygen between two heavy atoms, one of them unsaturated, comes out about 10 "
                 "degrees too small (the ligands' own repulsion is not in the domain model; G2: 103.5 against 114.0 in "
