@@ -126,11 +126,12 @@ private:
 
     // A nitrogen or oxygen with a lone pair (four domains) on an aromatic ring or next to a pi centre: amides,
     // anilines, pyrrole-type ring nitrogens, esters, phenols, furans. Its lone pair conjugates with the pi system
-    // (common practice), which the domain count alone does not see.
+    // (common practice). The domain analysis marks most of them (a delocalised lone pair, domains.cpp); the rest
+    // (a hydroxyl O, an N in a three-membered ring) keep four domains and are found here.
     bool conjugated_donor(int i) const {
         const CentreDomains& c = centre(i);
-        if ((atom_z(i) != 7 && atom_z(i) != 8) || c.lone_pairs < 1 || c.single_electrons != 0 || c.steric_number != 4)
-            return false;
+        if ((atom_z(i) != 7 && atom_z(i) != 8) || c.single_electrons != 0) return false;
+        if (c.delocalised_lone_pairs == 0 && (c.lone_pairs < 1 || c.steric_number != 4)) return false;
         for (const Neighbor& nb : m_.neighbors(i))
             if (m_.bonds[static_cast<size_t>(nb.bond)].aromatic || pi_[static_cast<size_t>(nb.atom)]) return true;
         return false;

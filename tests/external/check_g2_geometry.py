@@ -57,8 +57,6 @@ KNOWN_LIMITS = {
     # Angles the domain model misses (README.md, known limits of the domain model).
     'H2CCHF': '=CH2 H-C-H 108.7 against 119.2: the fitted double-bond weight is too large at carbon',
     'H2CCO': '=CH2 H-C-H 108.7 against 120.7: the fitted double-bond weight is too large at carbon',
-    'HCOOCH3': 'C-O-C 103.5 against 114.0: the two ligands\' own repulsion is not in the domain model',
-    'CH3ONO': 'C-O-N 103.0 against 114.6: the two ligands\' own repulsion is not in the domain model',
 }
 
 HERE = os.path.dirname(os.path.abspath(__file__))
