@@ -110,6 +110,7 @@ private:
     }
 
     double bond_len(int a, const Neighbor& nb) const {
+        if (d_.bond_lengths.size() == m_.bonds.size()) return d_.bond_lengths[at(nb.bond)];
         const Bond& b = m_.bonds[at(nb.bond)];
         return bond_length(m_.atoms[at(a)].z, m_.atoms[at(nb.atom)].z, b.order, b.aromatic);
     }

@@ -242,7 +242,9 @@ private:
     int atom(int local) const { return atoms_[at(local)]; }
 
     double bond_len(int a, int b) const {
-        const Bond& bond = m_.bonds[at(m_.bond_between(atom(a), atom(b)))];
+        const int e = m_.bond_between(atom(a), atom(b));
+        if (d_.bond_lengths.size() == m_.bonds.size()) return d_.bond_lengths[at(e)];
+        const Bond& bond = m_.bonds[at(e)];
         return bond_length(m_.atoms[at(atom(a))].z, m_.atoms[at(atom(b))].z, bond.order, bond.aromatic);
     }
 

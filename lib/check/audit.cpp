@@ -78,7 +78,8 @@ bool in_small_ring(const Molecule& m, int centre) {
 // A nitrogen with one lone pair next to a multiple bond (amide, aniline, pyrrole, enamine): conjugation may flatten
 // it, so a planar centre is accepted as well as the pyramid the domain count predicts (common practice).
 bool conjugated_nitrogen(const Molecule& m, int centre, const CentreDomains& c) {
-    if (m.atoms[static_cast<size_t>(centre)].z != 7 || c.lone_pairs != 1 || c.bonded != 3) return false;
+    if (m.atoms[static_cast<size_t>(centre)].z != 7 || c.lone_pairs + c.delocalised_lone_pairs != 1 || c.bonded != 3)
+        return false;
     for (const Neighbor& nb : m.neighbors(centre))
         for (const Neighbor& nn : m.neighbors(nb.atom))
             if (m.bonds[static_cast<size_t>(nn.bond)].order >= 2) return true;
@@ -312,14 +313,16 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
     std::vector<int> lone_pairs(static_cast<size_t>(n), 0);
     try {
         MoleculeDomains d = analyse_domains(analysed);
-        for (int i = 0; i < n; ++i) lone_pairs[static_cast<size_t>(i)] = d.atoms[static_cast<size_t>(i)].lone_pairs;
+        for (int i = 0; i < n; ++i)
+            lone_pairs[static_cast<size_t>(i)] =
+                d.atoms[static_cast<size_t>(i)].lone_pairs + d.atoms[static_cast<size_t>(i)].delocalised_lone_pairs;
         const bool any_excluded = std::find(excluded.begin(), excluded.end(), 1) != excluded.end();
         if (!multiplicity && !any_excluded) out.multiplicity = std::max(out.multiplicity, d.multiplicity);
         for (const std::string& w : d.warnings) out.notes.push_back(w);
         for (int i = 0; i < n; ++i) {
             if (skip[static_cast<size_t>(i)]) continue;
             const CentreDomains& c = d.atoms[static_cast<size_t>(i)];
-            lone_pairs[static_cast<size_t>(i)] = c.lone_pairs;
+            lone_pairs[static_cast<size_t>(i)] = c.lone_pairs + c.delocalised_lone_pairs;
             if (c.bonded < 2 || c.angles.empty() || in_small_ring(analysed, i)) continue;
             // Two unpaired electrons (a triplet carbene) count as a lone pair in the Lewis structure: no prediction.
             if (valence.unpaired[static_cast<size_t>(i)] >= 2) continue;

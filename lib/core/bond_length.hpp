@@ -12,4 +12,16 @@ double bond_length(int za, int zb, int order, bool aromatic = false);
 // conjugated and delocalised bonds.
 double bond_length_fractional(int za, int zb, double order);
 
+// The Lewis structure at the two ends of a bond, beyond their elements: what the lengths of bonds between
+// lone-pair-bearing atoms, of bonds from sp carbons, of C-H bonds and of charge-separated multiple bonds depend on.
+struct BondEnds {
+    int lone_pairs_a = 0, lone_pairs_b = 0;  // lone pairs of atom a and of atom b
+    int steric_a = 0, steric_b = 0;          // steric numbers (0: not known)
+    int charge_a = 0, charge_b = 0;          // formal charges
+};
+
+// Bond length for a (possibly fractional, 1.0 .. 3.0) bond order between elements za and zb with the given ends.
+// The same as bond_length_fractional() except for the cases documented in bond_length.cpp.
+double bond_length_between(int za, int zb, double order, const BondEnds& ends);
+
 }  // namespace repel

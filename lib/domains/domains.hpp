@@ -29,9 +29,12 @@ struct PredictedAngle {
 struct CentreDomains {
     int atom = -1;
     int bonded = 0;            // X: bonded neighbours (one domain each, whatever the bond order)
-    int lone_pairs = 0;        // E: lone pairs
+    int lone_pairs = 0;        // E: lone pairs that hold a domain of their own on the sphere
+    // Lone pairs delocalised into a neighbouring pi system (0 or 1; see delocalised_lone_pair() in domains.cpp):
+    // part of the Lewis structure but no sigma domain (the N of an amide is AX3, the O of an ester AX2E).
+    int delocalised_lone_pairs = 0;
     int single_electrons = 0;  // unpaired electron domains (0 or 1)
-    int steric_number = 0;     // bonded + lone_pairs + single_electrons
+    int steric_number = 0;     // bonded + lone_pairs + single_electrons: the sigma domains (delocalised pairs not)
     std::string axe;           // "AX4E2"; see axe_class()
     std::string electron_geometry;  // "octahedral"
     std::string shape;              // "square planar"
@@ -46,6 +49,9 @@ struct MoleculeDomains {
     int unpaired_electrons = 0;        // single-electron domains in the Lewis structure
     int multiplicity = 1;              // 2S+1 (with the ground-state triplets handled, see domains.cpp)
     std::vector<std::string> warnings;
+    // Target length of every bond (Angstrom, in Molecule::bonds order): covalent radii by the bond's order, with
+    // resonance-shared orders and the corrections of core/bond_length.cpp for the Lewis structure at its ends.
+    std::vector<double> bond_lengths;
 };
 
 // The domains of every atom of a molecule whose hydrogens are explicit. Throws InputError for a valence that

@@ -28,6 +28,11 @@ std::string shape_table(const Molecule& m, const MoleculeDomains& d, const std::
                            element(m.atoms[static_cast<size_t>(c.atom)].z).symbol, c.steric_number, c.bonded,
                            c.lone_pairs, c.single_electrons, c.axe, c.electron_geometry, c.shape);
     }
+    for (const CentreDomains& c : d.atoms)
+        if (c.delocalised_lone_pairs > 0)
+            out += fmt::format("{}: {} lone pair delocalised into the neighbouring pi system (no sigma domain; not "
+                               "counted in SN or E)\n",
+                               atom_name(m, c.atom), c.delocalised_lone_pairs);
     bool header = false;
     for (const CentreDomains& c : d.atoms) {
         if (c.angles.empty()) continue;
@@ -59,6 +64,7 @@ nlohmann::json shape_json(const Molecule& m, const MoleculeDomains& d, const std
         j["steric_number"] = c.steric_number;
         j["bonded_domains"] = c.bonded;
         j["lone_pairs"] = c.lone_pairs;
+        j["delocalised_lone_pairs"] = c.delocalised_lone_pairs;
         j["single_electrons"] = c.single_electrons;
         j["axe"] = c.axe;
         j["electron_geometry"] = c.electron_geometry;

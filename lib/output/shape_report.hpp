@@ -13,8 +13,9 @@ namespace repel {
 std::string shape_table(const Molecule& molecule, const MoleculeDomains& domains, const std::string& title);
 
 // {"name", "charge", "multiplicity", "centres": [{"atom", "element", "steric_number", "bonded_domains",
-//  "lone_pairs", "single_electrons", "axe", "electron_geometry", "shape", "angles": [{"atoms": [a, centre, b],
-//  "degrees"}]}], "warnings"}. Atom numbers are 1-based.
+//  "lone_pairs", "delocalised_lone_pairs", "single_electrons", "axe", "electron_geometry", "shape",
+//  "angles": [{"atoms": [a, centre, b], "degrees"}]}], "warnings"}. Atom numbers are 1-based. Delocalised lone
+//  pairs (an amide N's, an ester O's) take no sigma domain and are not in "lone_pairs" or "steric_number".
 nlohmann::json shape_json(const Molecule& molecule, const MoleculeDomains& domains, const std::string& title);
 
 }  // namespace repel

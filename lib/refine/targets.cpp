@@ -1,5 +1,6 @@
 #include "refine/targets.hpp"
 
+#include <Eigen/Dense>
 #include <algorithm>
 #include <array>
 #include <cmath>
@@ -45,7 +46,13 @@ public:
         require(static_cast<int>(d_.atoms.size()) == n, "the domain analysis has " + std::to_string(d_.atoms.size()) +
                                                             " atoms, the molecule " + std::to_string(n));
         length_.reserve(m_.bonds.size());
-        for (const Bond& b : m_.bonds) length_.push_back(bond_length(atom_z(b.a), atom_z(b.b), b.order, b.aromatic));
+        // The domain analysis' lengths (resonance and the Lewis structure at each end, domains.hpp); the plain
+        // radii by order when it has none (a hand-made analysis).
+        const bool analysed = d_.bond_lengths.size() == m_.bonds.size();
+        for (size_t e = 0; e < m_.bonds.size(); ++e) {
+            const Bond& b = m_.bonds[e];
+            length_.push_back(analysed ? d_.bond_lengths[e] : bond_length(atom_z(b.a), atom_z(b.b), b.order, b.aromatic));
+        }
         angles_.reserve(static_cast<size_t>(n));
         for (int i = 0; i < n; ++i) {
             angles_.push_back(centre_angles(d_.atoms[static_cast<size_t>(i)]));
@@ -120,11 +127,12 @@ private:
 
     // A nitrogen or oxygen with a lone pair (four domains) on an aromatic ring or next to a pi centre: amides,
     // anilines, pyrrole-type ring nitrogens, esters, phenols, furans. Its lone pair conjugates with the pi system
-    // (common practice), which the domain count alone does not see.
+    // (common practice). The domain analysis marks most of them (a delocalised lone pair, domains.cpp); the rest
+    // (a hydroxyl O, an N in a three-membered ring) keep four domains and are found here.
     bool conjugated_donor(int i) const {
         const CentreDomains& c = centre(i);
-        if ((atom_z(i) != 7 && atom_z(i) != 8) || c.lone_pairs < 1 || c.single_electrons != 0 || c.steric_number != 4)
-            return false;
+        if ((atom_z(i) != 7 && atom_z(i) != 8) || c.single_electrons != 0) return false;
+        if (c.delocalised_lone_pairs == 0 && (c.lone_pairs < 1 || c.steric_number != 4)) return false;
         for (const Neighbor& nb : m_.neighbors(i))
             if (m_.bonds[static_cast<size_t>(nb.bond)].aromatic || pi_[static_cast<size_t>(nb.atom)]) return true;
         return false;
@@ -165,6 +173,7 @@ private:
         double fixed_sum = 0;
         int fixed = 0;
         bool is_fixed[3] = {false, false, false};
+        std::vector<char> forced(angles.size(), 0);
         for (size_t q = 0; q < angles.size(); ++q) {
             PredictedAngle& p = angles[q];
             const std::vector<int> ring = rings.ring_through(p.a, i, p.b, kLargestPolygonRing);
@@ -173,23 +182,96 @@ private:
                 p.degrees = polygon;
                 fixed_sum += polygon;
                 ++fixed;
+                forced[q] = 1;
                 if (q < 3) is_fixed[q] = true;
             } else if (ring.size() == 5) {
                 p.degrees = std::min(p.degrees, kPuckeredFiveRingAngle);
             }
         }
-        if (!planar) return;
+        if (!planar) {
+            if (fixed == 3 && angles.size() == 6) point_away_from_ring_bonds(angles, forced);
+            return;
+        }
         if (fixed == 3) {
             curved_[static_cast<size_t>(i)] = fixed_sum < kCurvedAngleSum;
         } else if (fixed > 0) {
-            const double share = std::clamp((360.0 - fixed_sum) / (3 - fixed), 90.0, 160.0);
+            // What the ring angles leave of 360 degrees. With one forced angle whose two ring bonds are aromatic,
+            // the analysis' difference between the two other angles comes from the ligands' electronegativity
+            // (Bent's rule: furan's C-H leans towards the O, H-C-O 115.5 and H-C-C 134.0 in G2) and is kept; where
+            // the ring bonds differ in order (cyclobutene's C=C and C-C) the fitted double-bond weight overstates
+            // the difference (G2 cyclobutene: 133.6 and 132.2, nearly equal), so the two share equally. Within
+            // 90..160 degrees.
+            bool keep_difference = false;
+            if (fixed == 1)
+                for (size_t q = 0; q < 3; ++q)
+                    if (is_fixed[q]) {
+                        const int ba = m_.bond_between(i, angles[q].a), bb = m_.bond_between(i, angles[q].b);
+                        keep_difference = ba >= 0 && bb >= 0 && m_.bonds[static_cast<size_t>(ba)].aromatic &&
+                                          m_.bonds[static_cast<size_t>(bb)].aromatic;
+                    }
+            double free_sum = 0;
             for (size_t q = 0; q < 3; ++q)
-                if (!is_fixed[q]) angles[q].degrees = share;
+                if (!is_fixed[q]) free_sum += angles[q].degrees;
+            const double share = (360.0 - fixed_sum) / (3 - fixed);
+            const double shift = (360.0 - fixed_sum - free_sum) / (3 - fixed);
+            for (size_t q = 0; q < 3; ++q)
+                if (!is_fixed[q])
+                    angles[q].degrees = std::clamp(keep_difference ? angles[q].degrees + shift : share, 90.0, 160.0);
         } else if (planar_nitrogen_[static_cast<size_t>(i)]) {
             double sum = 0;
             for (const PredictedAngle& a : angles) sum += a.degrees;
             for (PredictedAngle& a : angles) a.degrees *= 360.0 / sum;
         }
+    }
+
+    // A centre with four neighbours whose three ring angles are all forced (the bridgeheads of bicyclobutane, the
+    // corners of cubane or prismane): the analysis' angles to the fourth neighbour (about 109.5 degrees) cannot be
+    // met beside 60- and 90-degree ring angles. The fourth bond takes the direction at equal angles to the three ring
+    // bonds (the axis of the cone they span; 125.3 degrees in cubane by symmetry, 135 at the bridgehead of
+    // bicyclobutane's ideal 60/60/90 frame against 128-130 in G2).
+    static void point_away_from_ring_bonds(std::vector<PredictedAngle>& angles, const std::vector<char>& forced) {
+        std::vector<int> ring_atoms, all;
+        for (const PredictedAngle& p : angles)
+            for (int x : {p.a, p.b})
+                if (std::find(all.begin(), all.end(), x) == all.end()) all.push_back(x);
+        if (all.size() != 4) return;
+        // The exo neighbour is the one in no forced angle: the three forced angles are those among the other three.
+        int exo = -1;
+        for (int x : all) {
+            int in_forced = 0;
+            for (size_t q = 0; q < angles.size(); ++q)
+                if ((angles[q].a == x || angles[q].b == x) && forced[q]) ++in_forced;
+            if (in_forced == 0) exo = x;
+        }
+        if (exo < 0) return;
+        for (int x : all)
+            if (x != exo) ring_atoms.push_back(x);
+        auto ring_angle = [&](int x, int y) {
+            for (const PredictedAngle& p : angles)
+                if ((p.a == x && p.b == y) || (p.a == y && p.b == x)) return p.degrees * kDegree;
+            return 0.0;
+        };
+        const double a01 = ring_angle(ring_atoms[0], ring_atoms[1]), a02 = ring_angle(ring_atoms[0], ring_atoms[2]),
+                     a12 = ring_angle(ring_atoms[1], ring_atoms[2]);
+        // Three unit vectors with these mutual angles: u0 along z, u1 in the xz plane, u2 from the two others.
+        const Eigen::Vector3d u0(0, 0, 1), u1(std::sin(a01), 0, std::cos(a01));
+        const double x2 = (std::cos(a12) - std::cos(a01) * std::cos(a02)) / std::sin(a01);
+        const double y2sq = 1 - x2 * x2 - std::cos(a02) * std::cos(a02);
+        if (!(y2sq > 1e-6) || !(std::sin(a01) > 1e-6)) return;  // the forced angles admit no such frame
+        const Eigen::Vector3d u2(x2, std::sqrt(y2sq), std::cos(a02));
+        Eigen::Matrix3d rows;
+        rows.row(0) = u0;
+        rows.row(1) = u1;
+        rows.row(2) = u2;
+        Eigen::Vector3d w = -rows.fullPivLu().solve(Eigen::Vector3d::Ones());
+        if (!(w.norm() > 1e-9)) return;
+        w.normalize();
+        const Eigen::Vector3d u[3] = {u0, u1, u2};
+        for (PredictedAngle& p : angles)
+            for (int k = 0; k < 3; ++k)
+                if ((p.a == exo && p.b == ring_atoms[static_cast<size_t>(k)]) ||
+                    (p.b == exo && p.a == ring_atoms[static_cast<size_t>(k)]))
+                    p.degrees = std::acos(std::clamp(w.dot(u[k]), -1.0, 1.0)) / kDegree;
     }
 
     // Trigonal planar: three bonded domains and nothing else, or a conjugated nitrogen with three neighbours (amide,

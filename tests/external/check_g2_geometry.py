@@ -16,7 +16,8 @@ reference best is taken. Every bond length and every bond angle (i-j-k with i an
 
 Targets asserted (not weakened; the lead decides if they are missed):
 - issue 3: over all molecules, bond mean absolute error <= 0.025 A and angle mean absolute error <= 3 deg; no
-  molecule with a bond off by more than 0.1 A or an angle off by more than 10 deg;
+  molecule with a bond off by more than 0.1 A or an angle off by more than 10 deg (but the known limits below); the
+  bond MAE also on the half of the set that the C-H bond lengths were not fitted on;
 - issue 2: over the single-centre molecules (one centre bonded to every other atom, at least two ligands: H2O, NH3,
   CH4, SiH4, PH3, H2S, PF3, SiF4, CF4, NF3, ClF3, BF3, BCl3, AlCl3, CO2, CS2, OCS, SO2, ...), bond MAE <= 0.03 A.
 Prints tables of the worst cases and closes with `N passed, M failed`.
@@ -42,23 +43,20 @@ BOND_WORST_MAX = 0.1        # A, issue 3, per molecule
 ANGLE_WORST_MAX = 10.0      # deg, issue 3, per molecule
 SINGLE_CENTRE_BOND_MAE_MAX = 0.03  # A, issue 2
 
-# The issues' targets above are not all met yet. They are printed as targets with the measured value; what is
-# asserted is (a) the targets that are met, (b) no regression beyond today's measured values for the ones that are
-# not (issue 2 and 3 stay open on them), and (c) per-molecule limits except for the known limits below, each with
-# its reason. README.md lists the same.
-BOND_MAE_GUARD = 0.027             # measured 0.0264 A (target 0.025 not met)
-SINGLE_CENTRE_BOND_MAE_GUARD = 0.037  # measured 0.0363 A (target 0.03 not met)
+# Held out: the C-H bond-length additions of lib/core/bond_length.cpp were fitted on the G2 C-H bonds of every other
+# molecule of the table sorted by name (the 1st, 3rd, 5th, ... in Python's string order: the fitting half); the
+# other half is an independent check of them, and its bond MAE is asserted on its own.
+# Known limits: molecules exempt from the per-molecule limits, each with its reason; each carries a warning in the
+# built structure (lib/domains/domains.cpp). README.md lists the same.
 KNOWN_LIMITS = {
-    # Bonds between two atoms that both carry lone pairs are longer than the covalent-radius sums say (lone-pair
-    # repulsion across the bond); no radius sum fixes them.
-    'ClNO': 'N-Cl between lone-pair atoms', 'H2O2': 'O-O between lone-pair atoms', 'F2O': 'O-F between lone-pair atoms',
-    'F2': 'F-F between lone-pair atoms', 'O3': 'delocalised: one Lewis structure gives one single, one double bond',
-    'N2O': 'delocalised: one Lewis structure', 'SiO': 'polar multiple bond', 'Li2': 'alkali dimer', 'LiF': 'ionic bond',
-    'NCCN': 'conjugated single bond between triple bonds',
-    # Angles: strained and conjugated cases the refinement does not yet reproduce within 10 deg.
-    'bicyclobutane': 'bridgehead hydrogens of a strained bicycle', 'CH3ONO': 'conjugated nitrite',
-    'C4H4O': 'five-membered aromatic ring angles', 'H2CCHF': 'vinyl fluoride angles', 'HCOOCH3': 'ester angles',
-    'H2CCO': 'ketene angles',
+    # Bond lengths.
+    'ClNO': 'N-Cl of a nitrosyl halide: 2.03 A, 0.33 A longer than any radius sum (X- NO+ character)',
+    'Li2': 'alkali-metal dimer, 0.11 A short of G2; G2\'s MP2/6-31G(d) 2.773 A is itself 0.10 A longer than the '
+           'measured 2.673 A (Huber and Herzberg, from memory), which the Pyykko radii (2.66) meet',
+    'LiF': 'ionic bond: the linear polar correction leaves Li-F 0.10 A long',
+    # Angles the domain model misses (README.md, known limits of the domain model).
+    'H2CCHF': '=CH2 H-C-H 108.7 against 119.2: the fitted double-bond weight is too large at carbon',
+    'H2CCO': '=CH2 H-C-H 108.7 against 120.7: the fitted double-bond weight is too large at carbon',
 }
 
 HERE = os.path.dirname(os.path.abspath(__file__))
@@ -130,7 +128,10 @@ def main():
                        f'{name} ({smiles}): repel build exits 0 (got {r.returncode}: {r.stderr.strip()})'):
             continue
         with open(path) as f:
-            b_sym, b_pos, b_bonds = parse_sdf_bonds(f.read())
+            sdf_text = f.read()
+        b_sym, b_pos, b_bonds = parse_sdf_bonds(sdf_text)
+        if name in KNOWN_LIMITS:
+            t.check('> <warnings>' in sdf_text, f'{name} ({smiles}), a known limit, carries a warning in its SD file')
         ref_bond_set = perceive_bonds(ref_sym, ref_pos)
         built_bond_set = {frozenset((i, j)) for i, j, _ in b_bonds}
         if not t.check(Counter(b_sym) == Counter(ref_sym) and len(built_bond_set) == len(ref_bond_set),
@@ -217,16 +218,26 @@ def main():
           f'({bond_mae:.4f} A)')
     print(f'issue 2 target single-centre bond MAE <= {SINGLE_CENTRE_BOND_MAE_MAX}: '
           f'{"met" if sc_mae <= SINGLE_CENTRE_BOND_MAE_MAX else "NOT met"} ({sc_mae:.4f} A)')
-    t.check(bond_mae <= BOND_MAE_GUARD, f'bond MAE {bond_mae:.4f} A <= {BOND_MAE_GUARD} (no regression; issue 3 target '
-                                        f'{BOND_MAE_MAX}; G2 MP2/6-31G(d), Curtiss et al. 1991/1997)')
+    t.check(bond_mae <= BOND_MAE_MAX, f'bond MAE {bond_mae:.4f} A <= {BOND_MAE_MAX} over the G2 set (issue 3; '
+                                      'G2 MP2/6-31G(d), Curtiss et al. 1991/1997)')
+    names_sorted = sorted({m for m, _, _, _ in per_molecule})
+    fitting = set(names_sorted[::2])
+    fit_mae = mae([e for e, m, _ in all_bonds if m in fitting])
+    held_mae = mae([e for e, m, _ in all_bonds if m not in fitting])
+    ch = [(e, m) for e, m, what in all_bonds if sorted(x.rstrip('0123456789') for x in what.split('-')) == ['C', 'H']]
+    print(f'bond MAE on the half the C-H additions were fitted on: {fit_mae:.4f} A; on the held-out half: '
+          f'{held_mae:.4f} A; C-H bonds alone: {mae([e for e, m in ch if m in fitting]):.4f} / '
+          f'{mae([e for e, m in ch if m not in fitting]):.4f} A')
+    t.check(held_mae <= BOND_MAE_MAX, f'bond MAE {held_mae:.4f} A <= {BOND_MAE_MAX} on the held-out half of the G2 set '
+                                      '(issue 3; G2 MP2/6-31G(d), Curtiss et al. 1991/1997)')
     t.check(angle_mae <= ANGLE_MAE_MAX, f'angle MAE {angle_mae:.2f} deg <= {ANGLE_MAE_MAX} over the G2 set (issue 3; '
                                         'G2 MP2/6-31G(d), Curtiss et al. 1991/1997)')
     t.check(named_mae <= SINGLE_CENTRE_BOND_MAE_MAX,
             f'bond MAE {named_mae:.4f} A <= {SINGLE_CENTRE_BOND_MAE_MAX} on the single-centre species issue 2 names '
             '(G2 MP2/6-31G(d), Curtiss et al. 1991/1997)')
-    t.check(sc_mae <= SINGLE_CENTRE_BOND_MAE_GUARD,
-            f'single-centre bond MAE {sc_mae:.4f} A <= {SINGLE_CENTRE_BOND_MAE_GUARD} (no regression; issue 2 target '
-            f'{SINGLE_CENTRE_BOND_MAE_MAX}; G2 MP2/6-31G(d), Curtiss et al. 1991/1997)')
+    t.check(sc_mae <= SINGLE_CENTRE_BOND_MAE_MAX,
+            f'single-centre bond MAE {sc_mae:.4f} A <= {SINGLE_CENTRE_BOND_MAE_MAX} (issue 2; '
+            'G2 MP2/6-31G(d), Curtiss et al. 1991/1997)')
     t.finish(tmp)
 
 
