@@ -6,6 +6,7 @@
 #include <istream>
 #include <string>
 
+#include "core/limits.hpp"
 #include "input/species.hpp"
 #include "output/writer.hpp"
 
@@ -20,6 +21,7 @@ struct BuildArgs {
     Notation notation = Notation::automatic;
     bool refine = true;
     std::string name;         // --name for a single input
+    double time_limit = kDefaultTimeLimit;  // --time-limit: seconds per molecule (0: none)
 };
 
 struct ShapeArgs {

@@ -26,6 +26,10 @@ int main(int argc, char** argv) {
     cmd_build->add_flag("--formula", build_formula, "read INPUT as a formula only");
     cmd_build->add_flag("--smiles", build_smiles, "read INPUT as SMILES only");
     cmd_build->add_flag("--no-refine", no_refine, "skip the whole-molecule refinement (assembled frames only)");
+    cmd_build->add_option("--time-limit", build.time_limit,
+                          "seconds one molecule may take before it fails as a record (0: no limit)")
+        ->check(CLI::NonNegativeNumber)
+        ->capture_default_str();
     auto* in_opt = cmd_build->get_option("INPUT");
     auto* file_opt = cmd_build->get_option("--input");
     in_opt->excludes(file_opt);

@@ -2,6 +2,8 @@
 
 #include <nlopt.h>
 
+#include "core/limits.hpp"
+
 #include <Eigen/Geometry>
 
 #include <algorithm>
@@ -71,6 +73,7 @@ double objective(unsigned n, const double* x, double* grad, void* data) {
         return std::numeric_limits<double>::max();
     }
     if (o.converged) return e;  // NLopt may evaluate again before it notices the stop
+    if (deadline_passed()) nlopt_force_stop(o.optimiser);  // the molecule's time is up: refine_structure throws
     if (e < o.best_energy || (r < o.tolerance && !o.converged)) {
         o.best_energy = e;
         o.best_rms = r;
@@ -189,6 +192,7 @@ RefineResult refine_structure(const Molecule& molecule, const MoleculeDomains& d
         x = o.best_x;
         double f = 0;
         status = nlopt_optimize(o.optimiser, x.data(), &f);
+        check_deadline("refining");  // after NLopt returns: no exception is thrown through its C frames
         if (o.converged || o.non_finite || o.evaluations >= budget) break;
         // L-BFGS gave up early (a line search that round-off defeated): start afresh from the best point, as long
         // as the last run still made progress.
