@@ -303,8 +303,8 @@ std::vector<Case> cases() {
     // --- the whole build: sizes, components, rings, the time limit
     const auto B = Step::build;
     add("build_chain_20k", B, [] { return repeat("C", 20000); }, V, "", 600);
-    add("build_dots_2000", B, [] { return repeat("C.", 1999) + "C"; }, V, "", 300);
-    add("build_salt_1000_pairs", B, [] { return repeat("[Na+].[Cl-].", 999) + "[Na+].[Cl-]"; }, V, "", 300);
+    add("build_dots_20000", B, [] { return repeat("C.", 19999) + "C"; }, V, "", 300);
+    add("build_salt_5000_pairs", B, [] { return repeat("[Na+].[Cl-].", 4999) + "[Na+].[Cl-]"; }, V, "", 300);
     add("build_reused_digit_2000", B, [] { return reused_digit_chain("1", 2000); }, V, "", 600);
     add("build_ring_over_embedding_limit", B, [] { return "C1" + repeat("C", 2999) + "C1"; }, R, "ring system", 120);
     add("build_deep_branches_5k", B, [] { return repeat("C(", 5000) + "C" + repeat(")", 5000); }, V, "", 600);
@@ -506,6 +506,56 @@ TEST(Limits, TimeLimitNeverChangesAResult) {
     const Structure b = build_structure(m, limit);
     ASSERT_EQ(a.positions.size(), b.positions.size());
     for (size_t i = 0; i < a.positions.size(); ++i) EXPECT_EQ(a.positions[i], b.positions[i]);
+}
+
+}  // namespace
+
+namespace {
+
+// The --smiles comparison matched the reference atom by atom with one call frame per atom: a 90,000-atom reference
+// (a 30,000-carbon chain with its hydrogens) went 90,000 frames deep. It keeps its own stack now; this structure
+// must match its own SMILES without a finding about atoms or connectivity (stack overflow before the change).
+TEST(Limits, SmilesComparisonOfA90000AtomChainDoesNotRecurse) {
+    const std::string smiles = repeat("C", 30000);
+    Molecule m = read_smiles(smiles);
+    m.make_hydrogens_explicit();
+    const Structure built = build_structure(m);
+    std::string xyz = make_writer(Format::xyz)->record(built, "chain");
+    std::istringstream in(xyz);
+    const std::vector<ReadStructure> read = read_xyz(in);
+    ASSERT_EQ(read.size(), 1u);
+    AuditOptions options;
+    options.reference_smiles = smiles;
+    auto result = std::async(std::launch::async, [&] { return audit_structure(read[0], options); });
+    ASSERT_EQ(result.wait_for(std::chrono::seconds(600)), std::future_status::ready) << "hang guard";
+    const Audit audit = result.get();
+    for (const auto& f : audit.findings) {
+        EXPECT_NE(f.kind, "connectivity") << f.message;
+        EXPECT_NE(f.kind, "formula") << f.message;
+    }
+}
+
+}  // namespace
+
+namespace {
+
+// A refinement that cannot reach its stop criterion (a gradient tolerance of 1e-30 is below round-off) runs out of
+// its budget: the structure is still written, and says so in every format that has a place for warnings.
+TEST(WriterSafety, UnconvergedRefinementIsAWarningInTheOutput) {
+    Molecule m = read_smiles("CCO");
+    m.make_hydrogens_explicit();
+    BuildOptions options;
+    options.refine_tolerance = 1e-30;
+    const Structure s = build_structure(m, options);
+    std::string warning;
+    for (const std::string& w : s.warnings)
+        if (w.rfind("refinement not converged", 0) == 0) warning = w;
+    ASSERT_FALSE(warning.empty()) << "no warning about the refinement";
+    for (Format f : {Format::xyz, Format::sdf, Format::json}) {
+        const std::string out = make_writer(f)->record(s, "ethanol");
+        EXPECT_NE(out.find("refinement not converged"), std::string::npos) << out;
+    }
+    EXPECT_TRUE(fuzz::all_finite(s.positions));
 }
 
 }  // namespace

@@ -3,6 +3,8 @@
 // the structure whole (or refuses it as documented), warnings reach every format that has a place for them.
 #pragma once
 
+#include <cctype>
+
 #include "assemble/build.hpp"
 #include "fuzz_common.hpp"
 #include "output/writer.hpp"
@@ -11,6 +13,28 @@ namespace repel::fuzz {
 
 // Larger molecules are left to the unit tests and benchmarks: a fuzz run wants many executions per second.
 constexpr int kBuildAtomLimit = 24;
+
+// A written number that is not one: a whole token "nan", "inf" (any sign or case) or a JSON null. Tokens, not
+// substrings, since warnings are words ("resonance" holds "nan").
+inline bool has_non_finite_token(const std::string& text) {
+    std::string token;
+    auto bad = [&] {
+        std::string t;
+        for (char ch : token) t += static_cast<char>(std::tolower(static_cast<unsigned char>(ch)));
+        if (!t.empty() && (t[0] == '-' || t[0] == '+')) t.erase(0, 1);
+        return t == "nan" || t == "inf" || t == "infinity" || t == "null";
+    };
+    for (char ch : text) {
+        if (std::isspace(static_cast<unsigned char>(ch)) || ch == ',' || ch == ':' || ch == '[' || ch == ']' ||
+            ch == '{' || ch == '}') {
+            if (bad()) return true;
+            token.clear();
+        } else {
+            token += ch;
+        }
+    }
+    return bad();
+}
 
 inline void build_and_write(Molecule m, std::string_view input) {
     int total = m.atom_count();
@@ -27,8 +51,7 @@ inline void build_and_write(Molecule m, std::string_view input) {
         std::string text;
         if (guarded("write", input, [&] { text = writer->record(s, "fuzz"); }, true) != Outcome::ok) continue;
         if (text.empty() || text.back() != '\n') finding("a writer returned a record without its final newline", input);
-        if (text.find("nan") != std::string::npos || text.find("inf") != std::string::npos)
-            finding("a writer wrote nan or inf", input);
+        if (has_non_finite_token(text)) finding("a writer wrote nan, inf or a JSON null", input);
         if (f != Format::pdb)
             for (const std::string& w : s.warnings)
                 if (text.find(w.substr(0, std::min<size_t>(w.size(), 20))) == std::string::npos)
