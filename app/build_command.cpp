@@ -139,6 +139,7 @@ int run_build(const BuildArgs& args) {
     }
     BuildOptions options;
     options.refine = args.refine;
+    options.time_limit = args.time_limit;
 
     auto build_one = [&](const std::string& text, const std::string& name) {
         Molecule mol = read_species(text, args.notation);

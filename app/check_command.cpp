@@ -73,14 +73,26 @@ int run_check(const CheckArgs& args) {
     nlohmann::json doc;
     doc["file"] = args.file;
     doc["structures"] = nlohmann::json::array();
-    size_t total = 0, written = 0;
+    size_t total = 0, written = 0, failed = 0;
     std::string text, cleaned;
     std::unique_ptr<StructureWriter> writer;
     try {
         if (args.fix) writer = make_writer(format_from_path(args.output_file));
         if (writer) cleaned += writer->begin();
         for (size_t k = 0; k < structures.size(); ++k) {
-            Audit audit = audit_structure(structures[k], options);
+            // One structure that cannot be audited (a limit, an unsupported element) costs only itself.
+            Audit audit;
+            try {
+                audit = audit_structure(structures[k], options);
+            } catch (const std::exception& e) {
+                ++failed;
+                const std::string why = e.what();
+                std::cerr << fmt::format("repel check: structure {} (line {}) not audited: {}\n", k + 1,
+                                         structures[k].line, why);
+                if (args.json) doc["structures"].push_back({{"line", structures[k].line}, {"error", why}});
+                else text += fmt::format("structure {} (line {}): not audited: {}\n", k + 1, structures[k].line, why);
+                continue;
+            }
             total += audit.findings.size();
             if (args.json) doc["structures"].push_back(audit_json(audit));
             else text += audit_text(audit, static_cast<int>(k + 1));
@@ -129,7 +141,7 @@ int run_check(const CheckArgs& args) {
             return 2;
         }
     }
-    return total > 0 ? 1 : 0;
+    return total > 0 || failed > 0 ? 1 : 0;
 }
 
 }  // namespace repel::app

@@ -6,6 +6,7 @@
 #include <istream>
 #include <string>
 
+#include "core/limits.hpp"
 #include "input/species.hpp"
 #include "output/writer.hpp"
 
@@ -25,6 +26,7 @@ struct BuildArgs {
     std::string shard;        // --shard K/N
     bool resume = false;      // --resume
     bool progress = true;     // a progress line when standard error is a terminal (--no-progress turns it off)
+    double time_limit = kDefaultTimeLimit;  // --time-limit: seconds per molecule (0: none)
 };
 
 struct ShapeArgs {

@@ -50,6 +50,10 @@ int run(int argc, char** argv) {
                         "continue an interrupted batch from the checkpoint beside -o (starts afresh when there is none)");
     bool no_progress = false;
     cmd_build->add_flag("--no-progress", no_progress, "no progress line on standard error (it is only drawn on a terminal)");
+    cmd_build->add_option("--time-limit", build.time_limit,
+                          "seconds one molecule may take before it fails as a record (0: no limit)")
+        ->check(CLI::NonNegativeNumber)
+        ->capture_default_str();
     auto* in_opt = cmd_build->get_option("INPUT");
     auto* file_opt = cmd_build->get_option("--input");
     in_opt->excludes(file_opt);

@@ -5,7 +5,8 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 
 packages=(build-essential cmake pkg-config libeigen3-dev libnlopt-cxx-dev libfmt-dev libspdlog-dev libcli11-dev
-          nlohmann-json3-dev libgtest-dev libgmock-dev libbenchmark-dev libtbb-dev openmpi-bin libopenmpi-dev python3 python3-ase python3-numpy xtb)
+          nlohmann-json3-dev libgtest-dev libgmock-dev libbenchmark-dev libtbb-dev openmpi-bin libopenmpi-dev python3 python3-ase python3-numpy xtb
+          clang libclang-rt-14-dev)  # clang and its runtime libraries: the libFuzzer targets (scripts/fuzz.sh)
 missing=()
 for p in "${packages[@]}"; do
   dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")

@@ -73,11 +73,13 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options)
     s.molecule = molecule;
     const int n = molecule.atom_count();
     if (n == 0) throw InputError("nothing to build: the molecule has no atoms");
+    const ScopedDeadline deadline(options.time_limit);
     for (const Atom& a : molecule.atoms)
         if (a.hydrogens > 0)
             throw std::logic_error("build_structure needs explicit hydrogens (Molecule::make_hydrogens_explicit)");
 
     const MoleculeDomains domains = analyse_domains(molecule);
+    check_deadline("analysing the electron domains");
     s.charge = domains.charge;
     s.multiplicity = domains.multiplicity;
     s.warnings = domains.warnings;
@@ -98,9 +100,11 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options)
     const auto double_bonds = double_bond_targets(molecule);
 
     const RingInfo rings = perceive_rings(molecule);
+    check_deadline("perceiving rings");
     std::vector<RingSystemCoordinates> ring_xyz;
     ring_xyz.reserve(rings.systems.size());
     for (size_t k = 0; k < rings.systems.size(); ++k) {
+        check_deadline("embedding ring systems");
         RingSystemEmbedding e = embed_ring_system(molecule, domains, rings, static_cast<int>(k), chiral);
         const auto& atoms = rings.systems[k];
         if (e.worst_angle_strain > kStrainWarningDegrees)
@@ -117,7 +121,9 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options)
     }
 
     s.positions = assemble_positions(molecule, domains, rings, ring_xyz, chiral);
+    check_deadline("assembling the frames");
     pack_components(molecule, s.positions);
+    check_deadline("packing the components");
 
     if (options.refine && n > 1) {
         RefineOptions refine_options;
@@ -128,6 +134,7 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options)
                                              r.message.empty() ? "" : ": ", r.message));
     }
 
+    check_deadline("refining");
     for (const ChiralTarget& t : chiral)
         if (!chirality_met(t, s.positions))
             s.warnings.push_back(fmt::format("stereocentre at atom {} does not have the written handedness in 3D",

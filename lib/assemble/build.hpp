@@ -1,6 +1,7 @@
 // Whole-molecule building: domain frames assembled into Cartesian coordinates, then refined.
 #pragma once
 
+#include "core/limits.hpp"
 #include "graph/molecule.hpp"
 
 namespace repel {
@@ -11,6 +12,9 @@ struct BuildOptions {
     // at 3e-3 bonds stay within about 1.5e-3 A and angles within about 0.3 degree of their targets, the G2 and xtb
     // checks give the same figures, and the drug set builds 1.6 times faster (benchmarks/README.md).
     double refine_tolerance = 3e-3;
+    // Wall-clock seconds one molecule may take (core/limits.hpp); past it the build fails with a LimitError
+    // ("gave up after ..."). 0 or less: no limit. The limit never changes a structure that is built within it.
+    double time_limit = kDefaultTimeLimit;
 };
 
 // 3D coordinates for a molecule whose hydrogens are explicit (Molecule::make_hydrogens_explicit()).

@@ -15,7 +15,9 @@ constexpr double kComponentContactMargin = 0.5;
 // Moves every component after the first so that no atom comes closer to an atom of another component than the sum of
 // their van der Waals radii plus kComponentContactMargin, as close as that allows. A charged component is put next
 // to the first placed atom of opposite formal charge (an ion beside its counter-ion), a neutral one next to the
-// centre of what is placed. Deterministic; the first component does not move.
+// centre of what is placed. Past the first 64 components the rest go on a cubic lattice beside them (kept apart by
+// the same contact rule), so that thousands of components cost linear time. Deterministic; the first component does
+// not move.
 void pack_components(const Molecule& molecule, std::vector<Eigen::Vector3d>& positions);
 
 }  // namespace repel

@@ -1,5 +1,7 @@
 #include "assemble/distance_geometry.hpp"
 
+#include "core/limits.hpp"
+
 #include <Eigen/Eigenvalues>
 #include <algorithm>
 #include <cmath>
@@ -187,6 +189,7 @@ double minimise_lbfgs(const Problem& p, Eigen::VectorXd& x, int max_evaluations,
     std::vector<double> rho;
     std::vector<double> alpha(kMemory);
     while (f > kGoodEnough && evaluations < max_evaluations) {
+        check_deadline("embedding a ring system");
         // Two-loop recursion for d = -H g.
         d = -g;
         const int m = static_cast<int>(s_hist.size());
@@ -315,7 +318,8 @@ void DistanceBounds::narrow(int i, int j, double lo, double hi) {
 bool DistanceBounds::smooth() {
     const int n = size();
     bool consistent = true;
-    for (int k = 0; k < n; ++k)
+    for (int k = 0; k < n; ++k) {
+        check_deadline("smoothing the distance bounds of a ring system");
         for (int i = 0; i < n; ++i) {
             if (i == k) continue;
             const double uik = upper(i, k), lik = lower(i, k);
@@ -331,6 +335,7 @@ bool DistanceBounds::smooth() {
                 }
             }
         }
+    }
     return consistent;
 }
 

@@ -1,6 +1,7 @@
 #include "assemble/ring_embed.hpp"
 
 #include <Eigen/Geometry>
+#include <fmt/format.h>
 #include <algorithm>
 #include <cmath>
 #include <unordered_map>
@@ -9,6 +10,7 @@
 #include "assemble/place.hpp"
 #include "core/bond_length.hpp"
 #include "core/element.hpp"
+#include "core/error.hpp"
 
 namespace repel {
 
@@ -43,6 +45,11 @@ constexpr double kFarFraction = 0.7;
 constexpr int kLargestCisOnlyRing = 11;
 // Largest spread of bond lengths (Angstrom) in a ring built from a plain template without the embedding.
 constexpr double kTemplateBondSpread = 0.03;
+// Largest ring system (atoms) the distance-geometry embedding takes on: its bounds are n x n and their smoothing
+// n^3: one ring of 2,000 atoms took 584 s to build on the shared 2-core development machine (measured), where 500
+// atoms should take about 1/64 of that (by the n^3 smoothing; estimated). No drug, natural product, macrocycle or
+// fullerene comes near 500 atoms in one ring system.
+constexpr int kMaxEmbeddedRingSystem = 500;
 // Flat rings up to this size have the angles of the regular polygon; larger flat rings (the inner ring of a porphyrin)
 // take their angles from the centres' frames.
 constexpr int kLargestPolygonRing = 8;
@@ -412,6 +419,12 @@ private:
 
     RingSystemEmbedding distance_geometry() {
         const int n = static_cast<int>(atoms_.size());
+        // The embedding keeps n x n bounds and smooths them in n^3 steps: past this size a hostile input (one ring
+        // of 100,000 atoms) would take hours and gigabytes. Refused plainly instead.
+        if (n > kMaxEmbeddedRingSystem)
+            throw UnsupportedError(fmt::format("a ring system of {} atoms (atoms {}..{}) is larger than the {} atoms "
+                                               "the ring embedding handles",
+                                               n, atoms_.front() + 1, atoms_.back() + 1, kMaxEmbeddedRingSystem));
         DistanceBounds bounds(n);
         // 1-2
         for (int a = 0; a < n; ++a)

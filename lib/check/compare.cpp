@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <cstdint>
 #include <map>
 
 #include "assemble/stereo.hpp"
@@ -23,9 +24,10 @@ std::vector<long> classes(const Molecule& m, int rounds) {
             std::vector<long> nb;
             for (const Neighbor& x : m.neighbors(i)) nb.push_back(c[static_cast<size_t>(x.atom)]);
             std::sort(nb.begin(), nb.end());
-            long h = c[static_cast<size_t>(i)] * 1000003L;
-            for (long v : nb) h = (h ^ v) * 1099511628211L;
-            next[static_cast<size_t>(i)] = h;
+            // Unsigned arithmetic: the hash wraps around by design (signed overflow would be undefined).
+            std::uint64_t h = static_cast<std::uint64_t>(c[static_cast<size_t>(i)]) * 1000003ULL;
+            for (long v : nb) h = (h ^ static_cast<std::uint64_t>(v)) * 1099511628211ULL;
+            next[static_cast<size_t>(i)] = static_cast<long>(h);
         }
         c.swap(next);
     }
@@ -57,47 +59,82 @@ public:
         }
     }
 
-    // Calls visit(map) for each complete matching until it returns true or the step budget is spent.
+    // Calls visit(map) for each complete matching until it returns true or the step budget is spent. Depth-first
+    // with an explicit stack (one frame per mapped reference atom), so the depth of the search never becomes the
+    // depth of the call stack: a reference of 100,000 atoms is no deeper for the machine than one of ten.
     template <class Visit>
-    bool run(Visit visit) { return extend(0, visit); }
+    bool run(Visit visit) {
+        if (++steps_ > kSteps) return true;
+        if (order_.empty()) return visit(map_);
+        std::vector<Frame> stack;
+        stack.push_back(frame(0));
+        while (!stack.empty()) {
+            const size_t k = stack.size() - 1;
+            const int r = order_[k];
+            bool descended = false;
+            {
+                Frame& f = stack.back();
+                if (f.assigned >= 0) {  // back from the level below: undo this level's choice, try the next
+                    map_[static_cast<size_t>(r)] = -1;
+                    used_[static_cast<size_t>(f.assigned)] = 0;
+                    f.assigned = -1;
+                }
+                while (f.next < f.candidates.size()) {
+                    const int c = f.candidates[f.next++];
+                    if (!acceptable(r, c)) continue;
+                    map_[static_cast<size_t>(r)] = c;
+                    used_[static_cast<size_t>(c)] = 1;
+                    f.assigned = c;
+                    if (++steps_ > kSteps) return true;
+                    if (k + 1 == order_.size()) {
+                        if (visit(map_)) return true;
+                        map_[static_cast<size_t>(r)] = -1;
+                        used_[static_cast<size_t>(c)] = 0;
+                        f.assigned = -1;
+                        continue;
+                    }
+                    descended = true;
+                    break;
+                }
+            }
+            if (descended) stack.push_back(frame(k + 1));  // f is not used past here (push_back may move it)
+            else stack.pop_back();
+        }
+        return false;
+    }
     bool exhausted() const { return steps_ > kSteps; }
 
 private:
-    template <class Visit>
-    bool extend(size_t k, Visit& visit) {
-        if (++steps_ > kSteps) return true;
-        if (k == order_.size()) return visit(map_);
+    struct Frame {
+        std::vector<int> candidates;
+        size_t next = 0;
+        int assigned = -1;  // the image chosen at this level, -1 for none
+    };
+
+    // The candidates for reference atom order_[k]: neighbours of the image of a mapped neighbour, else every atom.
+    Frame frame(size_t k) const {
         const int r = order_[k];
-        // Candidates: neighbours of the image of a mapped neighbour, else every atom.
         int anchor = -1;
         for (const Neighbor& nb : ref_.neighbors(r))
             if (map_[static_cast<size_t>(nb.atom)] >= 0) {
                 anchor = map_[static_cast<size_t>(nb.atom)];
                 break;
             }
-        std::vector<int> cands;
+        Frame f;
         if (anchor >= 0)
-            for (const Neighbor& nb : s_.neighbors(anchor)) cands.push_back(nb.atom);
+            for (const Neighbor& nb : s_.neighbors(anchor)) f.candidates.push_back(nb.atom);
         else
-            for (int i = 0; i < s_.atom_count(); ++i) cands.push_back(i);
-        for (int c : cands) {
-            if (used_[static_cast<size_t>(c)] || cs_[static_cast<size_t>(c)] != cr_[static_cast<size_t>(r)]) continue;
-            bool ok = true;
-            for (const Neighbor& nb : ref_.neighbors(r)) {
-                const int m = map_[static_cast<size_t>(nb.atom)];
-                if (m >= 0 && s_.bond_between(c, m) < 0) {
-                    ok = false;
-                    break;
-                }
-            }
-            if (!ok) continue;
-            map_[static_cast<size_t>(r)] = c;
-            used_[static_cast<size_t>(c)] = 1;
-            if (extend(k + 1, visit)) return true;
-            map_[static_cast<size_t>(r)] = -1;
-            used_[static_cast<size_t>(c)] = 0;
+            for (int i = 0; i < s_.atom_count(); ++i) f.candidates.push_back(i);
+        return f;
+    }
+
+    bool acceptable(int r, int c) const {
+        if (used_[static_cast<size_t>(c)] || cs_[static_cast<size_t>(c)] != cr_[static_cast<size_t>(r)]) return false;
+        for (const Neighbor& nb : ref_.neighbors(r)) {
+            const int m = map_[static_cast<size_t>(nb.atom)];
+            if (m >= 0 && s_.bond_between(c, m) < 0) return false;
         }
-        return false;
+        return true;
     }
 
     static constexpr long kSteps = 2'000'000;  // search steps before giving up (highly symmetric large structures)

@@ -2,6 +2,8 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
+
 namespace repel {
 
 std::string InputError::describe() const {
@@ -12,10 +14,10 @@ std::string InputError::describe() const {
         out = what();
     if (!text_.empty() && text_.size() <= 200) {
         out += "\n  " + text_;
-        if (column_ > 0) out += "\n  " + std::string(static_cast<size_t>(column_ - 1), ' ') + "^";
+        if (column_ > 0) out += "\n  " + std::string(std::min(static_cast<size_t>(column_ - 1), text_.size()), ' ') + "^";
     } else if (!text_.empty() && column_ > 0) {
         // A long line: show a window around the column.
-        size_t c = static_cast<size_t>(column_ - 1);
+        size_t c = std::min(static_cast<size_t>(column_ - 1), text_.size());  // a column past the end: at the end
         size_t from = c > 40 ? c - 40 : 0;
         std::string window = text_.substr(from, 80);
         out += "\n  " + std::string(from > 0 ? "..." : "") + window;

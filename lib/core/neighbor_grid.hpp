@@ -2,6 +2,7 @@
 #pragma once
 
 #include <Eigen/Core>
+#include <algorithm>
 #include <cmath>
 #include <cstdint>
 #include <unordered_map>
@@ -31,7 +32,12 @@ public:
     double cell() const { return cell_; }
 
 private:
-    std::int64_t cell_of(double x) const { return static_cast<std::int64_t>(std::floor(x / cell_)); }
+    // Clamped before the conversion: a coordinate of 1e300 (a file may state one) would otherwise overflow the
+    // integer (undefined behaviour); far-off atoms share the outermost cells, which only costs time, never a pair.
+    std::int64_t cell_of(double x) const {
+        const double t = std::floor(x / cell_);
+        return std::isfinite(t) ? static_cast<std::int64_t>(std::clamp(t, -1e15, 1e15)) : 0;
+    }
     static std::int64_t key(std::int64_t x, std::int64_t y, std::int64_t z) {
         return ((x & 0x1FFFFF) << 42) | ((y & 0x1FFFFF) << 21) | (z & 0x1FFFFF);
     }

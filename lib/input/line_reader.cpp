@@ -55,6 +55,19 @@ std::optional<double> parse_real(std::string_view field) {
     return v;
 }
 
+std::optional<double> parse_coordinate(std::string_view field, std::string* why) {
+    auto v = parse_real(field);
+    if (!v) {
+        *why = "is not a finite number";
+        return std::nullopt;
+    }
+    if (std::abs(*v) > kMaxCoordinate) {
+        *why = fmt::format("is beyond +-{:.0f} Angstrom", kMaxCoordinate);
+        return std::nullopt;
+    }
+    return v;
+}
+
 std::optional<long> parse_integer(std::string_view field) {
     field = trim(field);
     if (!field.empty() && field[0] == '+') field.remove_prefix(1);

@@ -29,6 +29,13 @@ private:
 // Parses a whole field (surrounding blanks allowed) as a finite number; nothing when it is not one.
 std::optional<double> parse_real(std::string_view field);
 std::optional<long> parse_integer(std::string_view field);
+// Coordinates (Angstrom) beyond this magnitude are refused: no molecule spans a millimetre (1e7 A; a 1,000,000-atom chain
+// stretched straight is 1.3e6 A long), and numbers near the
+// limits of a double make every distance infinite downstream (common practice: a guard, not chemistry).
+constexpr double kMaxCoordinate = 1e7;
+// A coordinate: parse_real within +-kMaxCoordinate. On failure *why says what is wrong ("is not a finite number",
+// "is beyond +-10000000 Angstrom").
+std::optional<double> parse_coordinate(std::string_view field, std::string* why);
 std::string_view trim(std::string_view s);
 // Columns from..to (1-based, inclusive) of a fixed-column line, empty past its end.
 std::string_view columns(std::string_view line, size_t from, size_t to);

@@ -10,6 +10,7 @@
 
 #include <unordered_map>
 
+#include "core/limits.hpp"
 #include "input/line_reader.hpp"
 
 namespace repel {
@@ -98,10 +99,11 @@ std::vector<ReadStructure> read_pdb(std::istream& in) {
             Eigen::Vector3d pos;
             for (int d = 0; d < 3; ++d) {
                 const size_t from = 31 + 8 * static_cast<size_t>(d);
-                auto v = input::parse_real(columns(line, from, from + 7));
+                std::string why;
+                auto v = input::parse_coordinate(columns(line, from, from + 7), &why);
                 if (!v)
-                    fail_at(n, fmt::format("the {} coordinate (columns {}-{}) '{}' is not a finite number", "xyz"[d],
-                                           from, from + 7, std::string(trim(columns(line, from, from + 7)))),
+                    fail_at(n, fmt::format("the {} coordinate (columns {}-{}) '{}' {}", "xyz"[d], from, from + 7,
+                                           std::string(trim(columns(line, from, from + 7))), why),
                             line, static_cast<int>(from));
                 pos[d] = *v;
             }
@@ -125,6 +127,11 @@ std::vector<ReadStructure> read_pdb(std::istream& in) {
                             line, 79);
                 atom.charge = (charge[0] - '0') * (charge[1] == '+' ? 1 : -1);
             }
+            if (p.rec.structure.molecule.atom_count() >= kMaxAtoms)
+                throw LimitError(fmt::format("line {}: more than {} atoms in one structure (the largest structure "
+                                             "repel reads)",
+                                             n, kMaxAtoms),
+                                 line, 1);
             const int index = p.rec.structure.molecule.add_atom(atom);
             p.rec.structure.positions.push_back(pos);
             if (auto serial = input::parse_integer(columns(line, 7, 11)))

@@ -16,6 +16,7 @@
 #include <sstream>
 
 #include "core/element.hpp"
+#include "core/limits.hpp"
 #include "input/line_reader.hpp"
 
 namespace repel {
@@ -25,7 +26,7 @@ using input::columns;
 using input::fail_at;
 using input::trim;
 
-constexpr long kMaxCount = 10'000'000;
+constexpr long kMaxCount = 4L * kMaxAtoms;  // bonds: a generous multiple of the atom limit
 
 std::vector<std::string> split(std::string_view s) {
     std::vector<std::string> out;
@@ -69,10 +70,11 @@ void read_v2000(input::LineReader& r, ReadStructure& rec, long natoms, long nbon
         Eigen::Vector3d p;
         for (int d = 0; d < 3; ++d) {
             const size_t from = 1 + 10 * static_cast<size_t>(d);
-            auto v = input::parse_real(columns(line, from, from + 9));
+            std::string why;
+            auto v = input::parse_coordinate(columns(line, from, from + 9), &why);
             if (!v)
-                fail_at(r.line(), fmt::format("the {} coordinate of atom {} (columns {}-{}) is not a finite number",
-                                              "xyz"[d], i + 1, from, from + 9),
+                fail_at(r.line(), fmt::format("the {} coordinate of atom {} (columns {}-{}) {}", "xyz"[d], i + 1,
+                                              from, from + 9, why),
                         line, static_cast<int>(from));
             p[d] = *v;
         }
@@ -173,8 +175,13 @@ void read_v3000(input::LineReader& r, ReadStructure& rec) {
         if (f[0] == "COUNTS") {
             auto a = f.size() > 1 ? input::parse_integer(f[1]) : std::nullopt;
             auto b = f.size() > 2 ? input::parse_integer(f[2]) : std::nullopt;
-            if (!a || !b || *a < 0 || *b < 0 || *a > kMaxCount || *b > kMaxCount)
+            if (!a || !b || *a < 0 || *b < 0)
                 fail_at(at, "COUNTS needs the atom and bond counts", line, 8);
+            if (*a > kMaxAtoms || *b > kMaxCount)
+                throw LimitError(fmt::format("line {}: COUNTS {} {}: more than {} atoms or {} bonds (the largest "
+                                             "structure repel reads)",
+                                             at, *a, *b, kMaxAtoms, kMaxCount),
+                                 line, 8);
             natoms = *a;
             nbonds = *b;
             continue;
@@ -185,10 +192,10 @@ void read_v3000(input::LineReader& r, ReadStructure& rec) {
             if (z == 0) fail_at(at, fmt::format("'{}' is not an element symbol (H to Rn)", f[1]), line, 8);
             Eigen::Vector3d p;
             for (int d = 0; d < 3; ++d) {
-                auto v = input::parse_real(f[static_cast<size_t>(2 + d)]);
+                std::string why;
+                auto v = input::parse_coordinate(f[static_cast<size_t>(2 + d)], &why);
                 if (!v)
-                    fail_at(at, fmt::format("the {} coordinate '{}' is not a finite number", "xyz"[d],
-                                            f[static_cast<size_t>(2 + d)]),
+                    fail_at(at, fmt::format("the {} coordinate '{}' {}", "xyz"[d], f[static_cast<size_t>(2 + d)], why),
                             line, static_cast<int>(line.find(f[static_cast<size_t>(2 + d)]) + 1));
                 p[d] = *v;
             }
@@ -201,9 +208,15 @@ void read_v3000(input::LineReader& r, ReadStructure& rec) {
                 if (key != "CHG" && key != "RAD") continue;
                 auto v = input::parse_integer(f[k].substr(eq + 1));
                 if (!v) fail_at(at, fmt::format("'{}': expected a whole number", f[k]), line);
+                if (key == "CHG" && (*v < -15 || *v > 15)) fail_at(at, fmt::format("'{}': a charge outside -15..15", f[k]), line);
                 if (key == "CHG") atom.charge = static_cast<int>(*v);
                 else atom.radical_electrons = radical_electrons(*v);
             }
+            if (m.atom_count() >= kMaxAtoms)
+                throw LimitError(fmt::format("line {}: more than {} atoms in one structure (the largest structure "
+                                             "repel reads)",
+                                             at, kMaxAtoms),
+                                 line, 1);
             m.add_atom(atom);
             rec.structure.positions.push_back(p);
         } else if (block == Block::bond) {

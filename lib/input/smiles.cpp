@@ -11,6 +11,7 @@
 
 #include "core/element.hpp"
 #include "core/error.hpp"
+#include "core/limits.hpp"
 #include "input/kekulize.hpp"
 #include "input/organic_subset.hpp"
 #include "input/smiles_stereo.hpp"
@@ -476,6 +477,9 @@ size_t Reader::chirality(size_t i, Atom& atom) {
 }
 
 void Reader::add_atom(Atom& atom, int hydrogen_event) {
+    if (mol_.atom_count() >= kMaxAtoms)
+        throw LimitError(fmt::format("more than {} atoms (the largest molecule repel reads)", kMaxAtoms),
+                         std::string(text_), atom.column);
     if (atom.aromatic) any_aromatic_ = true;
     const int v = mol_.add_atom(atom);
     ws.atoms.emplace_back();

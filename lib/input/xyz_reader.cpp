@@ -10,6 +10,7 @@
 #include <cctype>
 
 #include "core/element.hpp"
+#include "core/limits.hpp"
 #include "input/line_reader.hpp"
 
 namespace repel {
@@ -17,7 +18,6 @@ namespace {
 
 using input::fail_at;
 
-constexpr long kMaxAtoms = 10'000'000;  // more than any structure file holds; guards against a garbled count
 
 std::vector<std::string> split(std::string_view s) {
     std::vector<std::string> out;
@@ -100,7 +100,12 @@ std::vector<ReadStructure> read_xyz(std::istream& in) {
         auto tokens = split(*count_line);
         auto count = input::parse_integer(tokens.empty() ? "" : tokens[0]);
         if (count && *count == 0) fail_at(count_at, "a structure of 0 atoms: expected at least one atom", *count_line, 1);
-        if (!count || tokens.size() > 1 || *count < 0 || *count > kMaxAtoms) {
+        if (count && tokens.size() == 1 && *count > kMaxAtoms)
+            throw LimitError(fmt::format("line {}: a structure of {} atoms: more than {} (the largest structure repel "
+                                         "reads)",
+                                         count_at, *count, kMaxAtoms),
+                             *count_line, 1);
+        if (!count || tokens.size() > 1 || *count < 0) {
             const std::string what =
                 out.empty() ? "expected the atom count (a whole number) on the first line of an XYZ file"
                             : fmt::format("expected the atom count of structure {} (a whole number); the count on line "
@@ -148,9 +153,10 @@ std::vector<ReadStructure> read_xyz(std::istream& in) {
                 const std::string& field = f[static_cast<size_t>(d + 1)];
                 const size_t col = line->find(field, search);
                 search = col + field.size();
-                auto v = input::parse_real(field);
+                std::string why;
+                auto v = input::parse_coordinate(field, &why);
                 if (!v)
-                    fail_at(reader.line(), fmt::format("the {} coordinate '{}' is not a finite number", "xyz"[d], field),
+                    fail_at(reader.line(), fmt::format("the {} coordinate '{}' {}", "xyz"[d], field, why),
                             *line, static_cast<int>(col + 1));
                 p[d] = *v;
             }

@@ -174,7 +174,12 @@ std::vector<std::string> data_lines(std::string_view text) {
 
 std::string data_items(const Structure& s, const std::string& title) {
     std::string out;
-    if (one_line(title, true).size() > kHeaderWidth) out += "> <name>\n" + one_line(title, true) + "\n\n";
+    if (one_line(title, true).size() > kHeaderWidth) {
+        // Kept on one line, but never starting with "$$$$": that line would end the record (found by fuzz_sdf).
+        std::string name = one_line(title, true);
+        if (name.rfind("$$$$", 0) == 0) name = " " + name;
+        out += "> <name>\n" + name + "\n\n";
+    }
     out += fmt::format("> <charge>\n{}\n\n> <multiplicity>\n{}\n\n", s.charge, s.multiplicity);
     std::string warnings;
     for (const std::string& w : s.warnings)

@@ -7,6 +7,8 @@
 #include <limits>
 #include <vector>
 
+#include "core/limits.hpp"
+
 namespace repel::refine {
 
 namespace {
@@ -106,7 +108,10 @@ public:
     }
 
 private:
-    bool stopped() const { return converged_ || non_finite_ || evaluations_ >= options_.max_evaluations; }
+    // The molecule's time limit (core/limits.hpp) also stops the run; refine_structure then throws the LimitError.
+    bool stopped() const {
+        return converged_ || non_finite_ || evaluations_ >= options_.max_evaluations || deadline_passed();
+    }
 
     double evaluate(const std::vector<double>& x, std::vector<double>& g) {
         const double f = energy_(x, g);

@@ -9,6 +9,7 @@
 #include <stdexcept>
 #include <string>
 
+#include "core/limits.hpp"
 #include "refine/constants.hpp"
 #include "refine/contacts.hpp"
 #include "refine/lbfgs.hpp"
@@ -118,6 +119,7 @@ RefineResult refine_structure(const Molecule& molecule, const MoleculeDomains& d
             return evaluate(terms, contacts, at, gradient.data());
         },
         x, minimiser);
+    check_deadline("refining");  // the minimiser stops early once the molecule's time is up
 
     for (int i = 0; i < n; ++i)
         positions[static_cast<size_t>(i)] = {x[3 * static_cast<size_t>(i)], x[3 * static_cast<size_t>(i) + 1],
