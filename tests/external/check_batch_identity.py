@@ -132,6 +132,12 @@ def main():
                        OMPI_MCA_btl="self,tcp,vader", OMPI_MCA_rmaps_base_oversubscribe="1",
                        # containers often forbid the cross-memory copy of the shared-memory transport
                        OMPI_MCA_btl_vader_single_copy_mechanism="none")
+            # Under the sanitizer suite (scripts/test.sh): LeakSanitizer reports what Open MPI allocates in MPI_Init,
+            # MPI_Finalize and its own event thread and never frees (seen here: 95 reports on 20 molecules, every one
+            # allocated inside Open MPI, none from repel's code). Leak checking of repel's batch code is done by the
+            # threaded runs above; the MPI ranks keep every other AddressSanitizer check. A build without sanitizers
+            # ignores the variable.
+            env["ASAN_OPTIONS"] = (env.get("ASAN_OPTIONS", "") + ":detect_leaks=0").lstrip(":")
             out = os.path.join(tmp, "mpi2.sdf")
             cmd = [mpiexec, "--oversubscribe", "-np", "2", repel_mpi, "build", "-i", smi, "-o", out]
             p = subprocess.run(cmd, capture_output=True, text=True, timeout=1200, env=env)
