@@ -24,12 +24,15 @@ run_one() {
     local t=$1
     local rc=0
     mkdir -p "build-fuzz/corpus/$t"
+    # Seed corpus and regression inputs, where the repository has them (git keeps no empty folder).
+    local inputs=("build-fuzz/corpus/$t")
+    for d in "tests/fuzz/corpus/$t" "tests/fuzz/regressions/$t"; do [ -d "$d" ] && inputs+=("$d"); done
     # -timeout: one input may take this long (a hang guard well above any small molecule's build time);
     # -rss_limit_mb: an input that makes the process this large is a finding.
     ASAN_OPTIONS=detect_leaks=1 UBSAN_OPTIONS=print_stacktrace=1 \
     "build-fuzz/bin/$t" -max_total_time="$seconds" -timeout=20 -rss_limit_mb=4096 -print_final_stats=1 \
         -artifact_prefix="build-fuzz/$t-" ${FUZZ_ARGS:-} \
-        "build-fuzz/corpus/$t" "tests/fuzz/corpus/$t" "tests/fuzz/regressions/$t" >"$logs/$t.log" 2>&1 || rc=$?
+        "${inputs[@]}" >"$logs/$t.log" 2>&1 || rc=$?
     # The last status line: executions, coverage (cov: edges, ft: features), corpus size and speed.
     local last; last=$(grep -E '^#[0-9]+' "$logs/$t.log" | tail -1 || true)
     local rate; rate=$(grep -E 'stat::average_exec_per_sec' "$logs/$t.log" | awk '{print $2}' || true)
