@@ -22,22 +22,7 @@ make_set() {  # make_set COUNT FILE: the drug set cycled to COUNT records, each 
         END { for (i = 0; i < n; i++) printf "%s %s-%d\n", s[i % m], nm[i % m], i + 1 }' "$here/drug_like.smi" >"$2"
 }
 
-peak_kib() {
-    if [[ -x /usr/bin/time ]]; then
-        /usr/bin/time -v "$@" >/dev/null 2>"$work/time.txt" || true
-        awk -F: '/Maximum resident set size/ {gsub(/ /, "", $2); print $2}' "$work/time.txt"
-    else
-        "$@" >/dev/null 2>&1 &
-        local pid=$! peak=0 v
-        while kill -0 "$pid" 2>/dev/null; do
-            v=$(awk '/VmHWM/ {print $2}' "/proc/$pid/status" 2>/dev/null || echo 0)
-            (( ${v:-0} > peak )) && peak=$v
-            sleep 0.05
-        done
-        wait "$pid" || true
-        echo "$peak"
-    fi
-}
+source "$here/common.sh"  # peak_kib
 
 echo "machine: $(nproc) cores, $(awk '/MemTotal/ {printf "%.0f GiB", $2 / 1048576}' /proc/meminfo)," \
      "$(lscpu | awk -F: '/Model name/ {gsub(/^ +/, "", $2); print $2; exit}'), load $(cut -d' ' -f1-3 /proc/loadavg)"

@@ -16,23 +16,7 @@ trap 'rm -rf "$work"' EXIT
 
 now_ns() { date +%s%N; }
 
-# Peak resident memory of one command in KiB.
-peak_kib() {
-    if [[ -x /usr/bin/time ]]; then
-        /usr/bin/time -v "$@" >/dev/null 2>"$work/time.txt" || true
-        awk -F: '/Maximum resident set size/ {gsub(/ /, "", $2); print $2}' "$work/time.txt"
-    else
-        "$@" >/dev/null 2>&1 &
-        local pid=$! peak=0 v
-        while kill -0 "$pid" 2>/dev/null; do
-            v=$(awk '/VmHWM/ {print $2}' "/proc/$pid/status" 2>/dev/null || echo 0)
-            (( ${v:-0} > peak )) && peak=$v
-            sleep 0.01
-        done
-        wait "$pid" || true
-        echo "$peak"
-    fi
-}
+source "$here/common.sh"  # peak_kib
 
 # CPU time (user + system, ms) per run of a command, averaged over RUNS runs: the figure that the load of a shared
 # machine disturbs least. Bash's `time` keyword reads the children's rusage (microsecond resolution).

@@ -16,6 +16,7 @@
 
 #include "core/error.hpp"
 #include "graph/molecule.hpp"
+#include "input/smiles.hpp"
 #include "input/smiles_stereo.hpp"
 
 namespace repel::fuzz {
@@ -126,6 +127,22 @@ inline std::string structure_difference(const Structure& x, const Structure& y, 
 inline bool all_finite(const std::vector<Eigen::Vector3d>& positions) {
     for (const auto& p : positions)
         if (!p.allFinite()) return false;
+    return true;
+}
+
+// The round trip the SMILES and formula targets share: m written as SMILES reads back to the same graph. False when
+// the writer refused m (a documented refusal; the caller then stops).
+inline bool check_smiles_round_trip(const Molecule& m, std::string_view text, const std::string& what) {
+    std::string written;
+    if (guarded("write_smiles", text, [&] { written = write_smiles(m); }) != Outcome::ok) return false;
+    Molecule back;
+    try {
+        back = read_smiles(written);
+    } catch (const std::exception& e) {
+        finding(what + " written as SMILES '" + written + "' does not read: " + e.what(), text);
+    }
+    if (const std::string d = graph_difference(m, back); !d.empty())
+        finding(what + " -> '" + written + "' -> graph changed: " + d, text);
     return true;
 }
 

@@ -21,16 +21,7 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, size_t size) {
     if (m.bond_count() != m.atom_count() - 1) finding("read_formula: a ligand not bonded to the centre", text);
     for (const Atom& a : m.atoms)
         if (a.hydrogens != 0) finding("read_formula: an implicit hydrogen", text);
-    std::string written;
-    if (guarded("write_smiles", text, [&] { written = write_smiles(m); }) != Outcome::ok) return 0;
-    Molecule back;
-    try {
-        back = read_smiles(written);
-    } catch (const std::exception& e) {
-        finding("the formula written as SMILES '" + written + "' does not read: " + e.what(), text);
-    }
-    if (const std::string d = graph_difference(m, back); !d.empty())
-        finding("formula -> '" + written + "' -> graph changed: " + d, text);
+    if (!check_smiles_round_trip(m, text, "the formula")) return 0;
     build_and_write(std::move(m), text);
     return 0;
 }
