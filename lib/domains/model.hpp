@@ -18,7 +18,10 @@ struct DomainModel {
     double lone_pair_radius;        // radius of the inner sphere lone pairs sit on (bonding domains: 1)
     double single_electron_weight;  // weight of a single-electron domain
     double single_electron_radius;  // its radius
-    double multiple_bond_weight;    // a bonding domain's weight grows by this factor per bond order above 1
+    double multiple_bond_weight;    // at a period-2 centre a bonding domain's weight grows by this factor per bond
+                                    // order above 1 (a pi bond beside the sigma bond: C=C, C=O, N=O)
+    double heavy_multiple_bond_weight;  // the same at a centre of period 3 or later (S=O, P=O, Cl=O, Xe=O: bonds
+                                        // of strong ionic character, drawn double)
     double electronegativity_slope; // Bent's rule: weight factor exp(-slope * (chi_ligand - chi_centre))
     double period_slope;            // larger centres: bonding weight factor exp(-slope * (period - 2)) for period > 2
 };
