@@ -668,3 +668,24 @@ TEST(WriterSamples, WriteSampleFiles) {
     EXPECT_EQ(nlohmann::json::parse(load(dir / "manifest.json"))["samples"].size(), samples.size());
     if (!keep) fs::remove_all(dir);
 }
+
+// append_fixed writes what fmt's "{:w.df}" writes for the tidied value (the writers used that before), for values
+// across every magnitude a coordinate can take, both signs, values just off a rounding boundary, and zeros.
+TEST(FixedNumbers, SameTextAsGeneralFormatting) {
+    std::vector<double> values = {0.0, -0.0, 1e-9, -1e-9, 0.00005, -0.00005, 0.00004999, 0.5, -0.5, 1.23455, 9.99995,
+                                  -9.99995, 99999.99995, 1e7, -1e7, 123.456789, 0.0000005, -0.0000005};
+    unsigned long long state = 12345;
+    for (int k = 0; k < 200000; ++k) {
+        state = state * 6364136223846793005ULL + 1442695040888963407ULL;
+        const double unit = static_cast<double>(state >> 11) / 9007199254740992.0;  // [0, 1)
+        const double magnitude = std::pow(10.0, -7.0 + 14.0 * unit);
+        values.push_back(((state >> 3) & 1 ? -1.0 : 1.0) * magnitude * (1.0 + unit));
+    }
+    for (const double v : values)
+        for (const auto& [decimals, width] : {std::pair{4, 10}, std::pair{6, 12}, std::pair{3, 8}}) {
+            std::string ours;
+            repel::output::append_fixed(ours, v, decimals, width);
+            const std::string general = fmt::format("{:{}.{}f}", repel::output::tidy(v, decimals), width, decimals);
+            ASSERT_EQ(ours, general) << "value " << fmt::format("{:.17g}", v) << ", " << decimals << " places";
+        }
+}

@@ -50,6 +50,11 @@ std::string one_line(std::string_view text, bool ascii_only);
 // v rounded to `decimals` places, with a negative zero made positive so that "-0.000000" is never written.
 double tidy(double v, int decimals);
 
+// Appends tidy(v, decimals) with exactly `decimals` places, right-aligned in `width` characters: the same text as
+// fmt's "{:width.decimalsf}" of tidy(v, decimals), written from one integer instead of a general float formatting
+// (the writers spent more instructions in float formatting than the rest of a record). decimals is 1..9.
+void append_fixed(std::string& out, double v, int decimals, int width);
+
 // Hybrid-36 encoding of a non-negative integer in exactly `width` characters (Grosse-Kunstleve and Adams, the cctbx
 // "hybrid-36: PDB serial and sequence numbers" reference implementation, 2007): decimal below 10^width (right-justified
 // in the field), then upper-case base 36 from "A000..", then lower-case base 36 from "a000..". For width 5 that numbers

@@ -19,6 +19,7 @@
 #include <fmt/format.h>
 
 #include <cmath>
+#include <iterator>
 #include <cstdlib>
 #include <stdexcept>
 #include <vector>
@@ -107,15 +108,18 @@ std::string v2000(const Structure& s) {
     for (int i = 0; i < m.atom_count(); ++i) {
         const Atom& a = m.atoms[static_cast<size_t>(i)];
         const Eigen::Vector3d& p = s.positions[static_cast<size_t>(i)];
-        out += fmt::format("{:10.4f}{:10.4f}{:10.4f} {:<3} 0{:3}  0  0  0  0  0  0  0  0  0  0\n", tidy(p.x(), 4),
-                           tidy(p.y(), 4), tidy(p.z(), 4), symbol_of(s, i), charge_code(a.charge));
+        append_fixed(out, p.x(), 4, 10);
+        append_fixed(out, p.y(), 4, 10);
+        append_fixed(out, p.z(), 4, 10);
+        fmt::format_to(std::back_inserter(out), " {:<3} 0{:3}  0  0  0  0  0  0  0  0  0  0\n", symbol_of(s, i),
+                       charge_code(a.charge));
         if (a.charge != 0) charges.emplace_back(i + 1, a.charge);
         if (radical_code(a) != 0) radicals.emplace_back(i + 1, radical_code(a));
         if (a.isotope > 0) isotopes.emplace_back(i + 1, a.isotope);
     }
     for (int b = 0; b < m.bond_count(); ++b) {
         const Bond& bond = m.bonds[static_cast<size_t>(b)];
-        out += fmt::format("{:3}{:3}{:3}  0  0  0  0\n", bond.a + 1, bond.b + 1, bond_type(bond, b));
+        fmt::format_to(std::back_inserter(out), "{:3}{:3}{:3}  0  0  0  0\n", bond.a + 1, bond.b + 1, bond_type(bond, b));
     }
     out += m_lines("CHG", charges) + m_lines("RAD", radicals) + m_lines("ISO", isotopes);
     return out + "M  END\n";

@@ -5,6 +5,7 @@
 
 #include <cctype>
 #include <cmath>
+#include <iterator>
 #include <stdexcept>
 
 #include "core/element.hpp"
@@ -147,6 +148,32 @@ double tidy(double v, int decimals) {
     const double scale = std::pow(10.0, decimals);
     const double r = std::round(v * scale) / scale;
     return r == 0.0 ? 0.0 : r;
+}
+
+void append_fixed(std::string& out, double v, int decimals, int width) {
+    static constexpr double kScale[] = {1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9};
+    const double t = tidy(v, decimals);
+    const double scaled = decimals >= 1 && decimals <= 9 ? t * kScale[decimals] : 0.0;
+    // Past 2^53 / 10 the integer is no longer exact: general formatting then (never for coordinates, which the
+    // readers and the build keep within 1e7 A).
+    if (!(decimals >= 1 && decimals <= 9) || !std::isfinite(t) || std::fabs(scaled) > 9.0e14) {
+        fmt::format_to(std::back_inserter(out), "{:{}.{}f}", t, width, decimals);
+        return;
+    }
+    long long k = std::llround(scaled);
+    const bool negative = k < 0;
+    if (negative) k = -k;
+    char digits[32];
+    int n = 0;
+    for (int d = 0; d < decimals; ++d, k /= 10) digits[n++] = static_cast<char>('0' + k % 10);
+    digits[n++] = '.';
+    do {
+        digits[n++] = static_cast<char>('0' + k % 10);
+        k /= 10;
+    } while (k > 0);
+    if (negative) digits[n++] = '-';
+    for (int pad = width - n; pad > 0; --pad) out.push_back(' ');
+    while (n > 0) out.push_back(digits[--n]);
 }
 
 }  // namespace output

@@ -6,6 +6,8 @@
 // No Properties key is written: its default (species, then 3 position columns) is what the atom lines hold.
 #include <fmt/format.h>
 
+#include <iterator>
+
 #include "output/formats.hpp"
 
 namespace repel::output {
@@ -46,8 +48,12 @@ std::string XyzWriter::record(const Structure& structure, const std::string& tit
     std::string out = fmt::format("{}\n{}\n", n, comment_line(structure, title));
     for (int i = 0; i < n; ++i) {
         const Eigen::Vector3d& p = structure.positions[static_cast<size_t>(i)];
-        out += fmt::format("{:<2} {:12.6f} {:12.6f} {:12.6f}\n", symbol_of(structure, i), tidy(p.x(), 6),
-                           tidy(p.y(), 6), tidy(p.z(), 6));
+        fmt::format_to(std::back_inserter(out), "{:<2}", symbol_of(structure, i));
+        for (int k = 0; k < 3; ++k) {
+            out.push_back(' ');
+            append_fixed(out, p[k], 6, 12);
+        }
+        out.push_back('\n');
     }
     return out;
 }
