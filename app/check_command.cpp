@@ -13,6 +13,7 @@
 #include "check/report.hpp"
 #include "commands.hpp"
 #include "core/error.hpp"
+#include "core/limits.hpp"
 #include "input/smiles.hpp"
 #include "input/structure_reader.hpp"
 #include "output/writer.hpp"
@@ -69,6 +70,7 @@ int run_check(const CheckArgs& args) {
     options.charge = args.charge;
     options.multiplicity = args.multiplicity;
     options.reference_smiles = args.smiles;
+    options.time_limit = args.time_limit;
 
     nlohmann::json doc;
     doc["file"] = args.file;
@@ -98,7 +100,14 @@ int run_check(const CheckArgs& args) {
             else text += audit_text(audit, static_cast<int>(k + 1));
             if (writer) {
                 // Only refined structures are written; the others are named on standard error.
-                CleanResult c = clean_structure(audit);
+                CleanResult c;
+                try {
+                    const ScopedDeadline deadline(args.time_limit);
+                    c = clean_structure(audit);
+                } catch (const LimitError& e) {
+                    c.refined = false;
+                    c.summary = e.what();
+                }
                 if (c.refined) {
                     if (written > 0) cleaned += writer->separator();
                     cleaned += writer->record(c.structure, audit.title);

@@ -19,6 +19,7 @@ struct CheckArgs {
     std::string smiles;               // --smiles REF: the molecule the structure is meant to be
     bool fix = false;                 // --fix: write a cleaned structure
     std::string output_file;          // -o with --fix (.xyz, .pdb, .sdf)
+    double time_limit = 60;           // --time-limit: seconds per structure for the audit and again for --fix
 };
 
 // Exit status of the contract: 0 no finding, 1 findings, 2 the file cannot be read (or a usage error).

@@ -95,6 +95,11 @@ int run(int argc, char** argv) {
                           "the intended molecule (SMILES): compare atoms, connectivity, stereocentres and double bonds");
     cmd_check->add_flag("--fix", check.fix, "write a cleaned structure (with -o): same atoms and stereochemistry, relaxed");
     cmd_check->add_option("-o,--output", check.output_file, "where --fix writes (.xyz, .pdb, .sdf)");
+    cmd_check->add_option("--time-limit", check.time_limit,
+                          "seconds one structure's audit (and again its --fix) may take before it is reported as not "
+                          "audited (0: no limit)")
+        ->check(CLI::NonNegativeNumber)
+        ->capture_default_str();
 
     try {
         app.parse(argc, argv);

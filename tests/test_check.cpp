@@ -277,3 +277,21 @@ TEST(Reference, DoubleBondConfigurationIsCompared) {
     Audit c = audit_structure(xyz(text), cis);
     EXPECT_TRUE(has(c, "double bond", 1)) << describe(c);
 }
+
+// A structure's audit has a time limit (AuditOptions::time_limit, `repel check --time-limit`): past it the audit
+// throws a LimitError naming the stage, which the front end reports as "not audited" for that structure only.
+TEST(Audit, TimeLimitFailsTheStructureWithAMessage) {
+    std::ostringstream text;
+    text << "2000\nbare carbon chain\n";
+    for (int i = 0; i < 2000; ++i) text << "C " << 1.26 * i << " " << (i % 2 ? 0.8 : 0.0) << " 0\n";
+    AuditOptions options;
+    options.time_limit = 1e-9;  // already past when the first stage ends
+    try {
+        audit_structure(xyz(text.str()), options);
+        FAIL() << "no LimitError";
+    } catch (const LimitError& e) {
+        EXPECT_NE(std::string(e.what()).find("gave up after"), std::string::npos) << e.what();
+    }
+    options.time_limit = 0;  // none: the audit runs to its end
+    EXPECT_FALSE(audit_structure(xyz(text.str()), options).findings.empty());
+}

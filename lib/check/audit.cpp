@@ -14,6 +14,7 @@
 
 #include "core/bond_length.hpp"
 #include "core/element.hpp"
+#include "core/limits.hpp"
 #include "core/error.hpp"
 #include "core/neighbor_grid.hpp"
 #include "check/compare.hpp"
@@ -204,6 +205,7 @@ void check_valences(Audit& out, const ValenceResult& v, int unpaired_allowed, bo
 }  // namespace
 
 Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
+    const ScopedDeadline deadline(opt.time_limit);
     Audit out;
     out.title = in.title;
     out.line = in.line;
@@ -229,6 +231,7 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
                                     o.distance, std::nullopt, "angstrom", Severity::error, 200});
         }
     }
+    check_deadline("perceiving bonds");
     ValenceResult valence;
     if (!in.has_orders || !in.needs_orders.empty()) {
         out.orders_assigned = true;

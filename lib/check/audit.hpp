@@ -2,6 +2,8 @@
 // coordinates, centre by centre, plus bond lengths, contacts, neighbour counts, valences and charge.
 #pragma once
 
+#include "core/limits.hpp"
+
 #include <optional>
 #include <string>
 #include <vector>
@@ -35,6 +37,7 @@ struct AuditOptions {
     std::optional<int> charge;        // --charge (else the file's, else 0)
     std::optional<int> multiplicity;  // --multiplicity (else the file's, else none: unpaired electrons are findings)
     std::string reference_smiles;     // --smiles: the molecule the structure is meant to be (empty: none)
+    double time_limit = kDefaultTimeLimit;  // seconds one structure may take (0: none); past it a LimitError
 };
 
 struct Audit {

@@ -6,11 +6,13 @@
 #include <cmath>
 #include <numeric>
 #include <optional>
+#include <queue>
 #include <tuple>
 #include <unordered_map>
 
 #include "core/bond_length.hpp"
 #include "core/element.hpp"
+#include "core/limits.hpp"
 #include "core/neighbor_grid.hpp"
 
 namespace repel {
@@ -122,6 +124,7 @@ public:
             for (int a : atoms) sum += rem_[static_cast<size_t>(a)];
             // Each extra order serves two atoms: an odd total cannot be matched perfectly.
             if (sum % 2 == 0 && perfect(atoms)) continue;
+            check_deadline("assigning bond orders");
             // No perfect matching: one atom keeps an unpaired electron. Which one is decided by the bond lengths:
             // the Lewis structure whose orders fit the measured lengths best (the CH2 of CH2-C#N, not its N).
             std::vector<int> candidates;
@@ -139,7 +142,10 @@ public:
                 x_ = saved_x;
                 rem_[static_cast<size_t>(c)] -= 1;
                 nodes_ = limit_ - std::min(limit_, kCandidateNodes);
-                if (!perfect(atoms)) continue;
+                if (!perfect(atoms)) {
+                    check_deadline("assigning bond orders");
+                    continue;
+                }
                 const double fit = misfit(atoms);
                 if (fit < best_fit - kFitTie) {
                     best_fit = fit;
@@ -183,6 +189,7 @@ private:
     // Depth-first search for a perfect assignment, most constrained atom first (forced choices cost nothing).
     bool perfect(const std::vector<int>& atoms) {
         if (++nodes_ > limit_) return false;
+        if ((nodes_ & 1023) == 0 && deadline_passed()) return false;  // solve() then throws the LimitError
         int best = -1, best_count = 1 << 30;
         for (int a : atoms) {
             if (rem_[static_cast<size_t>(a)] <= 0) continue;
@@ -206,21 +213,31 @@ private:
         return false;
     }
 
+    // Most constrained atom first (fewest usable bonds, then lowest index), one order at a time. A heap with stale
+    // entries skipped keeps it O(n log n): a step changes the counts only of the two atoms and their neighbours.
     void greedy(const std::vector<int>& atoms) {
-        while (true) {
-            int best = -1, best_count = 1 << 30;
-            for (int a : atoms) {
-                if (rem_[static_cast<size_t>(a)] <= 0) continue;
-                const int c = usable(a, nullptr);
-                if (c > 0 && c < best_count) {
-                    best_count = c;
-                    best = a;
-                }
-            }
-            if (best < 0) return;
+        using Entry = std::pair<int, int>;  // (usable bonds, atom)
+        std::priority_queue<Entry, std::vector<Entry>, std::greater<Entry>> heap;
+        auto push = [&](int a) {
+            if (rem_[static_cast<size_t>(a)] <= 0) return;
+            const int c = usable(a, nullptr);
+            if (c > 0) heap.push({c, a});
+        };
+        for (int a : atoms) push(a);
+        std::vector<char> in_component(static_cast<size_t>(m_.atom_count()), 0);
+        for (int a : atoms) in_component[static_cast<size_t>(a)] = 1;
+        while (!heap.empty()) {
+            const auto [count, best] = heap.top();
+            heap.pop();
+            if (rem_[static_cast<size_t>(best)] <= 0 || usable(best, nullptr) != count) continue;  // stale
             for (const Neighbor& nb : adj_[static_cast<size_t>(best)])
                 if (std::min(capacity(nb.bond), rem_[static_cast<size_t>(nb.atom)]) > 0) {
                     step(best, nb, +1);
+                    for (int changed : {best, nb.atom}) {
+                        if (in_component[static_cast<size_t>(changed)]) push(changed);
+                        for (const Neighbor& around : adj_[static_cast<size_t>(changed)])
+                            if (in_component[static_cast<size_t>(around.atom)]) push(around.atom);
+                    }
                     break;
                 }
         }
