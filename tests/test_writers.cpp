@@ -22,6 +22,7 @@
 #include "core/element.hpp"
 #include "core/error.hpp"
 #include "output/formats.hpp"
+#include "input/structure_reader.hpp"
 #include "output/writer.hpp"
 
 using namespace repel;
@@ -688,4 +689,20 @@ TEST(FixedNumbers, SameTextAsGeneralFormatting) {
             const std::string general = fmt::format("{:{}.{}f}", repel::output::tidy(v, decimals), width, decimals);
             ASSERT_EQ(ours, general) << "value " << fmt::format("{:.17g}", v) << ", " << decimals << " places";
         }
+}
+
+// A name longer than a reader's longest line (64 KiB: repel's own LineReader, and a common limit) is cut in the SD
+// file's name item and marked, so that the file still reads back; a shorter long name is kept whole.
+TEST(Sdf, VeryLongNameStillReadsBack) {
+    const repel::output::SdfWriter writer;
+    for (const size_t length : {size_t{5000}, size_t{200000}}) {
+        const std::string name(length, 'n');
+        std::istringstream in(writer.begin() + writer.record(methane(), name) + writer.end());
+        const auto read = repel::read_sdf(in);
+        ASSERT_EQ(read.size(), 1u) << length;
+        EXPECT_EQ(read[0].structure.molecule.atom_count(), 5) << length;
+        const std::string text = writer.record(methane(), name);
+        if (length < 65000) EXPECT_NE(text.find(name), std::string::npos);
+        else EXPECT_NE(text.find(std::string(65000, 'n') + " [cut]"), std::string::npos);
+    }
 }

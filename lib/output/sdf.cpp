@@ -182,6 +182,10 @@ std::string data_items(const Structure& s, const std::string& title) {
         // Kept on one line, but never starting with "$$$$": that line would end the record (found by fuzz_sdf).
         std::string name = one_line(title, true);
         if (name.rfind("$$$$", 0) == 0) name = " " + name;
+        // Readers refuse lines past 64 KiB (repel's own among them: LineReader::kMaxLine): a longer name is cut
+        // there and marked, so that the file still reads back.
+        constexpr size_t kLongestName = 65000;
+        if (name.size() > kLongestName) name = name.substr(0, kLongestName) + " [cut]";
         out += "> <name>\n" + name + "\n\n";
     }
     out += fmt::format("> <charge>\n{}\n\n> <multiplicity>\n{}\n\n", s.charge, s.multiplicity);
