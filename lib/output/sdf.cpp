@@ -16,6 +16,7 @@
 //  - Bonds: Bond::order as kekulized, types 1/2/3. CTfile bond type 4 means aromatic, not quadruple, and there is
 //    no quadruple type: a structure with a quadruple bond is refused with a message rather than written wrong.
 //  - Data items > <charge>, > <multiplicity>, and > <warnings> (one warning a line) when there are any.
+#include <fmt/compile.h>
 #include <fmt/format.h>
 
 #include <cmath>
@@ -111,15 +112,16 @@ std::string v2000(const Structure& s) {
         append_fixed(out, p.x(), 4, 10);
         append_fixed(out, p.y(), 4, 10);
         append_fixed(out, p.z(), 4, 10);
-        fmt::format_to(std::back_inserter(out), " {:<3} 0{:3}  0  0  0  0  0  0  0  0  0  0\n", symbol_of(s, i),
-                       charge_code(a.charge));
+        fmt::format_to(std::back_inserter(out), FMT_COMPILE(" {:<3} 0{:3}  0  0  0  0  0  0  0  0  0  0\n"),
+                       symbol_of(s, i), charge_code(a.charge));
         if (a.charge != 0) charges.emplace_back(i + 1, a.charge);
         if (radical_code(a) != 0) radicals.emplace_back(i + 1, radical_code(a));
         if (a.isotope > 0) isotopes.emplace_back(i + 1, a.isotope);
     }
     for (int b = 0; b < m.bond_count(); ++b) {
         const Bond& bond = m.bonds[static_cast<size_t>(b)];
-        fmt::format_to(std::back_inserter(out), "{:3}{:3}{:3}  0  0  0  0\n", bond.a + 1, bond.b + 1, bond_type(bond, b));
+        fmt::format_to(std::back_inserter(out), FMT_COMPILE("{:3}{:3}{:3}  0  0  0  0\n"), bond.a + 1, bond.b + 1,
+                       bond_type(bond, b));
     }
     out += m_lines("CHG", charges) + m_lines("RAD", radicals) + m_lines("ISO", isotopes);
     return out + "M  END\n";

@@ -144,20 +144,23 @@ std::string one_line(std::string_view text, bool ascii_only) {
     return out;
 }
 
+namespace {
+constexpr double kPowersOfTen[] = {1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9};
+}  // namespace
+
 double tidy(double v, int decimals) {
-    const double scale = std::pow(10.0, decimals);
+    const double scale = decimals >= 0 && decimals <= 9 ? kPowersOfTen[decimals] : std::pow(10.0, decimals);
     const double r = std::round(v * scale) / scale;
     return r == 0.0 ? 0.0 : r;
 }
 
 void append_fixed(std::string& out, double v, int decimals, int width) {
-    static constexpr double kScale[] = {1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9};
-    const double t = tidy(v, decimals);
-    const double scaled = decimals >= 1 && decimals <= 9 ? t * kScale[decimals] : 0.0;
+    // round(v 10^d) is the integer whose digits fmt writes for tidy(v, d) (tidy divides it by 10^d again).
+    const double scaled = decimals >= 1 && decimals <= 9 ? std::round(v * kPowersOfTen[decimals]) : 0.0;
     // Past 2^53 / 10 the integer is no longer exact: general formatting then (never for coordinates, which the
     // readers and the build keep within 1e7 A).
-    if (!(decimals >= 1 && decimals <= 9) || !std::isfinite(t) || std::fabs(scaled) > 9.0e14) {
-        fmt::format_to(std::back_inserter(out), "{:{}.{}f}", t, width, decimals);
+    if (!(decimals >= 1 && decimals <= 9) || !std::isfinite(scaled) || std::fabs(scaled) > 9.0e14) {
+        fmt::format_to(std::back_inserter(out), "{:{}.{}f}", tidy(v, decimals), width, decimals);
         return;
     }
     long long k = std::llround(scaled);

@@ -48,7 +48,9 @@ std::string XyzWriter::record(const Structure& structure, const std::string& tit
     std::string out = fmt::format("{}\n{}\n", n, comment_line(structure, title));
     for (int i = 0; i < n; ++i) {
         const Eigen::Vector3d& p = structure.positions[static_cast<size_t>(i)];
-        fmt::format_to(std::back_inserter(out), "{:<2}", symbol_of(structure, i));
+        const std::string_view symbol = symbol_of(structure, i);
+        out += symbol;
+        if (symbol.size() < 2) out.push_back(' ');
         for (int k = 0; k < 3; ++k) {
             out.push_back(' ');
             append_fixed(out, p[k], 6, 12);
