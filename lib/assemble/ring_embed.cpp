@@ -352,22 +352,30 @@ private:
             const int relation = (b.stereo == BondStereo::cis ? 1 : -1) * side(j, k, ref_j) * side(k, j, ref_k);
             return relation * side(j, k, i) * side(k, j, l);
         }
-        // Else a ring that runs through a neighbour of each end: cis in rings up to kLargestCisOnlyRing (and in any
-        // aromatic or planar ring), trans beyond.
+        // Else the smallest ring that runs through a neighbour of each end: cis in rings up to kLargestCisOnlyRing
+        // and across an aromatic bond, trans beyond. The smallest, since a large ring may run through the
+        // bond and turn back (a calixarene's large ring enters a benzene ring and leaves it at the next atom): only
+        // the small ring says how the two sides lie.
+        int best_a = -1, best_c = -1;
+        RingNote best;
         for (int a : nbrs_[at(j)]) {
             if (a == k) continue;
             for (int c : nbrs_[at(k)]) {
                 if (c == j || c == a) continue;
                 const RingNote r = lookup4(a, j, k, c);
-                // A large flat ring may zigzag (a porphyrin's inner ring turns back at each nitrogen): running
-                // through it says nothing about cis or trans.
-                if (r.size == 0 || (r.flat && r.size > kLargestPolygonRing)) continue;
-                const bool ring_cis = r.size <= kLargestCisOnlyRing || r.flat || b.aromatic;
-                const int relation = (ring_cis ? 1 : -1) * side(j, k, a) * side(k, j, c);
-                return relation * side(j, k, i) * side(k, j, l);
+                if (r.size > 0 && (best.size == 0 || r.size < best.size)) {
+                    best = r;
+                    best_a = a;
+                    best_c = c;
+                }
             }
         }
-        return 0;
+        // A large flat ring may zigzag (a porphyrin's inner ring turns back at each nitrogen), and a large puckered
+        // ring through an aromatic bond too: running through it says nothing about cis or trans.
+        if (best.size == 0 || (best.size > kLargestPolygonRing && (best.flat || b.aromatic))) return 0;
+        const bool ring_cis = best.size <= kLargestCisOnlyRing || b.aromatic;
+        const int relation = (ring_cis ? 1 : -1) * side(j, k, best_a) * side(k, j, best_c);
+        return relation * side(j, k, i) * side(k, j, l);
     }
 
     // Signed-volume conditions: the written stereocentres of the system, and planarity of planar fusion atoms.
@@ -630,8 +638,8 @@ private:
         for (size_t a = 0; a < atoms_.size(); ++a) flat = flat && planar_[a] && !curved_[a];
         const std::vector<int> orient = flat ? ring_orientations() : std::vector<int>{};
         const std::vector<AreaCondition> areas = area_conditions(orient);
-        std::vector<Vector3d> start = orient.empty() ? std::vector<Vector3d>{} : planar_start(orient, areas);
-        if (start.empty()) start = fused_start(bounds, torsions, volumes);
+        const std::vector<Vector3d> layout = orient.empty() ? std::vector<Vector3d>{} : planar_start(orient, areas);
+        const std::vector<Vector3d> start = !layout.empty() ? layout : fused_start(bounds, torsions, volumes);
         const EmbedResult e = flat ? embed_points(bounds, {}, {}, kAttempts, kAcceptedViolation, start, true, areas)
                                    : embed_points(bounds, volumes, torsions, kAttempts, kAcceptedViolation, start);
         RingSystemEmbedding out;
