@@ -60,6 +60,8 @@ constexpr double kCurvedAngleSum = 355;
 // Embedding attempts and the accepted bound violation.
 constexpr int kAttempts = 6;
 constexpr double kAcceptedViolation = 0.1;
+// Angstrom: how far the planar layout's atoms are lifted off the plane when it starts a system that is not flat.
+constexpr double kLift = 0.1;
 
 size_t at(int i) { return static_cast<size_t>(i); }
 
@@ -636,9 +638,20 @@ private:
         // start flat, macrocycles start as an open crown and cannot come out knotted); then metric-matrix embeddings.
         bool flat = true;
         for (size_t a = 0; a < atoms_.size(); ++a) flat = flat && planar_[a] && !curved_[a];
-        const std::vector<int> orient = flat ? ring_orientations() : std::vector<int>{};
+        // A system with a large flat ring (a chlorin: a porphyrin with one saturated pyrrole bond) starts from the
+        // planar layout too, lifted a little off the plane so that its puckered parts have a direction to go: the
+        // fused templates would put its large ring on a regular polygon.
+        bool large_flat_ring = false;
+        for (const auto& ring : rings_local_) {
+            bool ring_flat = ring.size() > static_cast<size_t>(kLargestPolygonRing);
+            for (int a : ring) ring_flat = ring_flat && planar_[at(a)] && !curved_[at(a)];
+            large_flat_ring = large_flat_ring || ring_flat;
+        }
+        const std::vector<int> orient = flat || large_flat_ring ? ring_orientations() : std::vector<int>{};
         const std::vector<AreaCondition> areas = area_conditions(orient);
-        const std::vector<Vector3d> layout = orient.empty() ? std::vector<Vector3d>{} : planar_start(orient, areas);
+        std::vector<Vector3d> layout = orient.empty() ? std::vector<Vector3d>{} : planar_start(orient, areas);
+        if (!flat)
+            for (size_t a = 0; a < layout.size(); ++a) layout[a].z() = a % 2 ? kLift : -kLift;
         const std::vector<Vector3d> start = !layout.empty() ? layout : fused_start(bounds, torsions, volumes);
         const EmbedResult e = flat ? embed_points(bounds, {}, {}, kAttempts, kAcceptedViolation, start, true, areas)
                                    : embed_points(bounds, volumes, torsions, kAttempts, kAcceptedViolation, start);
