@@ -31,18 +31,6 @@ constexpr double kContactWarningFraction = 0.5;
 // (common practice; cubane's 90-degree angles are 18 degrees from the tetrahedral frame, norbornane's tightest about
 // 15, adamantane's none).
 constexpr double kStrainWarningDegrees = 17.0;
-// The final self-check of a refined structure (common practice for validating built structures: flag what lies far
-// outside the spread of good structures, not what is merely imperfect).
-// A bond more than this (Angstrom) from its target length: the refinement holds bonds within about 0.002 A of their
-// targets (BuildOptions::refine_tolerance), and a real bond of one pair of elements moves by 0.05-0.1 A with its
-// surroundings (conjugation, strain), while one bond order apart is 0.15-0.2 A (C-C 1.54, C=C 1.34, from memory):
-// past 0.15 A the structure no longer shows the bond it was asked for.
-constexpr double kBondOutlier = 0.15;
-// An angle more than this (degrees) from its target (the domain angle, or what a small or flat ring forces there):
-// crowded drug molecules reach about 10 degrees after refinement, and the spread of one kind of angle in good
-// structures is a few degrees (measured in the G2 set: see tests/external/check_g2_geometry.py, 10 degrees worst);
-// twice that is a distortion, not a compromise.
-constexpr double kAngleOutlier = 25.0;
 // How many outliers a warning names.
 constexpr size_t kOutliersNamed = 4;
 
@@ -82,16 +70,25 @@ void closest_contacts(const Molecule& m, const std::vector<Vector3d>& pos, Conta
 
 // The final self-check: the refinement's outliers (bonds and angles far from their targets) as one warning naming
 // them, so that a distorted structure is never written without a word. Angles at the atoms of a ring system that
-// already carries a warning (strained, or its ring geometry missed) are left out: that warning has said it.
+// already carries a warning (strained, or its ring geometry missed) are left out: that warning has said it; so are
+// angles at the atoms of three- and four-membered rings (what such a ring forces, see below).
 void self_check(const RingInfo& rings, const std::vector<char>& warned_system,
-                const std::vector<GeometryOutlier>& outliers, std::vector<std::string>& warnings) {
+                const std::vector<GeometryOutlier>& outliers, const BuildOptions& options,
+                std::vector<std::string>& warnings) {
+    if (outliers.empty()) return;
+    // Centres in a three- or four-membered ring: the ring's 60 or 90 degrees push their other angles open by as much
+    // as the ring forces (spiropentane's 137 degrees between its rings, against 109.5).
+    std::vector<char> small_ring(rings.atom_system.size(), 0);
+    for (const auto& ring : rings.rings)
+        if (ring.size() <= 4)
+            for (int a : ring) small_ring[static_cast<size_t>(a)] = 1;
     std::vector<std::string> named;
     size_t count = 0;
     for (const GeometryOutlier& o : outliers) {
         const bool angle = o.c >= 0;
         if (angle) {
             const int sys = rings.atom_system[static_cast<size_t>(o.b)];
-            if (sys >= 0 && warned_system[static_cast<size_t>(sys)]) continue;
+            if ((sys >= 0 && warned_system[static_cast<size_t>(sys)]) || small_ring[static_cast<size_t>(o.b)]) continue;
         }
         ++count;
         if (named.size() < kOutliersNamed)
@@ -106,7 +103,7 @@ void self_check(const RingInfo& rings, const std::vector<char>& warned_system,
     warnings.push_back(fmt::format("distorted geometry: {} bond(s) more than {:.2f} A or angle(s) more than {:.0f} "
                                    "degrees from their targets ({}{}); check the structure with a quantum-chemistry "
                                    "optimisation",
-                                   count, kBondOutlier, kAngleOutlier, list, count > named.size() ? ", ..." : ""));
+                                   count, options.bond_outlier, options.angle_outlier, list, count > named.size() ? ", ..." : ""));
 }
 
 }  // namespace
@@ -173,13 +170,13 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options)
     if (options.refine && n > 1) {
         RefineOptions refine_options;
         refine_options.gradient_tolerance = options.refine_tolerance;
-        refine_options.bond_outlier = kBondOutlier;
-        refine_options.angle_outlier = kAngleOutlier;
+        refine_options.bond_outlier = options.bond_outlier;
+        refine_options.angle_outlier = options.angle_outlier;
         const RefineResult r = refine_structure(molecule, domains, chiral, double_bonds, s.positions, refine_options);
         if (!r.converged && r.iterations > 0)
             s.warnings.push_back(fmt::format("refinement not converged after {} iterations{}{}", r.iterations,
                                              r.message.empty() ? "" : ": ", r.message));
-        self_check(rings, warned_system, r.outliers, s.warnings);
+        self_check(rings, warned_system, r.outliers, options, s.warnings);
     }
 
     check_deadline("refining");
