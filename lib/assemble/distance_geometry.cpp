@@ -381,9 +381,9 @@ bool DistanceBounds::smooth() {
 }
 
 double distance_geometry_error(const DistanceBounds& bounds, const std::vector<VolumeCondition>& volumes,
-                               const std::vector<TorsionCondition>& torsions, const double* x, double* g) {
-    const std::vector<AreaCondition> no_areas;
-    const Problem p = make_problem(bounds, volumes, torsions, no_areas);
+                               const std::vector<TorsionCondition>& torsions, const double* x, double* g,
+                               const std::vector<AreaCondition>& areas) {
+    const Problem p = make_problem(bounds, volumes, torsions, areas);
     if (g) std::fill(g, g + 3 * bounds.size(), 0.0);
     return error_function(p, x, g);
 }

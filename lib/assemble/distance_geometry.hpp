@@ -71,6 +71,7 @@ EmbedResult refine_points(const DistanceBounds& bounds, const std::vector<Volume
 
 // The error function and its gradient (g may be null) at flat coordinates x (3 per point); for tests.
 double distance_geometry_error(const DistanceBounds& bounds, const std::vector<VolumeCondition>& volumes,
-                               const std::vector<TorsionCondition>& torsions, const double* x, double* g);
+                               const std::vector<TorsionCondition>& torsions, const double* x, double* g,
+                               const std::vector<AreaCondition>& areas = {});
 
 }  // namespace repel
