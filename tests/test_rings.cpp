@@ -130,6 +130,39 @@ TEST(DistanceGeometry, GradientMatchesFiniteDifferences) {
     }
 }
 
+// The signed-area conditions of planar embeddings (a centre's handedness in the plane): gradient, and an embedding
+// in the plane that meets the sign asked for (distances alone allow both mirror images).
+TEST(DistanceGeometry, AreaConditionGradientAndSign) {
+    DistanceBounds b(4);
+    for (int i = 1; i < 4; ++i) b.narrow(0, i, 1.4, 1.4);
+    b.narrow(1, 2, 2.42, 2.43);  // 120 degrees between the three bonds
+    b.narrow(2, 3, 2.42, 2.43);
+    b.narrow(1, 3, 2.42, 2.43);
+    const std::vector<AreaCondition> areas{{0, 1, 2, 1, 0.5}};
+    std::vector<double> x{0.1, 0.2, 0, 1.2, 0.9, 0, -0.8, 1.1, 0, 0.3, -1.2, 0};
+    std::vector<double> g(x.size());
+    // Mirror the x coordinates so that the area is negative: the condition acts.
+    for (size_t i = 0; i < x.size(); i += 3) x[i] = -x[i];
+    distance_geometry_error(b, {}, {}, x.data(), g.data(), areas);
+    for (size_t i = 0; i < x.size(); ++i) {
+        const double h = 1e-6;
+        auto xp = x, xm = x;
+        xp[i] += h;
+        xm[i] -= h;
+        const double num = (distance_geometry_error(b, {}, {}, xp.data(), nullptr, areas) -
+                            distance_geometry_error(b, {}, {}, xm.data(), nullptr, areas)) / (2 * h);
+        EXPECT_NEAR(g[i], num, 1e-5 * std::max(1.0, std::abs(num))) << "coordinate " << i;
+    }
+    for (int sign : {1, -1}) {
+        const std::vector<AreaCondition> want{{0, 1, 2, sign, 0.5}};
+        const EmbedResult r = embed_points(b, {}, {}, 4, 0.01, {}, true, want);
+        EXPECT_TRUE(r.volumes_met);
+        EXPECT_LT(r.worst_violation, 0.01);
+        const Vector3d u = r.coordinates[1] - r.coordinates[0], v = r.coordinates[2] - r.coordinates[0];
+        EXPECT_GT(sign * (u.x() * v.y() - u.y() * v.x()), 0.5);
+    }
+}
+
 TEST(DistanceGeometry, EmbedsARegularTetrahedronWithItsHandedness) {
     DistanceBounds b(5);
     // A centre and four points at 1.5 A, 2.449 A apart (ideal tetrahedron).

@@ -364,6 +364,23 @@ private:
         place(u, xs[at(lu)]);
         for (size_t k = 0; k < atoms.size(); ++k)
             if (atoms[k] != u) place(atoms[k], xs[k]);
+        place_ring_hydrogens(s);
+    }
+
+    // The hydrogens of a ring system placed with it, at the atoms whose only unplaced neighbours are hydrogens (their
+    // positions follow from the ring alone; growing such an atom later would put them at the same places). Then the
+    // clash test of what is attached next sees them: a phenyl entering at a porphyrin's meso carbon flat would put its
+    // ortho hydrogens onto the pyrrole hydrogens beside it, and only those hydrogens tell it to turn.
+    void place_ring_hydrogens(int s) {
+        for (int a : rings_.systems[at(s)]) {
+            bool any = false, only_hydrogens = true;
+            for (const Neighbor& nb : m_.neighbors(a)) {
+                if (placed_[at(nb.atom)]) continue;
+                any = true;
+                only_hydrogens = only_hydrogens && m_.atoms[at(nb.atom)].z == 1 && m_.degree(nb.atom) == 1;
+            }
+            if (any && only_hydrogens) grow(a);
+        }
     }
 
     int choose_root(const std::vector<int>& atoms) const {
@@ -394,6 +411,7 @@ private:
                 place(sys[k], ring_xyz_[at(s)][k]);
                 system_centre_[at(s)] += ring_xyz_[at(s)][k] / static_cast<double>(sys.size());
             }
+            place_ring_hydrogens(s);
         } else {
             place(root, Vector3d::Zero());
         }

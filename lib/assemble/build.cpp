@@ -31,6 +31,8 @@ constexpr double kContactWarningFraction = 0.5;
 // (common practice; cubane's 90-degree angles are 18 degrees from the tetrahedral frame, norbornane's tightest about
 // 15, adamantane's none).
 constexpr double kStrainWarningDegrees = 17.0;
+// How many outliers a warning names.
+constexpr size_t kOutliersNamed = 4;
 
 bool within_bonds(const Molecule& m, int a, int b, int depth) {
     if (a == b) return true;
@@ -64,6 +66,44 @@ void closest_contacts(const Molecule& m, const std::vector<Vector3d>& pos, Conta
                 *tightest = {i, j, d, d / sum};
         });
     }
+}
+
+// The final self-check: the refinement's outliers (bonds and angles far from their targets) as one warning naming
+// them, so that a distorted structure is never written without a word. Angles at the atoms of a ring system that
+// already carries a warning (strained, or its ring geometry missed) are left out: that warning has said it; so are
+// angles at the atoms of three- and four-membered rings (what such a ring forces, see below).
+void self_check(const RingInfo& rings, const std::vector<char>& warned_system,
+                const std::vector<GeometryOutlier>& outliers, const BuildOptions& options,
+                std::vector<std::string>& warnings) {
+    if (outliers.empty()) return;
+    // Centres in a three- or four-membered ring: the ring's 60 or 90 degrees push their other angles open by as much
+    // as the ring forces (spiropentane's 137 degrees between its rings, against 109.5).
+    std::vector<char> small_ring(rings.atom_system.size(), 0);
+    for (const auto& ring : rings.rings)
+        if (ring.size() <= 4)
+            for (int a : ring) small_ring[static_cast<size_t>(a)] = 1;
+    std::vector<std::string> named;
+    size_t count = 0;
+    for (const GeometryOutlier& o : outliers) {
+        const bool angle = o.c >= 0;
+        if (angle) {
+            const int sys = rings.atom_system[static_cast<size_t>(o.b)];
+            if ((sys >= 0 && warned_system[static_cast<size_t>(sys)]) || small_ring[static_cast<size_t>(o.b)]) continue;
+        }
+        ++count;
+        if (named.size() < kOutliersNamed)
+            named.push_back(angle ? fmt::format("angle {}-{}-{} {:.0f} degrees (target {:.0f})", o.a + 1, o.b + 1,
+                                                o.c + 1, o.value, o.target)
+                                  : fmt::format("bond {}-{} {:.2f} A (target {:.2f})", o.a + 1, o.b + 1, o.value,
+                                                o.target));
+    }
+    if (count == 0) return;
+    std::string list;
+    for (const std::string& x : named) list += (list.empty() ? "" : ", ") + x;
+    warnings.push_back(fmt::format("distorted geometry: {} bond(s) more than {:.2f} A or angle(s) more than {:.0f} "
+                                   "degrees from their targets ({}{}); check the structure with a quantum-chemistry "
+                                   "optimisation",
+                                   count, options.bond_outlier, options.angle_outlier, list, count > named.size() ? ", ..." : ""));
 }
 
 }  // namespace
@@ -103,10 +143,12 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options)
     check_deadline("perceiving rings");
     std::vector<RingSystemCoordinates> ring_xyz;
     ring_xyz.reserve(rings.systems.size());
+    std::vector<char> warned_system(rings.systems.size(), 0);
     for (size_t k = 0; k < rings.systems.size(); ++k) {
         check_deadline("embedding ring systems");
         RingSystemEmbedding e = embed_ring_system(molecule, domains, rings, static_cast<int>(k), chiral);
         const auto& atoms = rings.systems[k];
+        if (e.worst_angle_strain > kStrainWarningDegrees || !e.satisfied) warned_system[k] = 1;
         if (e.worst_angle_strain > kStrainWarningDegrees)
             s.warnings.push_back(fmt::format(
                 "strained ring system (atoms {}..{}, {} atoms): ring angles up to {:.0f} degrees from the domain "
@@ -128,10 +170,13 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options)
     if (options.refine && n > 1) {
         RefineOptions refine_options;
         refine_options.gradient_tolerance = options.refine_tolerance;
+        refine_options.bond_outlier = options.bond_outlier;
+        refine_options.angle_outlier = options.angle_outlier;
         const RefineResult r = refine_structure(molecule, domains, chiral, double_bonds, s.positions, refine_options);
         if (!r.converged && r.iterations > 0)
             s.warnings.push_back(fmt::format("refinement not converged after {} iterations{}{}", r.iterations,
                                              r.message.empty() ? "" : ": ", r.message));
+        self_check(rings, warned_system, r.outliers, options, s.warnings);
     }
 
     check_deadline("refining");

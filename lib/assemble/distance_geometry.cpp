@@ -42,6 +42,7 @@ struct Problem {
     std::vector<Pair> pairs;
     const std::vector<VolumeCondition>* volumes;
     const std::vector<TorsionCondition>* torsions;
+    const std::vector<AreaCondition>* areas;
 };
 
 // Dihedral angle i-j-k-l and, when grad is given, its gradient (Blondel and Karplus, J. Comput. Chem. 17 (1996)
@@ -81,8 +82,32 @@ double volume_of(const double* x, const VolumeCondition& v, double* gb, double* 
     return b.dot(d.cross(e));
 }
 
+// The z component of (x[a]-x[c]) x (x[b]-x[c]).
+double area_of(const double* x, const AreaCondition& q) {
+    const double ax = x[3 * q.a] - x[3 * q.centre], ay = x[3 * q.a + 1] - x[3 * q.centre + 1];
+    const double bx = x[3 * q.b] - x[3 * q.centre], by = x[3 * q.b + 1] - x[3 * q.centre + 1];
+    return ax * by - ay * bx;
+}
+
 double error_function(const Problem& p, const double* x, double* g) {
     double e = 0;
+    for (const AreaCondition& q : *p.areas) {
+        const double area = area_of(x, q);
+        if (q.sign * area >= q.minimum) continue;
+        const double t = q.sign * area - q.minimum;
+        e += kVolumeWeight * t * t;
+        if (g) {
+            const double f = 2 * kVolumeWeight * t * q.sign;
+            const double ax = x[3 * q.a] - x[3 * q.centre], ay = x[3 * q.a + 1] - x[3 * q.centre + 1];
+            const double bx = x[3 * q.b] - x[3 * q.centre], by = x[3 * q.b + 1] - x[3 * q.centre + 1];
+            g[3 * q.a] += f * by;
+            g[3 * q.a + 1] -= f * bx;
+            g[3 * q.b] -= f * ay;
+            g[3 * q.b + 1] += f * ax;
+            g[3 * q.centre] -= f * (by - ay);
+            g[3 * q.centre + 1] -= f * (ax - bx);
+        }
+    }
     for (const Pair& q : p.pairs) {
         const double dx = x[3 * q.i] - x[3 * q.j], dy = x[3 * q.i + 1] - x[3 * q.j + 1], dz = x[3 * q.i + 2] - x[3 * q.j + 2];
         const double d2 = dx * dx + dy * dy + dz * dz;
@@ -154,8 +179,9 @@ double error_function(const Problem& p, const double* x, double* g) {
 
 
 Problem make_problem(const DistanceBounds& b, const std::vector<VolumeCondition>& volumes,
-                     const std::vector<TorsionCondition>& torsions) {
+                     const std::vector<TorsionCondition>& torsions, const std::vector<AreaCondition>& areas) {
     Problem p;
+    p.areas = &areas;
     p.volumes = &volumes;
     p.torsions = &torsions;
     const int n = b.size();
@@ -248,7 +274,8 @@ double minimise_lbfgs(const Problem& p, Eigen::VectorXd& x, int max_evaluations,
 }
 
 EmbedResult evaluate(const DistanceBounds& b, const std::vector<VolumeCondition>& volumes,
-                     const std::vector<TorsionCondition>& torsions, std::vector<Vector3d> xyz, double error) {
+                     const std::vector<TorsionCondition>& torsions, const std::vector<AreaCondition>& areas,
+                     std::vector<Vector3d> xyz, double error) {
     EmbedResult r;
     r.error = error;
     const int n = b.size();
@@ -262,6 +289,8 @@ EmbedResult evaluate(const DistanceBounds& b, const std::vector<VolumeCondition>
         for (int k = 0; k < 3; ++k) flat[3 * i + static_cast<size_t>(k)] = xyz[i][k];
     for (const VolumeCondition& v : volumes)
         if (v.sign != 0 && v.sign * volume_of(flat.data(), v, nullptr, nullptr, nullptr) <= 0) r.volumes_met = false;
+    for (const AreaCondition& q : areas)
+        if (q.sign * area_of(flat.data(), q) <= 0) r.volumes_met = false;
     for (const TorsionCondition& t : torsions) {
         const double a = std::abs(torsion_of(flat.data(), t, nullptr));
         r.worst_torsion = std::max({r.worst_torsion, t.lower - a, a - t.upper});
@@ -281,6 +310,18 @@ std::vector<Vector3d> flatten(const std::vector<Vector3d>& xyz) {
     std::vector<Vector3d> out;
     for (const auto& p : xyz) out.emplace_back((p - c).dot(es.eigenvectors().col(2)), (p - c).dot(es.eigenvectors().col(1)), 0.0);
     return out;
+}
+
+// Mirrors points in the plane (x -> -x) when that meets more of the signed-area conditions.
+void mirror_for_areas(const std::vector<AreaCondition>& areas, std::vector<Vector3d>& xyz) {
+    if (areas.empty()) return;
+    std::vector<double> flat(3 * xyz.size());
+    for (size_t i = 0; i < xyz.size(); ++i)
+        for (int k = 0; k < 3; ++k) flat[3 * i + static_cast<size_t>(k)] = xyz[i][k];
+    int met = 0, wrong = 0;
+    for (const AreaCondition& q : areas) (area_of(flat.data(), q) * q.sign > 0 ? met : wrong)++;
+    if (wrong > met)
+        for (auto& p : xyz) p.x() = -p.x();
 }
 
 // Metric-matrix embedding of one set of trial distances.
@@ -340,16 +381,17 @@ bool DistanceBounds::smooth() {
 }
 
 double distance_geometry_error(const DistanceBounds& bounds, const std::vector<VolumeCondition>& volumes,
-                               const std::vector<TorsionCondition>& torsions, const double* x, double* g) {
-    const Problem p = make_problem(bounds, volumes, torsions);
+                               const std::vector<TorsionCondition>& torsions, const double* x, double* g,
+                               const std::vector<AreaCondition>& areas) {
+    const Problem p = make_problem(bounds, volumes, torsions, areas);
     if (g) std::fill(g, g + 3 * bounds.size(), 0.0);
     return error_function(p, x, g);
 }
 
 EmbedResult refine_points(const DistanceBounds& bounds, const std::vector<VolumeCondition>& volumes,
                           const std::vector<TorsionCondition>& torsions, std::vector<Vector3d> coordinates,
-                          int max_evaluations, bool planar) {
-    const Problem p = make_problem(bounds, volumes, torsions);
+                          int max_evaluations, bool planar, const std::vector<AreaCondition>& areas) {
+    const Problem p = make_problem(bounds, volumes, torsions, areas);
     const size_t dim = 3 * coordinates.size();
     Eigen::VectorXd x(static_cast<Eigen::Index>(dim));
     for (size_t i = 0; i < coordinates.size(); ++i)
@@ -357,12 +399,12 @@ EmbedResult refine_points(const DistanceBounds& bounds, const std::vector<Volume
     const double e = minimise_lbfgs(p, x, max_evaluations, planar);
     for (size_t i = 0; i < coordinates.size(); ++i)
         coordinates[i] = x.segment<3>(static_cast<Eigen::Index>(3 * i));
-    return evaluate(bounds, volumes, torsions, std::move(coordinates), e);
+    return evaluate(bounds, volumes, torsions, areas, std::move(coordinates), e);
 }
 
 EmbedResult embed_points(DistanceBounds bounds, const std::vector<VolumeCondition>& volumes,
                          const std::vector<TorsionCondition>& torsions, int attempts, double tolerance,
-                         const std::vector<Vector3d>& start, bool planar) {
+                         const std::vector<Vector3d>& start, bool planar, const std::vector<AreaCondition>& areas) {
     bounds.smooth();
     const int n = bounds.size();
     constexpr int kEvaluations = 300;
@@ -380,6 +422,7 @@ EmbedResult embed_points(DistanceBounds bounds, const std::vector<VolumeConditio
             if (start.empty()) continue;
             xyz = start;
             if (planar) xyz = flatten(xyz);
+            mirror_for_areas(areas, xyz);
         } else {
             Lcg rng{0x9E3779B97F4A7C15ULL ^ static_cast<std::uint64_t>(attempt + 1) * 0xBF58476D1CE4E5B9ULL};
             Eigen::MatrixXd d2 = Eigen::MatrixXd::Zero(n, n);
@@ -402,8 +445,9 @@ EmbedResult embed_points(DistanceBounds bounds, const std::vector<VolumeConditio
             }
             if (wrong > met)
                 for (auto& p : xyz) p.x() = -p.x();
+            mirror_for_areas(areas, xyz);
         }
-        EmbedResult r = refine_points(bounds, volumes, torsions, std::move(xyz), kEvaluations, planar);
+        EmbedResult r = refine_points(bounds, volumes, torsions, std::move(xyz), kEvaluations, planar, areas);
         if (!have || better(r, best)) {
             best = std::move(r);
             have = true;

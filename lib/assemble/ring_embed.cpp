@@ -3,6 +3,7 @@
 #include <Eigen/Geometry>
 #include <fmt/format.h>
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <unordered_map>
 
@@ -59,6 +60,8 @@ constexpr double kCurvedAngleSum = 355;
 // Embedding attempts and the accepted bound violation.
 constexpr int kAttempts = 6;
 constexpr double kAcceptedViolation = 0.1;
+// Angstrom: how far the planar layout's atoms are lifted off the plane when it starts a system that is not flat.
+constexpr double kLift = 0.1;
 
 size_t at(int i) { return static_cast<size_t>(i); }
 
@@ -351,22 +354,30 @@ private:
             const int relation = (b.stereo == BondStereo::cis ? 1 : -1) * side(j, k, ref_j) * side(k, j, ref_k);
             return relation * side(j, k, i) * side(k, j, l);
         }
-        // Else a ring that runs through a neighbour of each end: cis in rings up to kLargestCisOnlyRing (and in any
-        // aromatic or planar ring), trans beyond.
+        // Else the smallest ring that runs through a neighbour of each end: cis in rings up to kLargestCisOnlyRing
+        // and across an aromatic bond, trans beyond. The smallest, since a large ring may run through the
+        // bond and turn back (a calixarene's large ring enters a benzene ring and leaves it at the next atom): only
+        // the small ring says how the two sides lie.
+        int best_a = -1, best_c = -1;
+        RingNote best;
         for (int a : nbrs_[at(j)]) {
             if (a == k) continue;
             for (int c : nbrs_[at(k)]) {
                 if (c == j || c == a) continue;
                 const RingNote r = lookup4(a, j, k, c);
-                // A large flat ring may zigzag (a porphyrin's inner ring turns back at each nitrogen): running
-                // through it says nothing about cis or trans.
-                if (r.size == 0 || (r.flat && r.size > kLargestPolygonRing)) continue;
-                const bool ring_cis = r.size <= kLargestCisOnlyRing || r.flat || b.aromatic;
-                const int relation = (ring_cis ? 1 : -1) * side(j, k, a) * side(k, j, c);
-                return relation * side(j, k, i) * side(k, j, l);
+                if (r.size > 0 && (best.size == 0 || r.size < best.size)) {
+                    best = r;
+                    best_a = a;
+                    best_c = c;
+                }
             }
         }
-        return 0;
+        // A large flat ring may zigzag (a porphyrin's inner ring turns back at each nitrogen), and a large puckered
+        // ring through an aromatic bond too: running through it says nothing about cis or trans.
+        if (best.size == 0 || (best.size > kLargestPolygonRing && (best.flat || b.aromatic))) return 0;
+        const bool ring_cis = best.size <= kLargestCisOnlyRing || b.aromatic;
+        const int relation = (ring_cis ? 1 : -1) * side(j, k, best_a) * side(k, j, best_c);
+        return relation * side(j, k, i) * side(k, j, l);
     }
 
     // Signed-volume conditions: the written stereocentres of the system, and planarity of planar fusion atoms.
@@ -415,6 +426,143 @@ private:
             if (planar_[c] && !curved_[c] && nbrs_[c].size() == 3)
                 out.push_back({static_cast<int>(c), nbrs_[c][0], nbrs_[c][1], nbrs_[c][2], 0, 0});
         return out;
+    }
+
+    // Orientations (+1 or -1 per ring) under which the system's rings run as the faces of a planar drawing: every
+    // bond two rings share runs one way in one ring and the other way in the other, so every ring has its inside on
+    // the same side. Empty when the rings are not such faces (a bond in three rings, orientations that cannot agree,
+    // rings joined only at atoms).
+    std::vector<int> ring_orientations() const {
+        const size_t nr = rings_local_.size();
+        if (nr < 2) return {};
+        // Per bond (as a local pair) the rings holding it and the direction each runs it.
+        std::unordered_map<std::uint64_t, std::vector<std::pair<int, int>>> bond_rings;  // (ring, +1 when a < b first)
+        for (size_t r = 0; r < nr; ++r) {
+            const auto& ring = rings_local_[r];
+            for (size_t s = 0; s < ring.size(); ++s) {
+                const int a = ring[s], b = ring[(s + 1) % ring.size()];
+                const std::uint64_t key =
+                    (static_cast<std::uint64_t>(std::min(a, b)) << 32) | static_cast<std::uint64_t>(std::max(a, b));
+                bond_rings[key].push_back({static_cast<int>(r), a < b ? 1 : -1});
+            }
+        }
+        std::vector<std::vector<std::pair<int, int>>> links(nr);  // (other ring, +1 when both run the bond alike)
+        for (const auto& [key, list] : bond_rings) {
+            if (list.size() > 2) return {};
+            if (list.size() == 2) {
+                const int same = list[0].second == list[1].second ? 1 : -1;
+                links[at(list[0].first)].push_back({list[1].first, same});
+                links[at(list[1].first)].push_back({list[0].first, same});
+            }
+        }
+        std::vector<int> orient(nr, 0);
+        std::vector<int> queue{0};
+        orient[0] = 1;
+        for (size_t k = 0; k < queue.size(); ++k) {
+            const int r = queue[k];
+            for (auto [other, same] : links[at(r)]) {
+                const int want = -same * orient[at(r)];  // a shared bond runs opposite ways
+                if (orient[at(other)] == 0) {
+                    orient[at(other)] = want;
+                    queue.push_back(other);
+                } else if (orient[at(other)] != want) {
+                    return {};
+                }
+            }
+        }
+        if (queue.size() != nr) return {};
+        return orient;
+    }
+
+    // The neighbours before and after centre c in ring r as the ring runs under orientation o.
+    std::pair<int, int> ring_step(size_t r, int o, int c) const {
+        const auto& ring = rings_local_[r];
+        const size_t size = ring.size();
+        const size_t s = static_cast<size_t>(std::find(ring.begin(), ring.end(), c) - ring.begin());
+        int p = ring[(s + size - 1) % size], q = ring[(s + 1) % size];
+        if (o < 0) std::swap(p, q);
+        return {p, q};
+    }
+
+    // Handedness in the plane of the centres with three ring neighbours, for a flat system drawn with its rings as
+    // faces (ring_orientations): a centre c met as p -> c -> q in a ring has its third neighbour r outside that ring's
+    // corner, so p, r, q come in turn anticlockwise about c and the signed area (p - c) x (r - c) is positive (taking
+    // the insides on the left; the mirror image is the same drawing).
+    std::vector<AreaCondition> area_conditions(const std::vector<int>& orient) const {
+        std::vector<AreaCondition> out;
+        if (orient.empty()) return out;
+        std::vector<char> done(atoms_.size(), 0);
+        for (size_t r = 0; r < rings_local_.size(); ++r)
+            for (int c : rings_local_[r]) {
+                if (done[at(c)] || nbrs_[at(c)].size() != 3) continue;
+                const auto [p, q] = ring_step(r, orient[r], c);
+                int third = -1;
+                for (int x : nbrs_[at(c)])
+                    if (x != p && x != q) third = x;
+                // About a third of the area two ring bonds span at 120 degrees: a sign, not a shape.
+                out.push_back({c, p, third, 1, 0.3 * bond_len(p, c) * bond_len(third, c)});
+                done[at(c)] = 1;
+            }
+        return out;
+    }
+
+    // A start for a flat system whose rings are the faces of a planar drawing: the atoms laid out in the plane one
+    // bond at a time (breadth first), each at its bond length and at the ring angle the bounds aim at from the bond it
+    // is reached by, turning the way the drawing says (a centre with three neighbours by its handedness; one with two
+    // by the corner of its smallest ring, taken convex, the ring's inside on the left). Ring closures are left to the
+    // embedding. A fused start cannot do this for a large ring: its template, a regular polygon, has every corner
+    // convex, where a porphyrin's inner ring turns back at each nitrogen, and the small rings fused on it then sit
+    // inside out. Empty when a centre has more than three ring neighbours.
+    std::vector<Vector3d> planar_start(const std::vector<int>& orient, const std::vector<AreaCondition>& areas) const {
+        const size_t n = atoms_.size();
+        std::vector<std::array<int, 3>> turn(n, {-1, -1, -1});  // three neighbours in anticlockwise order
+        for (const AreaCondition& q : areas) {
+            int last = -1;
+            for (int x : nbrs_[at(q.centre)])
+                if (x != q.a && x != q.b) last = x;
+            turn[at(q.centre)] = {q.a, q.b, last};
+        }
+        for (size_t c = 0; c < n; ++c)
+            if (nbrs_[c].size() > 3 || (nbrs_[c].size() == 3 && turn[c][0] < 0)) return {};
+        auto rotate = [](const Vector3d& u, double angle) {
+            return Vector3d(std::cos(angle) * u.x() - std::sin(angle) * u.y(), std::sin(angle) * u.x() + std::cos(angle) * u.y(), 0);
+        };
+        std::vector<Vector3d> x(n, Vector3d::Zero());
+        std::vector<char> placed(n, 0);
+        std::vector<int> queue{0}, parent(n, -1);
+        placed[0] = 1;
+        parent[0] = nbrs_[0][0];
+        x[at(parent[0])] = Vector3d(bond_len(0, parent[0]), 0, 0);
+        placed[at(parent[0])] = 1;
+        queue.push_back(parent[0]);
+        parent[at(parent[0])] = 0;
+        for (size_t k = 0; k < queue.size(); ++k) {
+            const int c = queue[k], from = parent[at(c)];
+            const Vector3d u = (x[at(from)] - x[at(c)]).normalized();
+            for (int nb : nbrs_[at(c)]) {
+                if (nb == from || placed[at(nb)]) continue;
+                const double theta = target_angle(from, c, nb).first;
+                double side = 0;  // +1: anticlockwise from `from`
+                if (nbrs_[at(c)].size() == 3) {
+                    const auto& t = turn[at(c)];
+                    const int k0 = static_cast<int>(std::find(t.begin(), t.end(), from) - t.begin());
+                    side = t[at((k0 + 1) % 3)] == nb ? 1 : -1;
+                } else {
+                    // The smallest ring through from-c-nb (the rings are listed smallest first).
+                    for (size_t r = 0; r < rings_local_.size() && side == 0; ++r) {
+                        const auto [p, q] = ring_step(r, orient[r], c);
+                        if (p == from && q == nb) side = -1;
+                        else if (q == from && p == nb) side = 1;
+                    }
+                    if (side == 0) return {};
+                }
+                x[at(nb)] = x[at(c)] + bond_len(c, nb) * rotate(u, side * theta);
+                placed[at(nb)] = 1;
+                parent[at(nb)] = c;
+                queue.push_back(nb);
+            }
+        }
+        return x;
     }
 
     RingSystemEmbedding distance_geometry() {
@@ -488,10 +636,24 @@ private:
         bounds.smooth();
         // The first try starts from ring templates fused one ring at a time (chairs stay chairs, aromatic systems
         // start flat, macrocycles start as an open crown and cannot come out knotted); then metric-matrix embeddings.
-        const std::vector<Vector3d> start = fused_start(bounds, torsions, volumes);
         bool flat = true;
         for (size_t a = 0; a < atoms_.size(); ++a) flat = flat && planar_[a] && !curved_[a];
-        const EmbedResult e = flat ? embed_points(bounds, {}, {}, kAttempts, kAcceptedViolation, start, true)
+        // A system with a large flat ring (a chlorin: a porphyrin with one saturated pyrrole bond) starts from the
+        // planar layout too, lifted a little off the plane so that its puckered parts have a direction to go: the
+        // fused templates would put its large ring on a regular polygon.
+        bool large_flat_ring = false;
+        for (const auto& ring : rings_local_) {
+            bool ring_flat = ring.size() > static_cast<size_t>(kLargestPolygonRing);
+            for (int a : ring) ring_flat = ring_flat && planar_[at(a)] && !curved_[at(a)];
+            large_flat_ring = large_flat_ring || ring_flat;
+        }
+        const std::vector<int> orient = flat || large_flat_ring ? ring_orientations() : std::vector<int>{};
+        const std::vector<AreaCondition> areas = area_conditions(orient);
+        std::vector<Vector3d> layout = orient.empty() ? std::vector<Vector3d>{} : planar_start(orient, areas);
+        if (!flat)
+            for (size_t a = 0; a < layout.size(); ++a) layout[a].z() = a % 2 ? kLift : -kLift;
+        const std::vector<Vector3d> start = !layout.empty() ? layout : fused_start(bounds, torsions, volumes);
+        const EmbedResult e = flat ? embed_points(bounds, {}, {}, kAttempts, kAcceptedViolation, start, true, areas)
                                    : embed_points(bounds, volumes, torsions, kAttempts, kAcceptedViolation, start);
         RingSystemEmbedding out;
         out.coordinates = e.coordinates;

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <numbers>
 #include <span>
 #include <stdexcept>
 #include <string>
@@ -73,6 +74,40 @@ std::string format_double(double v) {
     return buffer;
 }
 
+// The bonds and angles of the final positions beyond the limits of the options, worst first (bonds, then angles).
+// One pass over the bond and angle terms: linear in the atoms.
+std::vector<GeometryOutlier> find_outliers(const refine::EnergyTerms& terms, const std::vector<Eigen::Vector3d>& x,
+                                           const RefineOptions& options) {
+    std::vector<GeometryOutlier> bonds, angles;
+    if (options.bond_outlier > 0)
+        for (const refine::DistanceTerm& t : terms.bonds) {
+            const double d = (x[static_cast<size_t>(t.i)] - x[static_cast<size_t>(t.j)]).norm();
+            if (std::abs(d - t.target) > options.bond_outlier) bonds.push_back({t.i, t.j, -1, d, t.target});
+        }
+    if (options.angle_outlier > 0) {
+        const double limit = std::cos(options.angle_outlier * std::numbers::pi / 180);
+        for (const refine::AngleTerm& t : terms.angles) {
+            const Eigen::Vector3d u = x[static_cast<size_t>(t.i)] - x[static_cast<size_t>(t.centre)];
+            const Eigen::Vector3d v = x[static_cast<size_t>(t.j)] - x[static_cast<size_t>(t.centre)];
+            const double norms = u.norm() * v.norm();
+            if (!(norms > 0)) continue;
+            const double c = std::clamp(u.dot(v) / norms, -1.0, 1.0);
+            // cos(theta - theta0) = cos theta cos theta0 + sin theta sin theta0, sin theta >= 0: no acos unless out.
+            const double s = std::sqrt(std::max(0.0, 1 - c * c));
+            if (c * t.cos0 + s * t.sin0 >= limit) continue;
+            constexpr double kDegree = 180 / std::numbers::pi;
+            angles.push_back({t.i, t.centre, t.j, std::acos(c) * kDegree, std::atan2(t.sin0, t.cos0) * kDegree});
+        }
+    }
+    auto worse = [](const GeometryOutlier& p, const GeometryOutlier& q) {
+        return std::abs(p.value - p.target) > std::abs(q.value - q.target);
+    };
+    std::stable_sort(bonds.begin(), bonds.end(), worse);
+    std::stable_sort(angles.begin(), angles.end(), worse);
+    bonds.insert(bonds.end(), angles.begin(), angles.end());
+    return bonds;
+}
+
 }  // namespace
 
 RefineResult refine_structure(const Molecule& molecule, const MoleculeDomains& domains,
@@ -105,6 +140,7 @@ RefineResult refine_structure(const Molecule& molecule, const MoleculeDomains& d
         result.energy_after = result.energy_before;
         result.message = "already converged: RMS gradient " + format_double(r);
         report_stereo(chiral, double_bonds, positions, result);
+        result.outliers = find_outliers(terms, positions, options);
         return result;
     }
 
@@ -146,6 +182,7 @@ RefineResult refine_structure(const Molecule& molecule, const MoleculeDomains& d
             break;
     }
     report_stereo(chiral, double_bonds, positions, result);
+    result.outliers = find_outliers(terms, positions, options);
     return result;
 }
 

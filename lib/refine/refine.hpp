@@ -31,6 +31,17 @@ struct RefineOptions {
     // 5e-4 A, angles within 0.1 degree and torsions within 1.5 degrees of their targets (measured on the drug set):
     // plenty for a starting structure, and a third of the evaluations that 1e-4 needs.
     double gradient_tolerance = 1e-3;
+    // The final self-check: bonds further than this from their target length (Angstrom) and angles further than
+    // `angle_outlier` (degrees) from their target are listed in RefineResult::outliers (0: no check). Targets are
+    // the refinement's own: the domain analysis' lengths and angles, the angles fitted to small and flat rings.
+    double bond_outlier = 0;
+    double angle_outlier = 0;
+};
+
+// A bond a-b (c = -1) or an angle a-b-c (centre b) of the refined structure far from its target.
+struct GeometryOutlier {
+    int a = -1, b = -1, c = -1;
+    double value = 0, target = 0;  // Angstrom for a bond, degrees for an angle
 };
 
 struct RefineResult {
@@ -39,6 +50,7 @@ struct RefineResult {
     double energy_before = 0;
     double energy_after = 0;
     std::string message;  // why it stopped, for warnings
+    std::vector<GeometryOutlier> outliers;  // see RefineOptions::bond_outlier, worst first within bonds and angles
 };
 
 // Refines positions in place. `domains` is the analysis of the same molecule (with solved directions), which gives
