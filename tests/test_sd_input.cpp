@@ -123,3 +123,36 @@ TEST(SdInput, WedgesOfAFlatDrawingGiveTheHandedness) {
     EXPECT_EQ(hash.atoms[0].chiral_index, down.atoms[0].chiral_index);
     EXPECT_EQ(plain.atoms[0].chiral_class, ChiralClass::none);
 }
+
+// The same drawing as a V3000 record: the CFG= keyword of a bond line carries the wedge (1) and the hash (3) (CTfile
+// formats specification), and gives the handedness the V2000 wedge and hash give; a bond line continued over two
+// lines ("-" at the end) is read whole.
+TEST(SdInput, V3000ConfigurationKeywordsGiveTheHandedness) {
+    auto v3000 = [](int cfg) {
+        const std::string keyword = cfg ? fmt::format(" CFG={}", cfg) : "";
+        return "drawn\n  lab\n\n  0  0  0     0  0            999 V3000\n"
+               "M  V30 BEGIN CTAB\nM  V30 COUNTS 5 4 0 0 0\nM  V30 BEGIN ATOM\n"
+               "M  V30 1 C 0 0 0 0\nM  V30 2 F -1.3 0.75 0 0\nM  V30 3 Cl 1.3 0.75 0 0\n"
+               "M  V30 4 C 0 -1.5 0 0\nM  V30 5 Br 0 1.5 0 0\nM  V30 END ATOM\nM  V30 BEGIN BOND\n"
+               "M  V30 1 1 1 2\nM  V30 2 1 1 3\nM  V30 3 1 -\nM  V30 1 4" + keyword + "\nM  V30 4 1 1 5\n"
+               "M  V30 END BOND\nM  V30 END CTAB\nM  END\n$$$$\n";
+    };
+    auto v2000 = [](int stereo) {
+        return fmt::format(
+            "drawn\n  lab\n\n  5  4  0  0  0  0  0  0  0  0999 V2000\n"
+            "    0.0000    0.0000    0.0000 C   0  0  0  0  0  0  0  0  0  0  0  0\n"
+            "   -1.3000    0.7500    0.0000 F   0  0  0  0  0  0  0  0  0  0  0  0\n"
+            "    1.3000    0.7500    0.0000 Cl  0  0  0  0  0  0  0  0  0  0  0  0\n"
+            "    0.0000   -1.5000    0.0000 C   0  0  0  0  0  0  0  0  0  0  0  0\n"
+            "    0.0000    1.5000    0.0000 Br  0  0  0  0  0  0  0  0  0  0  0  0\n"
+            "  1  2  1  0\n  1  3  1  0\n  1  4  1{:3d}\n  1  5  1  0\nM  END\n$$$$\n",
+            stereo);
+    };
+    const Molecule wedge = molecule_from_sd_record(v3000(1), 1), hash = molecule_from_sd_record(v3000(3), 1),
+                   plain = molecule_from_sd_record(v3000(0), 1);
+    ASSERT_EQ(wedge.atoms[0].chiral_class, ChiralClass::TH);
+    EXPECT_EQ(wedge.atoms[0].chiral_index, molecule_from_sd_record(v2000(1), 1).atoms[0].chiral_index);
+    EXPECT_EQ(hash.atoms[0].chiral_index, molecule_from_sd_record(v2000(6), 1).atoms[0].chiral_index);
+    EXPECT_NE(wedge.atoms[0].chiral_index, hash.atoms[0].chiral_index);
+    EXPECT_EQ(plain.atoms[0].chiral_class, ChiralClass::none);
+}
