@@ -130,6 +130,10 @@ constexpr double kCarbonHydrogenSp2 = 0.016;
 // -0.013 A, sp3-sp2 -0.002 A, sp3-sp +0.035, sp2-sp +0.068, sp-sp +0.119 in NCCN), so only Cordero's sp2-to-sp step
 // is taken: 0.04 A less per sp carbon.
 constexpr double kSpCarbonSingle = 0.04;
+// And Cordero's sp3 radius (0.76) over Pyykko's 0.75 for single bonds from an sp3 carbon to a heavy atom: alkane C-C
+// 1.52 A where Pyykko's radii give 1.50 (G2 MP2(full)/6-31G(d): ethane and propane 1.524, isobutane 1.526; measured
+// 1.53-1.54 in alkanes, from memory); a 0.025 A shortfall over every saturated C-C bond of an organic molecule.
+constexpr double kSp3CarbonSingle = 0.01;
 
 // The polar correction measures the ionic character A+ B-. Formal charges written the other way round (the
 // electropositive atom negative, the other positive: [Si-]#[O+]) mark a bond whose Lewis structure already moved
@@ -161,6 +165,8 @@ double integer_order_length(const ElementData& a, const ElementData& b, int orde
         } else {
             if (a.number == 6 && ends->steric_a == 2 && b.number != 1) length -= kSpCarbonSingle;
             if (b.number == 6 && ends->steric_b == 2 && a.number != 1) length -= kSpCarbonSingle;
+            if (a.number == 6 && ends->steric_a == 4) length += kSp3CarbonSingle;
+            if (b.number == 6 && ends->steric_b == 4) length += kSp3CarbonSingle;
         }
     }
     return length;
