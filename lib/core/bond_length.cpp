@@ -124,16 +124,16 @@ double lone_pair_radius(const ElementData& e) {
 constexpr double kCarbonHydrogenSp3 = 0.022;
 constexpr double kCarbonHydrogenSp2 = 0.016;
 
-// Single bonds from an sp carbon (steric number 2) to another heavy atom are shorter than from sp2 or sp3 carbons
-// (hybridisation: more s character). Cordero et al., Dalton Trans. (2008) 2832, give carbon 0.76 (sp3), 0.73 (sp2),
-// 0.69 A (sp) (from memory); Pyykko's 0.75 sits between their sp3 and sp2 values (G2 C-C single bonds: sp3-sp3
-// -0.013 A, sp3-sp2 -0.002 A, sp3-sp +0.035, sp2-sp +0.068, sp-sp +0.119 in NCCN), so only Cordero's sp2-to-sp step
-// is taken: 0.04 A less per sp carbon.
+// Single bonds from carbon to another heavy atom depend on the carbon's hybridisation (more s character, shorter
+// bond). Cordero et al., Dalton Trans. (2008) 2832, give carbon 0.76 (sp3), 0.73 (sp2), 0.69 A (sp) (from memory);
+// Pyykko's 0.75 sits between their sp3 and sp2 values. Taken as steps from Pyykko's radius: +0.01 A for an sp3
+// carbon, -0.02 for an sp2 carbon (aromatic ones too: the order-1 length is also the lower end of the aromatic
+// interpolation), -0.04 for an sp carbon (Cordero's sp2-to-sp step; the full step to 0.69 overshoots G2's NCCN).
+// Before, with Pyykko's 0.75 for all: G2 (MP2(full)/6-31G(d)) ethane 1.524 and butadiene's central 1.456 A against
+// 1.50 for both, benzene 1.395 against 1.406; after: 1.52, 1.46, 1.39, and the G2 bond MAE 0.0128 -> 0.0120 A.
 constexpr double kSpCarbonSingle = 0.04;
-// And Cordero's sp3 radius (0.76) over Pyykko's 0.75 for single bonds from an sp3 carbon to a heavy atom: alkane C-C
-// 1.52 A where Pyykko's radii give 1.50 (G2 MP2(full)/6-31G(d): ethane and propane 1.524, isobutane 1.526; measured
-// 1.53-1.54 in alkanes, from memory); a 0.025 A shortfall over every saturated C-C bond of an organic molecule.
 constexpr double kSp3CarbonSingle = 0.01;
+constexpr double kSp2CarbonSingle = 0.02;
 
 // The polar correction measures the ionic character A+ B-. Formal charges written the other way round (the
 // electropositive atom negative, the other positive: [Si-]#[O+]) mark a bond whose Lewis structure already moved
@@ -167,6 +167,8 @@ double integer_order_length(const ElementData& a, const ElementData& b, int orde
             if (b.number == 6 && ends->steric_b == 2 && a.number != 1) length -= kSpCarbonSingle;
             if (a.number == 6 && ends->steric_a == 4) length += kSp3CarbonSingle;
             if (b.number == 6 && ends->steric_b == 4) length += kSp3CarbonSingle;
+            if (a.number == 6 && ends->steric_a == 3 && b.number != 1) length -= kSp2CarbonSingle;
+            if (b.number == 6 && ends->steric_b == 3 && a.number != 1) length -= kSp2CarbonSingle;
         }
     }
     return length;
