@@ -286,6 +286,19 @@ private:
         return 0;
     }
 
+    // True when centre j lies in a flat ring larger than kLargestPolygonRing (a porphyrinoid's inner ring).
+    bool in_large_flat_ring(int j) const {
+        for (const auto& ring : rings_local_) {
+            if (ring.size() <= static_cast<size_t>(kLargestPolygonRing) ||
+                std::find(ring.begin(), ring.end(), j) == ring.end())
+                continue;
+            bool flat = true;
+            for (int a : ring) flat = flat && planar_[at(a)];
+            if (flat) return true;
+        }
+        return false;
+    }
+
     // The ring angle i-j-k the embedding aims at, with its tolerance (radians).
     std::pair<double, double> target_angle(int i, int j, int k) const {
         const RingNote r = lookup3(i, j, k);
@@ -301,7 +314,7 @@ private:
                 const RingNote q = lookup3(a, j, c);
                 const double p = polygon_angle(q);
                 if (p > 0) return p;
-                if (q.size == 5) {
+                if (q.size == 5 && !in_large_flat_ring(j)) {  // a chlorin's reduced ring keeps the frame's angles
                     *estimated = true;
                     return kPuckeredFiveAngle;
                 }
