@@ -33,6 +33,9 @@ constexpr double kOtherSixTorsionMax = 65;
 constexpr double kFiveTorsionMax = 45;
 constexpr double kSevenTorsionMax = 100;
 constexpr double kEnvelopeFlap = 35;
+// The ring angle at a planar centre of a puckered five-membered ring: the regular pentagon's (an envelope's flap
+// takes the puckering; indoline's fusion atoms and a cyclopentanone's carbonyl carbon come near it, from memory).
+constexpr double kPuckeredFiveAngle = 108;
 // Tolerances of the bounds: bond lengths, angles forced by a small or planar ring, other angles, planar torsions.
 constexpr double kBondTolerance = 0.01;        // Angstrom
 constexpr double kRingAngleTolerance = 3;      // degrees
@@ -60,6 +63,7 @@ constexpr double kCurvedAngleSum = 355;
 // Embedding attempts and the accepted bound violation.
 constexpr int kAttempts = 6;
 constexpr double kAcceptedViolation = 0.1;
+constexpr double kAcceptedTorsion = 5;  // degrees, as in embed_points
 // Angstrom: how far the planar layout's atoms are lifted off the plane when it starts a system that is not flat.
 constexpr double kLift = 0.1;
 
@@ -217,6 +221,8 @@ private:
     std::vector<char> planar_;
     std::vector<char> curved_;  // planar centres that three small rings bend out of plane
     std::vector<std::vector<Vector3d>> dirs_;
+    // Whether the six-membered rings' sp3-sp3 bonds are held at chair torsions (cleared for a second try).
+    bool chairs_ = true;
     // Smallest ring size holding a consecutive triple / quadruple of atoms, and whether that ring is planar.
     struct RingNote {
         int size = 0;
@@ -280,6 +286,19 @@ private:
         return 0;
     }
 
+    // True when centre j lies in a flat ring larger than kLargestPolygonRing (a porphyrinoid's inner ring).
+    bool in_large_flat_ring(int j) const {
+        for (const auto& ring : rings_local_) {
+            if (ring.size() <= static_cast<size_t>(kLargestPolygonRing) ||
+                std::find(ring.begin(), ring.end(), j) == ring.end())
+                continue;
+            bool flat = true;
+            for (int a : ring) flat = flat && planar_[at(a)];
+            if (flat) return true;
+        }
+        return false;
+    }
+
     // The ring angle i-j-k the embedding aims at, with its tolerance (radians).
     std::pair<double, double> target_angle(int i, int j, int k) const {
         const RingNote r = lookup3(i, j, k);
@@ -287,20 +306,37 @@ private:
         if (r.size == 4) return {90 * kDeg, kRingAngleTolerance * kDeg};
         if (r.size > 0 && r.flat && r.size <= kLargestPolygonRing) return {M_PI * (r.size - 2) / r.size, kRingAngleTolerance * kDeg};
         if (planar_[at(j)] && !curved_[at(j)] && nbrs_[at(j)].size() == 3) {
-            // A planar centre with three ring neighbours: the angles its small rings do not fix share what those
-            // leave of 360 degrees (indole's fusion atom: 360-108-120; a porphyrin's alpha carbon: (360-108)/2).
+            // A planar centre with three ring neighbours: the angles its small rings fix, or nearly fix, and the
+            // others share what those leave of 360 degrees (indole's fusion atom: 360-108-120; a porphyrin's alpha
+            // carbon: (360-108)/2; indoline's, whose five-membered ring is puckered: 360-108-120 too, where the
+            // frame's 120 in the five-membered ring would squeeze its other angles).
+            auto fixed = [&](int a, int c, bool* estimated) {
+                const RingNote q = lookup3(a, j, c);
+                const double p = polygon_angle(q);
+                if (p > 0) return p;
+                if (q.size == 5 && !in_large_flat_ring(j)) {  // a chlorin's reduced ring keeps the frame's angles
+                    *estimated = true;
+                    return kPuckeredFiveAngle;
+                }
+                return 0.0;
+            };
             double sum = 0;
             int known = 0;
+            bool estimated = false;
             const auto& nb = nbrs_[at(j)];
             for (size_t x = 0; x < 3; ++x)
                 for (size_t y = x + 1; y < 3; ++y) {
-                    const double a = polygon_angle(lookup3(nb[x], j, nb[y]));
+                    const double a = fixed(nb[x], nb[y], &estimated);
                     if (a > 0) {
                         sum += a;
                         ++known;
                     }
                 }
-            if (known > 0) return {std::clamp((360 - sum) / (3 - known), 90.0, 160.0) * kDeg, kRingAngleTolerance * kDeg};
+            const double tol = (estimated ? kFrameAngleTolerance : kRingAngleTolerance) * kDeg;
+            bool own_estimated = false;
+            const double own = fixed(i, k, &own_estimated);
+            if (own > 0) return {own * kDeg, tol};
+            if (known > 0) return {std::clamp((360 - sum) / (3 - known), 90.0, 160.0) * kDeg, tol};
         }
         double theta = frame_angle(i, j, k);
         if (r.size == 5) theta = std::min(theta, 106 * kDeg);  // five-membered rings close their sp3 angles a little
@@ -330,7 +366,7 @@ private:
         switch (r.size) {
             case 5: return {0, kFiveTorsionMax * kDeg};
             case 6:
-                if (sp3j && sp3k) return {kChairTorsionMin * kDeg, kChairTorsionMax * kDeg};
+                if (sp3j && sp3k) return {(chairs_ ? kChairTorsionMin : 0.0) * kDeg, kChairTorsionMax * kDeg};
                 return {0, kOtherSixTorsionMax * kDeg};
             case 7: return {0, kSevenTorsionMax * kDeg};
             default: return {0, M_PI};
@@ -565,7 +601,24 @@ private:
         return x;
     }
 
+    // A first try holds every six-membered ring of sp3 atoms in a chair; where that cannot be met (bridged and caged
+    // systems whose rings must be boats or twists: bicyclo[2.2.2]octane, twistane, strychnine's cyclohexane ring) a
+    // second try lets those torsions go down to zero and keeps whichever meets its conditions.
     RingSystemEmbedding distance_geometry() {
+        bool six_sp3 = false;
+        for (const auto& ring : rings_local_)
+            if (ring.size() == 6)
+                for (int a : ring) six_sp3 = six_sp3 || (!planar_[at(a)] && d_.atoms[at(atom(a))].steric_number == 4);
+        RingSystemEmbedding first = distance_geometry_try();
+        if (first.met || !six_sp3) return first;
+        chairs_ = false;
+        RingSystemEmbedding second = distance_geometry_try();
+        chairs_ = true;
+        if (second.met || (second.satisfied && !first.satisfied) || second.error < first.error) return second;
+        return first;
+    }
+
+    RingSystemEmbedding distance_geometry_try() {
         const int n = static_cast<int>(atoms_.size());
         // The embedding keeps n x n bounds and smooths them in n^3 steps: past this size a hostile input (one ring
         // of 100,000 atoms) would take hours and gigabytes. Refused plainly instead.
@@ -658,6 +711,8 @@ private:
         RingSystemEmbedding out;
         out.coordinates = e.coordinates;
         out.satisfied = e.volumes_met && e.worst_violation < 0.3 && e.worst_torsion < 20 * kDeg;
+        out.met = e.volumes_met && e.worst_violation <= kAcceptedViolation && e.worst_torsion <= kAcceptedTorsion * kDeg;
+        out.error = e.error;
         out.method = "distance geometry";
         out.worst_angle_strain = bridged() ? angle_strain(out.coordinates) : 0.0;
         return out;

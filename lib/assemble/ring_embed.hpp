@@ -18,6 +18,8 @@ struct RingSystemEmbedding {
     std::vector<Eigen::Vector3d> coordinates;  // one per atom of the system, in RingInfo::systems order
     double worst_angle_strain = 0;  // largest deviation (degrees) of a ring angle from its centre's domain angle
     bool satisfied = true;          // the stereo and distance constraints were met
+    bool met = true;                // ... within the embedding's acceptance (distance geometry only)
+    double error = 0;               // the embedding's final error function (distance geometry only)
     std::string method;             // "polygon", "chair", "envelope", "distance geometry"
 };
 
