@@ -140,19 +140,23 @@ def prepare(exe, tmp, number, smiles, name):
             'sdf_coords': s_coords, 'graph': {frozenset((i, j)) for i, j, _ in s_bonds}}
 
 
-def main():
+def begin_check(script, prefix):
+    """The command line of an xtb check (PATH/TO/repel [--jobs N]), its tally (failing at once without xtb), the start
+    time and a scratch folder: shared by check_xtb_client.py and check_xtb_macrocycles.py."""
     args = sys.argv[1:]
     if not args:
-        print('usage: check_xtb_client.py PATH/TO/repel [--jobs N]')
+        print(f'usage: {script} PATH/TO/repel [--jobs N]')
         sys.exit(2)
-    exe = args[0]
     jobs = int(args[args.index('--jobs') + 1]) if '--jobs' in args else 2
     t = Tally()
     if not os.path.exists(XTB):
         t.check(False, f'{XTB} exists (Debian package xtb)')
         t.finish()
-    clock = time.time()
-    tmp = tempfile.mkdtemp(prefix='repel_xtb_')
+    return args[0], jobs, t, time.time(), tempfile.mkdtemp(prefix=prefix)
+
+
+def main():
+    exe, jobs, t, clock, tmp = begin_check('check_xtb_client.py', 'repel_xtb_')
     molecules = read_smi(MOLECULES)
     t.check(len(molecules) >= 40, f'at least 40 molecules in {os.path.basename(MOLECULES)} (issue 3), '
                                   f'found {len(molecules)}')

@@ -22,15 +22,15 @@ Prints heavy-atom RMSD and cycles per molecule. Closes with `N passed, M failed`
 import concurrent.futures
 import os
 import sys
-import tempfile
 import time
 
 import numpy as np
 
 sys.dont_write_bytecode = True  # no __pycache__ in the source tree
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-from check_xtb_client import XTB, components, connectivity_problems, prepare, read_smi, run_xtb  # noqa: E402
-from common import (SmilesStereo, Tally, angle_deg, kabsch_rmsd, neighbours, parse_xyz,  # noqa: E402
+from check_xtb_client import (components, connectivity_problems, prepare, read_smi, run_xtb,  # noqa: E402
+                              begin_check)
+from common import (SmilesStereo, angle_deg, kabsch_rmsd, neighbours, parse_xyz,  # noqa: E402
                     resolve_neighbour_order, signed_volume)
 
 HERE = os.path.dirname(os.path.abspath(__file__))
@@ -91,18 +91,7 @@ def worst_changes(symbols, start, opt, graph):
 
 
 def main():
-    args = sys.argv[1:]
-    if not args:
-        print('usage: check_xtb_macrocycles.py PATH/TO/repel [--jobs N]')
-        sys.exit(2)
-    exe = args[0]
-    jobs = int(args[args.index('--jobs') + 1]) if '--jobs' in args else 2
-    t = Tally()
-    if not os.path.exists(XTB):
-        t.check(False, f'{XTB} exists (Debian package xtb)')
-        t.finish()
-    clock = time.time()
-    tmp = tempfile.mkdtemp(prefix='repel_xtb_macro_')
+    exe, jobs, t, clock, tmp = begin_check('check_xtb_macrocycles.py', 'repel_xtb_macro_')
     kinds = read_kinds(MOLECULES)
     prepared = []
     for number, smiles, name in read_smi(MOLECULES):
