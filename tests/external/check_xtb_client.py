@@ -140,6 +140,28 @@ def prepare(exe, tmp, number, smiles, name):
             'sdf_coords': s_coords, 'graph': {frozenset((i, j)) for i, j, _ in s_bonds}}
 
 
+def read_optimum(t, name, job, symbols, graph, comp):
+    """xtb's optimised coordinates of a job, checked for the same atoms in the same order and for the connectivity
+    repel wrote (None when the atoms differ); shared by check_xtb_client.py and check_xtb_macrocycles.py."""
+    with open(os.path.join(job['work'], 'xtbopt.xyz')) as f:
+        o_sym, opt, _, _ = parse_xyz(f.read())
+    if not t.check(o_sym == symbols, f'{name}: xtbopt.xyz has the same atoms in the same order'):
+        return None
+    missing, extra = connectivity_problems(symbols, opt, graph, comp)
+    t.check(not missing and not extra, f'{name}: connectivity kept by xtb; missing {missing}, extra {extra}')
+    return opt
+
+
+def stereo_of(smiles, n, graph, symbols):
+    """The stereo marks of a SMILES, the built graph's neighbour lists, and for each written heavy atom the hydrogens
+    repel added to it (the contract's atom order), which resolve the marks' neighbour order."""
+    stereo = SmilesStereo(smiles)
+    adj = neighbours(n, graph)
+    hydrogens_of = {a: sorted(j for j in adj[a] if symbols[j] == 'H' and j >= stereo.n_heavy_written)
+                    for a in range(stereo.n_heavy_written)}
+    return stereo, adj, hydrogens_of
+
+
 def begin_check(script, prefix):
     """The command line of an xtb check (PATH/TO/repel [--jobs N]), its tally (failing at once without xtb), the start
     time and a scratch folder: shared by check_xtb_client.py and check_xtb_macrocycles.py."""
@@ -211,18 +233,11 @@ def main():
             continue
         if not t.check(res['cycles'] is not None, f'{name}: xtb optimisation converged'):
             continue
-        opt_path = os.path.join(job['work'], 'xtbopt.xyz')
-        with open(opt_path) as f:
-            o_sym, opt, _, _ = parse_xyz(f.read())
-        if not t.check(o_sym == symbols, f'{name}: xtbopt.xyz has the same atoms in the same order'):
+        opt = read_optimum(t, name, job, symbols, graph, comp)
+        if opt is None:
             continue
-        missing, extra = connectivity_problems(symbols, opt, graph, comp)
-        t.check(not missing and not extra, f'{name}: connectivity kept by xtb; missing {missing}, extra {extra}')
 
-        stereo = SmilesStereo(smiles)
-        adj = neighbours(n, graph)
-        hydrogens_of = {a: sorted(j for j in adj[a] if symbols[j] == 'H' and j >= stereo.n_heavy_written)
-                        for a in range(stereo.n_heavy_written)}
+        stereo, adj, hydrogens_of = stereo_of(smiles, n, graph, symbols)
         for atom, (mark, order) in stereo.chiral.items():
             nb = resolve_neighbour_order(order, atom, hydrogens_of)
             if nb is None or len(nb) < 3 or any(j not in adj[atom] for j in nb):

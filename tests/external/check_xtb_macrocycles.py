@@ -28,10 +28,9 @@ import numpy as np
 
 sys.dont_write_bytecode = True  # no __pycache__ in the source tree
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-from check_xtb_client import (components, connectivity_problems, prepare, read_smi, run_xtb,  # noqa: E402
-                              begin_check)
-from common import (SmilesStereo, angle_deg, kabsch_rmsd, neighbours, parse_xyz,  # noqa: E402
-                    resolve_neighbour_order, signed_volume)
+from check_xtb_client import (begin_check, components, connectivity_problems, prepare, read_optimum,  # noqa: E402
+                              read_smi, run_xtb, stereo_of)
+from common import angle_deg, kabsch_rmsd, neighbours, resolve_neighbour_order, signed_volume  # noqa: E402
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 MOLECULES = os.path.join(HERE, '..', 'data', 'xtb_macrocycles.smi')
@@ -123,16 +122,10 @@ def main():
         if not t.check('error' not in res and res.get('returncode') == 0 and res['cycles'] is not None,
                        f'{name}: xtb ran and converged ({res.get("error") or (res.get("stderr") or "")[-300:]})'):
             continue
-        with open(os.path.join(job['work'], 'xtbopt.xyz')) as f:
-            o_sym, opt, _, _ = parse_xyz(f.read())
-        if not t.check(o_sym == symbols, f'{name}: xtbopt.xyz has the same atoms in the same order'):
+        opt = read_optimum(t, name, job, symbols, graph, comp)
+        if opt is None:
             continue
-        missing, extra = connectivity_problems(symbols, opt, graph, comp)
-        t.check(not missing and not extra, f'{name}: connectivity kept by xtb; missing {missing}, extra {extra}')
-        stereo = SmilesStereo(smiles)
-        adj = neighbours(n, graph)
-        hydrogens_of = {a: sorted(j for j in adj[a] if symbols[j] == 'H' and j >= stereo.n_heavy_written)
-                        for a in range(stereo.n_heavy_written)}
+        stereo, adj, hydrogens_of = stereo_of(smiles, n, graph, symbols)
         for atom, (_, order) in stereo.chiral.items():
             nb = resolve_neighbour_order(order, atom, hydrogens_of)
             if not t.check(nb is not None and len(nb) >= 3, f'{name}: neighbours of stereocentre {atom + 1}'):
