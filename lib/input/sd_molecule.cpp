@@ -155,63 +155,6 @@ void perceive_aromatic_rings(Molecule& m) {
     }
 }
 
-// Bond stereo codes of a record, one per bond in file order, in V2000's numbers (1 wedge, 6 hash, 4 either, 0 none):
-// V2000 bond line columns 10-12; V3000 bond lines' CFG= keyword (1 wedge, 3 hash, 2 either; CTfile formats
-// specification). Empty when the bond block cannot be read back (the reader has already refused a broken one).
-std::vector<int> wedge_codes(const std::string& text, int bonds) {
-    std::vector<std::string> lines;
-    std::istringstream in(text);
-    for (std::string line; std::getline(in, line);) {
-        if (!line.empty() && line.back() == '\r') line.pop_back();
-        lines.push_back(line);
-    }
-    if (lines.size() < 4) return {};
-    if (lines[3].find("V3000") != std::string::npos) {
-        // Logical V3000 lines: "M  V30 " and a trailing "-" continue on the next line.
-        std::vector<std::string> logical;
-        bool continued = false;
-        for (size_t k = 4; k < lines.size(); ++k) {
-            if (lines[k].rfind("M  V30 ", 0) != 0) {
-                continued = false;
-                continue;
-            }
-            std::string body = lines[k].substr(7);
-            const bool more = !body.empty() && body.back() == '-';
-            if (more) body.pop_back();
-            if (continued && !logical.empty()) logical.back() += body;
-            else logical.push_back(body);
-            continued = more;
-        }
-        std::vector<int> codes(static_cast<size_t>(bonds), 0);
-        bool in_bonds = false;
-        int index = 0;
-        for (const std::string& l : logical) {
-            if (l.rfind("BEGIN BOND", 0) == 0) in_bonds = true;
-            else if (l.rfind("END BOND", 0) == 0) in_bonds = false;
-            else if (in_bonds) {
-                if (index >= bonds) return {};
-                const size_t at = l.find(" CFG=");
-                if (at != std::string::npos) {
-                    const long cfg = std::strtol(l.c_str() + at + 5, nullptr, 10);
-                    codes[static_cast<size_t>(index)] = cfg == 1 ? 1 : cfg == 3 ? 6 : cfg == 2 ? 4 : 0;
-                }
-                ++index;
-            }
-        }
-        return index == bonds ? codes : std::vector<int>();
-    }
-    if (lines[3].find("V2000") == std::string::npos) return {};
-    const long atoms = std::strtol(lines[3].substr(0, 3).c_str(), nullptr, 10);
-    std::vector<int> codes;
-    for (int i = 0; i < bonds; ++i) {
-        const size_t at = static_cast<size_t>(4 + atoms + i);
-        if (at >= lines.size()) return {};
-        const std::string& l = lines[at];
-        codes.push_back(l.size() >= 12 ? static_cast<int>(std::strtol(l.substr(9, 3).c_str(), nullptr, 10)) : 0);
-    }
-    return codes;
-}
-
 }  // namespace
 
 Molecule molecule_from_sd_record(const std::string& text, long first_line) {
@@ -277,7 +220,8 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
         if (std::abs(p.z()) > 1e-4) three_d = true;
     // A flat drawing shows a centre's handedness by wedge (toward the viewer) and hash (away) bonds starting at it:
     // the wedged neighbour is lifted out of the plane (by 0.8 of the bond length) for the volume below.
-    const std::vector<int> wedges = three_d ? std::vector<int>() : wedge_codes(text, m.bond_count());
+    const std::vector<int> wedges =
+        three_d || rec.bond_stereo.size() != m.bonds.size() ? std::vector<int>() : rec.bond_stereo;
     for (int a = 0; a < n; ++a) {
         Atom& atom = m.atoms[static_cast<size_t>(a)];
         const int degree = m.degree(a);

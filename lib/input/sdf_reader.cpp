@@ -107,6 +107,9 @@ void read_v2000(input::LineReader& r, ReadStructure& rec, long natoms, long nbon
                                           i + 1, nbonds),
                     line, !a ? 1 : !b ? 4 : 7);
         add_checked_bond(rec, *a, *b, *t, r.line(), line, 1);
+        // Columns 10-12: the bond's stereo (CTfile formats specification); anything else there is read as none.
+        const auto stereo = line.size() >= 12 ? input::parse_integer(columns(line, 10, 12)) : std::nullopt;
+        rec.bond_stereo.push_back(stereo ? static_cast<int>(*stereo) : 0);
     }
     bool charges_reset = false;
     while (true) {
@@ -226,6 +229,14 @@ void read_v3000(input::LineReader& r, ReadStructure& rec) {
             auto b = input::parse_integer(f[3]);
             if (!t || !a || !b) fail_at(at, "a bond needs an index, a type and two atom numbers", line, 8);
             add_checked_bond(rec, *a, *b, *t, at, line, 8);
+            // CFG=1 wedge, 3 hash, 2 either (CTfile formats specification), as V2000's 1, 6, 4.
+            int stereo = 0;
+            for (size_t k = 4; k < f.size(); ++k)
+                if (f[k].rfind("CFG=", 0) == 0) {
+                    const auto cfg = input::parse_integer(f[k].substr(4));
+                    stereo = !cfg ? 0 : *cfg == 1 ? 1 : *cfg == 3 ? 6 : *cfg == 2 ? 4 : 0;
+                }
+            rec.bond_stereo.push_back(stereo);
         }
     }
     if (natoms < 0) fail_at(r.line(), "a V3000 record without 'M  V30 COUNTS'", "");

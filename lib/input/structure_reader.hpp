@@ -26,6 +26,9 @@ struct ReadStructure {
     bool has_charge = false;    // the total charge was stated (XYZ charge=, SDF or PDB formal charges)
     bool has_multiplicity = false;  // XYZ multiplicity=
     std::vector<int> needs_orders;  // bonds stated aromatic (SDF type 4) whose orders are still to be assigned
+    // SDF: each bond's drawn stereo, in V2000's numbers (1 wedge, 6 hash, 4 either, 0 none; V3000's CFG=1, 3, 2 are
+    // given as 1, 6, 4), one per bond; the first atom of a bond is its narrow end. Empty for other formats.
+    std::vector<int> bond_stereo;
 };
 
 // The readers. Each reads every record of the stream and throws InputError for malformed input: the message names
