@@ -6,6 +6,7 @@
 
 #include "assemble/assemble.hpp"
 #include "assemble/components.hpp"
+#include "assemble/hapto.hpp"
 #include "core/neighbor_grid.hpp"
 #include "assemble/ring_embed.hpp"
 #include "assemble/rings.hpp"
@@ -106,6 +107,29 @@ void self_check(const RingInfo& rings, const std::vector<char>& warned_system,
                                    count, options.bond_outlier, options.angle_outlier, list, count > named.size() ? ", ..." : ""));
 }
 
+// The analysis of the skeleton with a target length for every bond of the whole molecule (the skeleton's bonds are the
+// molecule's without those of hapto ligands, in the same order).
+MoleculeDomains with_bond_lengths_of(const Molecule& molecule, const MoleculeDomains& skeleton_domains) {
+    MoleculeDomains d = skeleton_domains;
+    d.bond_lengths.clear();
+    d.bond_lengths.reserve(molecule.bonds.size());
+    size_t k = 0;
+    const MetalAnalysis& ma = skeleton_domains.metals;
+    for (const Bond& b : molecule.bonds) {
+        double hapto_length = 0;
+        for (int side = 0; side < 2 && hapto_length == 0; ++side) {
+            const int metal = side == 0 ? b.a : b.b, other = side == 0 ? b.b : b.a;
+            const int c = ma.centre_of_atom[static_cast<size_t>(metal)];
+            if (c < 0 || !ma.hapto_atom[static_cast<size_t>(other)]) continue;
+            for (const LigandDomain& l : ma.centres[static_cast<size_t>(c)].ligands)
+                if (l.hapto() && std::find(l.atoms.begin(), l.atoms.end(), other) != l.atoms.end()) hapto_length = l.length;
+        }
+        if (hapto_length > 0) d.bond_lengths.push_back(hapto_length);
+        else d.bond_lengths.push_back(skeleton_domains.bond_lengths[k++]);
+    }
+    return d;
+}
+
 }  // namespace
 
 Structure build_structure(const Molecule& molecule, const BuildOptions& options) {
@@ -118,10 +142,29 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options)
         if (a.hydrogens > 0)
             throw std::logic_error("build_structure needs explicit hydrogens (Molecule::make_hydrogens_explicit)");
 
-    const MoleculeDomains domains = analyse_domains(molecule);
+    // Metal centres are analysed on the whole molecule; the walk, the rings and the ring embedding see it without
+    // the bonds of hapto ligands (each such ligand is one domain of its metal and is placed whole afterwards).
+    MetalAnalysis metals;
+    for (const Atom& a : molecule.atoms)
+        if (is_transition_metal(a.z)) {
+            metals = analyse_metals(molecule, true, options.metals);
+            break;
+        }
+    const bool hapto = !metals.hapto_bonds.empty();
+    const Molecule skeleton_storage = hapto ? without_hapto_bonds(molecule, metals) : Molecule();
+    const Molecule& skeleton = hapto ? skeleton_storage : molecule;
+    const MoleculeDomains domains = analyse_domains(skeleton, true, metals.empty() ? nullptr : &metals);
     check_deadline("analysing the electron domains");
+    if (options.multiplicity > 0) {
+        if ((options.multiplicity - 1) % 2 != domains.unpaired_electrons % 2)
+            throw InputError(fmt::format("multiplicity {} is not possible for this molecule: its electron count "
+                                         "gives {} unpaired electrons by the model, so the multiplicity must be {}",
+                                         options.multiplicity, domains.unpaired_electrons,
+                                         domains.unpaired_electrons % 2 == 0 ? "odd (1, 3, 5, ...)" : "even (2, 4, 6, ...)"));
+    }
     s.charge = domains.charge;
-    s.multiplicity = domains.multiplicity;
+    s.multiplicity = options.multiplicity > 0 ? options.multiplicity : domains.multiplicity;
+    s.multiplicity_reason = options.multiplicity > 0 ? "as asked" : domains.multiplicity_reason;
     s.warnings = domains.warnings;
     for (int i = 0; i < n; ++i)
         s.molecule.atoms[static_cast<size_t>(i)].radical_electrons = domains.atoms[static_cast<size_t>(i)].single_electrons;
@@ -139,14 +182,14 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options)
     }
     const auto double_bonds = double_bond_targets(molecule);
 
-    const RingInfo rings = perceive_rings(molecule);
+    const RingInfo rings = perceive_rings(skeleton);
     check_deadline("perceiving rings");
     std::vector<RingSystemCoordinates> ring_xyz;
     ring_xyz.reserve(rings.systems.size());
     std::vector<char> warned_system(rings.systems.size(), 0);
     for (size_t k = 0; k < rings.systems.size(); ++k) {
         check_deadline("embedding ring systems");
-        RingSystemEmbedding e = embed_ring_system(molecule, domains, rings, static_cast<int>(k), chiral);
+        RingSystemEmbedding e = embed_ring_system(skeleton, domains, rings, static_cast<int>(k), chiral);
         const auto& atoms = rings.systems[k];
         if (e.worst_angle_strain > kStrainWarningDegrees || !e.satisfied) warned_system[k] = 1;
         if (e.worst_angle_strain > kStrainWarningDegrees)
@@ -162,7 +205,8 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options)
         ring_xyz.push_back(std::move(e.coordinates));
     }
 
-    s.positions = assemble_positions(molecule, domains, rings, ring_xyz, chiral);
+    s.positions = assemble_positions(skeleton, domains, rings, ring_xyz, chiral);
+    if (hapto) place_hapto_ligands(skeleton, domains, s.positions, s.warnings);
     check_deadline("assembling the frames");
     pack_components(molecule, s.positions);
     check_deadline("packing the components");
@@ -172,7 +216,9 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options)
         refine_options.gradient_tolerance = options.refine_tolerance;
         refine_options.bond_outlier = options.bond_outlier;
         refine_options.angle_outlier = options.angle_outlier;
-        const RefineResult r = refine_structure(molecule, domains, chiral, double_bonds, s.positions, refine_options);
+        refine_options.ring_graph = hapto ? &skeleton : nullptr;
+        const RefineResult r = refine_structure(molecule, hapto ? with_bond_lengths_of(molecule, domains) : domains,
+                                                chiral, double_bonds, s.positions, refine_options);
         if (!r.converged && r.iterations > 0)
             s.warnings.push_back(fmt::format("refinement not converged after {} iterations{}{}", r.iterations,
                                              r.message.empty() ? "" : ": ", r.message));

@@ -2,6 +2,7 @@
 #pragma once
 
 #include "core/limits.hpp"
+#include "domains/metal.hpp"
 #include "graph/molecule.hpp"
 
 namespace repel {
@@ -29,6 +30,11 @@ struct BuildOptions {
     // 17.1 (diazepam's seven-membered ring; 15-17 in the other benzodiazepines), G2 worst 11.3 outside warned systems
     // (measured): 25 keeps a margin of half that, and the porphine this check was written for had 29.
     double angle_outlier = 25.0;
+    // Spin multiplicity asked for (2S+1); 0: the model's (the Lewis structure's single electrons, the metal centres'
+    // ligand-field rule). Refused when its parity does not fit the electron count.
+    int multiplicity = 0;
+    // Per-centre choices for metal centres (a polyhedron asked for).
+    MetalOptions metals;
 };
 
 // 3D coordinates for a molecule whose hydrogens are explicit (Molecule::make_hydrogens_explicit()).

@@ -205,23 +205,106 @@ std::string axe_class(int bonded, int lone_pairs, int single_electrons) {
     return s;
 }
 
-MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
+namespace {
+
+// The domains of a d-block centre: one per ligand domain of the metal analysis, sigma donors in the order of the
+// molecule's neighbour list (bonds of hapto ligands skipped), then the hapto ligands (no neighbour atom of their own).
+void metal_centre_domains(const Molecule& m, const MetalCentre& metal, const MetalAnalysis& metals, CentreDomains& c) {
+    c.bonded = metal.coordination_number;
+    c.lone_pairs = 0;
+    c.single_electrons = 0;
+    c.steric_number = metal.coordination_number;
+    c.axe = axe_class(metal.coordination_number, 0, 0);
+    c.electron_geometry = metal.polyhedron;
+    c.shape = metal.polyhedron;
+    const bool solved = metal.directions.size() == metal.ligands.size();
+    std::vector<int> sigma_atoms;
+    for (const Neighbor& nb : m.neighbors(metal.atom)) {
+        if (metals.hapto_atom[static_cast<size_t>(nb.atom)] && !is_d_block_metal(m.atoms[static_cast<size_t>(nb.atom)].z)) continue;
+        for (size_t l = 0; l < metal.ligands.size(); ++l) {
+            const LigandDomain& lig = metal.ligands[l];
+            if (lig.hapto() || lig.atoms[0] != nb.atom) continue;
+            c.domains.push_back({DomainKind::bond, nb.atom, nb.bond, m.bonds[static_cast<size_t>(nb.bond)].order, 1, 1});
+            if (solved) c.directions.push_back(metal.directions[l]);
+            sigma_atoms.push_back(nb.atom);
+        }
+    }
+    for (size_t l = 0; l < metal.ligands.size(); ++l) {
+        if (!metal.ligands[l].hapto()) continue;
+        c.domains.push_back({DomainKind::bond, -1, -1, 0, 1, 1});
+        if (solved) c.directions.push_back(metal.directions[l]);
+    }
+    if (!solved) {
+        c.directions.clear();
+        return;
+    }
+    for (size_t a = 0; a < sigma_atoms.size(); ++a)
+        for (size_t b = a + 1; b < sigma_atoms.size(); ++b)
+            c.angles.push_back({sigma_atoms[a], sigma_atoms[b], angle_between(c.directions[a], c.directions[b])});
+}
+
+// The target length of a bond to a d-block metal (to a donor, to a hapto ligand's atom, to another metal), or 0 for
+// a bond between non-metals.
+double metal_bond_length(const MetalAnalysis& ma, const Bond& b) {
+    for (int side = 0; side < 2; ++side) {
+        const int metal = side == 0 ? b.a : b.b, other = side == 0 ? b.b : b.a;
+        const int k = ma.centre_of_atom[static_cast<size_t>(metal)];
+        if (k < 0) continue;
+        for (const LigandDomain& l : ma.centres[static_cast<size_t>(k)].ligands)
+            if (std::find(l.atoms.begin(), l.atoms.end(), other) != l.atoms.end()) return l.length;
+    }
+    return 0;
+}
+
+}  // namespace
+
+MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalysis* metals) {
     const DomainModel& model = domain_model();
     MoleculeDomains out;
     out.atoms.resize(m.atoms.size());
+    bool any_metal = false;
+    for (const Atom& a : m.atoms) any_metal = any_metal || is_transition_metal(a.z);
+    if (metals != nullptr) out.metals = *metals;
+    else if (any_metal) out.metals = analyse_metals(m, solve);
+    const MetalAnalysis& ma = out.metals;
+    const bool with_metals = !ma.empty();
+    for (const std::string& w : ma.warnings) out.warnings.push_back(w);
     for (int i = 0; i < m.atom_count(); ++i) {
         const Atom& atom = m.atoms[static_cast<size_t>(i)];
-        if (is_transition_metal(atom.z))
-            throw UnsupportedError(fmt::format(
-                "{} is a d- or f-block metal centre; repel does not build metal centres yet (no electron-domain "
-                "shape is claimed for them)",
-                atom_label(m, i)));
-        const ElementData& el = element(atom.z);
         CentreDomains& c = out.atoms[static_cast<size_t>(i)];
         c.atom = i;
-        const int order_sum = m.bond_order_sum(i) + std::max(0, atom.hydrogens);
+        if (with_metals && ma.centre_of_atom[static_cast<size_t>(i)] >= 0) {
+            const MetalCentre& metal = ma.centres[static_cast<size_t>(ma.centre_of_atom[static_cast<size_t>(i)])];
+            metal_centre_domains(m, metal, ma, c);
+            out.unpaired_electrons += metal.unpaired_electrons;
+            continue;
+        }
+        const ElementData& el = element(atom.z);
+        // Bonds to metals: a hapto ligand's atoms give their pi electrons (no sigma domain towards the metal); a
+        // sigma donor's bond is covalent for the units the metal analysis counts so, dative (one lone pair each) for
+        // the rest.
+        int metal_units = 0, covalent_units = 0, hapto_bonds = 0;
+        const bool hapto_atom = with_metals && ma.hapto_atom[static_cast<size_t>(i)];
+        if (with_metals)
+            for (const Neighbor& nb : m.neighbors(i)) {
+                if (!is_d_block_metal(m.atoms[static_cast<size_t>(nb.atom)].z)) continue;
+                if (hapto_atom) {
+                    ++hapto_bonds;
+                    continue;
+                }
+                metal_units += m.bonds[static_cast<size_t>(nb.bond)].order;
+                if (const MetalBond* mb = ma.bond(i, nb.atom)) covalent_units += mb->covalent;
+            }
+        int hapto_order = 0;
+        if (hapto_atom)
+            for (const Neighbor& nb : m.neighbors(i))
+                if (is_d_block_metal(m.atoms[static_cast<size_t>(nb.atom)].z)) hapto_order += m.bonds[static_cast<size_t>(nb.bond)].order;
+        const int own_order_sum = m.bond_order_sum(i) + std::max(0, atom.hydrogens) - metal_units - hapto_order;
+        const int order_sum = own_order_sum + metal_units;
         // Non-bonding electrons of the Lewis structure: valence electrons less the formal charge and the bonds.
-        const int nonbonding = el.valence_electrons - atom.charge - order_sum;
+        int nonbonding = el.valence_electrons - atom.charge - own_order_sum - covalent_units - 2 * (metal_units - covalent_units);
+        // An atom of a hapto ligand with an odd electron as written takes one from the metal (ionic model).
+        if (hapto_atom && nonbonding % 2 != 0) ++nonbonding;
         if (nonbonding < 0)
             throw InputError(fmt::format("{} has bonds of total order {}, more than its {} valence electrons allow{}",
                                          atom_label(m, i), order_sum, el.valence_electrons,
@@ -238,11 +321,15 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
                 {}, atom.column);
         c.lone_pairs = nonbonding / 2;
         c.single_electrons = nonbonding % 2;
-        if (delocalised_lone_pair(m, i, c.lone_pairs, c.single_electrons)) {
+        if (hapto_atom) {
+            // Its lone pair is part of the pi system the ligand gives to the metal (C5H5-: every carbon trigonal).
+            c.delocalised_lone_pairs = c.lone_pairs;
+            c.lone_pairs = 0;
+        } else if (delocalised_lone_pair(m, i, c.lone_pairs, c.single_electrons)) {
             c.delocalised_lone_pairs = 1;
             --c.lone_pairs;
         }
-        c.bonded = m.degree(i) + std::max(0, atom.hydrogens);
+        c.bonded = m.degree(i) - hapto_bonds + std::max(0, atom.hydrogens);
         c.steric_number = c.bonded + c.lone_pairs + c.single_electrons;
         c.axe = axe_class(c.bonded, c.lone_pairs, c.single_electrons);
         c.electron_geometry = electron_geometry_name(c.steric_number);
@@ -252,6 +339,7 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
         const std::vector<double> orders = effective_orders(m, i);
         for (size_t k = 0; k < m.neighbors(i).size(); ++k) {
             const Neighbor& nb = m.neighbors(i)[k];
+            if (hapto_atom && is_d_block_metal(m.atoms[static_cast<size_t>(nb.atom)].z)) continue;
             const Bond& b = m.bonds[static_cast<size_t>(nb.bond)];
             SphereDomain sd = bonding_domain(model, atom.z, m.atoms[static_cast<size_t>(nb.atom)].z, orders[k]);
             c.domains.push_back({DomainKind::bond, nb.atom, nb.bond, b.order, sd.weight, sd.radius});
@@ -280,7 +368,7 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
                 arrangement.push_back(arrangement_domain(d.kind));
             }
             c.directions = solve_sphere_staged(arrangement, sd);
-            const int nbonds = static_cast<int>(m.neighbors(i).size());
+            const int nbonds = m.degree(i) - hapto_bonds;
             for (int a = 0; a < nbonds; ++a)
                 for (int b = a + 1; b < nbonds; ++b)
                     c.angles.push_back({c.domains[static_cast<size_t>(a)].neighbor, c.domains[static_cast<size_t>(b)].neighbor,
@@ -302,6 +390,13 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
             ends.steric_b = cb.steric_number + cb.delocalised_lone_pairs;
             ends.charge_a = m.atoms[static_cast<size_t>(b.a)].charge;
             ends.charge_b = m.atoms[static_cast<size_t>(b.b)].charge;
+            if (with_metals) {
+                const double metal_length = metal_bond_length(ma, b);
+                if (metal_length > 0) {
+                    out.bond_lengths.push_back(metal_length);
+                    continue;
+                }
+            }
             out.bond_lengths.push_back(bond_length_between(m.atoms[static_cast<size_t>(b.a)].z,
                                                            m.atoms[static_cast<size_t>(b.b)].z,
                                                            std::clamp(orders[e], 1.0, 3.0), ends));
@@ -379,9 +474,23 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
             out.warnings.push_back(fmt::format(
                 "atom {}: a carbene, written as a singlet; its ground state may be a triplet (CH2's is)", i + 1));
     }
-    if (out.unpaired_electrons > 1)
+    int metal_unpaired = 0;
+    for (const MetalCentre& mc : ma.centres) metal_unpaired += mc.unpaired_electrons;
+    const int ligand_unpaired = out.unpaired_electrons - metal_unpaired;
+    if (ligand_unpaired > 1)
         out.warnings.push_back(fmt::format("{} unpaired electrons on different atoms: written high-spin, multiplicity {}",
-                                           out.unpaired_electrons, out.multiplicity));
+                                           ligand_unpaired, out.multiplicity));
+    if (with_metals) {
+        std::string reason;
+        for (const MetalCentre& mc : ma.centres)
+            reason += fmt::format("{}atom {}: {}", reason.empty() ? "" : "; ", mc.atom + 1, mc.spin_reason);
+        if (ligand_unpaired > 0) reason += fmt::format("; {} unpaired on the ligands", ligand_unpaired);
+        if (ma.centres.size() > 1 && metal_unpaired > 0)
+            out.warnings.push_back(fmt::format("unpaired electrons on {} metal centres written high-spin (parallel), "
+                                               "multiplicity {}; their coupling is not predicted",
+                                               ma.centres.size(), out.multiplicity));
+        out.multiplicity_reason = reason;
+    }
     return out;
 }
 

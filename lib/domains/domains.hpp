@@ -6,6 +6,7 @@
 #include <string>
 #include <vector>
 
+#include "domains/metal.hpp"
 #include "domains/model.hpp"
 #include "graph/molecule.hpp"
 
@@ -52,12 +53,18 @@ struct MoleculeDomains {
     // Target length of every bond (Angstrom, in Molecule::bonds order): covalent radii by the bond's order, with
     // resonance-shared orders and the corrections of core/bond_length.cpp for the Lewis structure at its ends.
     std::vector<double> bond_lengths;
+    // The d-block centres (oxidation state, d count, polyhedron, spin and why), empty without metals.
+    MetalAnalysis metals;
+    // How the multiplicity was decided, when more than counting the Lewis structure's single electrons went into it.
+    std::string multiplicity_reason;
 };
 
 // The domains of every atom of a molecule whose hydrogens are explicit. Throws InputError for a valence that
-// cannot be satisfied (more bonds than valence electrons allow), UnsupportedError for transition-metal centres.
-// With solve=false the directions and angles are left empty (counting only).
-MoleculeDomains analyse_domains(const Molecule& molecule, bool solve = true);
+// cannot be satisfied (more bonds than valence electrons allow), UnsupportedError for f-block centres.
+// With solve=false the directions and angles are left empty (counting only). d-block centres are analysed by
+// analyse_metals (metal.hpp); `metals` passes an analysis made on the whole molecule when `molecule` is its skeleton
+// without the bonds of hapto ligands (the graph the assembly walks).
+MoleculeDomains analyse_domains(const Molecule& molecule, bool solve = true, const MetalAnalysis* metals = nullptr);
 
 // Names of the trade, by steric number and by (bonded, lone pairs + single electrons).
 std::string electron_geometry_name(int steric_number);

@@ -99,6 +99,7 @@ struct Structure {
     std::vector<Eigen::Vector3d> positions;  // Angstrom, one per atom
     int charge = 0;                          // total charge
     int multiplicity = 1;                    // 2S+1
+    std::string multiplicity_reason;         // how the multiplicity was decided, where more than a count went into it
     std::vector<std::string> warnings;       // known weaknesses of this structure, for the user and the file
 };
 

@@ -153,6 +153,7 @@ private:
     // semantics
     void hydrogens_and_valences();
     void kekulize_aromatic();
+    bool dative_metal_bonds();
     void double_bond_configurations();
     void chirality_orders();
 
@@ -765,8 +766,47 @@ void Reader::hydrogens_and_valences() {
     }
 }
 
+// An aromatic atom bonded to a d-block metal: the bond counts as written for its hydrogens (OpenSMILES), but when the
+// ring does not kekulize that way the bond is a dative one that leaves the ring's pi system alone (a pyridine-type
+// n donating its lone pair, a cyclopentadienide [cH-] bonded to the metal through the ring). The atoms' double-bond
+// needs are worked out again with their metal bonds left out. Returns false when no atom changes.
+bool Reader::dative_metal_bonds() {
+    bool changed = false;
+    for (int v = 0; v < mol_.atom_count(); ++v) {
+        Atom& a = mol_.atoms[static_cast<size_t>(v)];
+        const AtomState& st = ws.atoms[static_cast<size_t>(v)];
+        if (!a.aromatic || st.pi_satisfied) continue;
+        int metal = 0;
+        for (const Neighbor& nb : mol_.neighbors(v)) {
+            const int z = mol_.atoms[static_cast<size_t>(nb.atom)].z;
+            if (is_transition_metal(z)) metal += mol_.bonds[static_cast<size_t>(nb.bond)].order;
+        }
+        if (metal == 0) continue;
+        const int sum = st.order_sum - metal + a.hydrogens;
+        bool need = false;
+        if (a.bracket) {
+            std::array<int, 4> valences{};
+            const int count = bracket_valences(a, valences);
+            for (int k = 0; k < count; ++k)
+                if (valences[static_cast<size_t>(k)] >= sum) {
+                    need = valences[static_cast<size_t>(k)] > sum;
+                    break;
+                }
+        } else if (const OrganicElement* e = organic_element(a.z)) {
+            const int valence = e->lowest_valence_at_least(sum);
+            need = valence > sum && !e->is_valence(sum);
+        }
+        if (need != static_cast<bool>(ws.needs_double[static_cast<size_t>(v)])) {
+            ws.needs_double[static_cast<size_t>(v)] = need ? 1 : 0;
+            changed = true;
+        }
+    }
+    return changed;
+}
+
 void Reader::kekulize_aromatic() {
-    const int failed = kekulize(mol_, ws.needs_double);
+    int failed = kekulize(mol_, ws.needs_double);
+    if (failed >= 0 && dative_metal_bonds()) failed = kekulize(mol_, ws.needs_double);
     if (failed < 0) return;
     const Atom& a = mol_.atoms[static_cast<size_t>(failed)];
     bool in_ring = false;

@@ -36,6 +36,9 @@ struct RefineOptions {
     // the refinement's own: the domain analysis' lengths and angles, the angles fitted to small and flat rings.
     double bond_outlier = 0;
     double angle_outlier = 0;
+    // The graph whose rings force ring angles (targets.cpp), when it differs from the molecule refined: a complex's
+    // hapto ligands are bonded to the metal through every atom, and those bonds make no ring angles.
+    const Molecule* ring_graph = nullptr;
 };
 
 // A bond a-b (c = -1) or an angle a-b-c (centre b) of the refined structure far from its target.

@@ -41,7 +41,8 @@ std::vector<PredictedAngle> centre_angles(const CentreDomains& centre) {
 
 class TermBuilder {
 public:
-    TermBuilder(const Molecule& molecule, const MoleculeDomains& domains) : m_(molecule), d_(domains) {
+    TermBuilder(const Molecule& molecule, const MoleculeDomains& domains, const Molecule* ring_graph)
+        : m_(molecule), d_(domains) {
         const int n = m_.atom_count();
         require(static_cast<int>(d_.atoms.size()) == n, "the domain analysis has " + std::to_string(d_.atoms.size()) +
                                                             " atoms, the molecule " + std::to_string(n));
@@ -75,7 +76,7 @@ public:
                                                        angles_[static_cast<size_t>(i)].size() == 3;
         }
         curved_.resize(static_cast<size_t>(n));
-        SmallRingSearch rings(m_);
+        SmallRingSearch rings(ring_graph != nullptr ? *ring_graph : m_);
         for (int i = 0; i < n; ++i) fit_angles_to_rings(i, rings);
     }
 
@@ -310,9 +311,12 @@ private:
             return;
         int best_a = -1, best_d = -1;
         for (const Neighbor& na : m_.neighbors(b)) {
-            if (na.atom == c || angle(b, na.atom, c) >= kLinearAngleDegrees) continue;
+            // The metal of a hapto ligand's atom is not one of its domains: no torsion through it.
+            if (na.atom == c || angle(b, na.atom, c) >= kLinearAngleDegrees || hapto_metal(b, na.atom)) continue;
             for (const Neighbor& nd : m_.neighbors(c)) {
-                if (nd.atom == b || nd.atom == na.atom || angle(c, b, nd.atom) >= kLinearAngleDegrees) continue;
+                if (nd.atom == b || nd.atom == na.atom || angle(c, b, nd.atom) >= kLinearAngleDegrees ||
+                    hapto_metal(c, nd.atom))
+                    continue;
                 if (best_a < 0 || heavier(na.atom, best_a) || (na.atom == best_a && heavier(nd.atom, best_d))) {
                     best_a = na.atom;
                     best_d = nd.atom;
@@ -320,6 +324,11 @@ private:
             }
         }
         if (best_a >= 0) t.torsions.push_back({best_a, b, c, best_d, coefficients});
+    }
+
+    bool hapto_metal(int atom, int neighbor) const {
+        const auto& hapto = d_.metals.hapto_atom;
+        return !hapto.empty() && hapto[static_cast<size_t>(atom)] && is_d_block_metal(atom_z(neighbor));
     }
 
     // Order for choosing representatives: higher atomic number first, then lower index.
@@ -361,8 +370,9 @@ private:
 }  // namespace
 
 EnergyTerms build_terms(const Molecule& molecule, const MoleculeDomains& domains,
-                        const std::vector<ChiralTarget>& chiral, const std::vector<DoubleBondTarget>& double_bonds) {
-    return TermBuilder(molecule, domains).build(chiral, double_bonds);
+                        const std::vector<ChiralTarget>& chiral, const std::vector<DoubleBondTarget>& double_bonds,
+                        const Molecule* ring_graph) {
+    return TermBuilder(molecule, domains, ring_graph).build(chiral, double_bonds);
 }
 
 }  // namespace repel::refine

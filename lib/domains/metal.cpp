@@ -1,0 +1,718 @@
+// Metal centres: the ionic model, the ligand domains on the sphere (Kepert), the d-count exceptions, bond lengths and
+// spin. See metal.hpp.
+#include "domains/metal.hpp"
+
+#include <fmt/format.h>
+
+#include <Eigen/Geometry>
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <numeric>
+
+#include "core/element.hpp"
+#include "core/error.hpp"
+#include "domains/metal_lengths.hpp"
+#include "domains/model.hpp"
+#include "sphere/sphere.hpp"
+
+namespace repel {
+
+using Eigen::Vector3d;
+
+namespace {
+
+size_t at(int i) { return static_cast<size_t>(i); }
+
+// Kepert's ligand-ligand repulsion (Inorganic Stereochemistry, 1982; Prog. Inorg. Chem. 23 (1977) 1): donor atoms
+// at their metal-ligand distances, energy sum 1/d^n over donor pairs. Kepert used n = 6 for most of his tables; the
+// polyhedra of coordination numbers 2-9 (linear, trigonal planar, tetrahedron, trigonal bipyramid, octahedron,
+// pentagonal bipyramid, square antiprism, tricapped trigonal prism) are the minima for any n in the usual range.
+constexpr double kKepertExponent = 6.0;
+// Jahn-Teller elongation of an octahedral d9 or high-spin d4 centre (Jahn and Teller, Proc. R. Soc. A 161 (1937)
+// 220): two trans bonds long, four short. Hexaaqua copper(II) in crystals: about 1.97 A equatorial and 2.3-2.4 A
+// axial against a mean near 2.08 A (from memory): -0.06 and +0.28 A from the undistorted length (chosen so that the
+// mean of the six is kept; common practice).
+constexpr double kJahnTellerEquatorial = -0.06;
+constexpr double kJahnTellerAxial = 0.28;
+
+std::string roman(int n) {
+    static const char* names[] = {"0", "I", "II", "III", "IV", "V", "VI", "VII", "VIII", "IX", "X"};
+    if (n >= 0 && n <= 10) return names[n];
+    if (n < 0 && n >= -4) return std::string("-") + names[-n];
+    return std::to_string(n);
+}
+
+std::string metal_label(const Molecule& m, int i, int ox) {
+    return fmt::format("{}({})", element(m.atoms[at(i)].z).symbol, roman(ox));
+}
+
+// Ligand-field class of a sigma donor (the spectrochemical series, Tsuchida 1938; common practice): halides, O and S
+// donors weak (0); sp3 N donors (ammonia, amines) intermediate (1); C donors (CO, CN-, alkyls, aryls), P and As
+// donors, hydride, and N donors with a pi bond (pyridine, bipyridine, imines, nitriles) strong (2).
+int field_class(const Molecule& m, int donor) {
+    const Atom& a = m.atoms[at(donor)];
+    const int group = element(a.z).group;
+    if (a.z == 1 || a.z == 6 || (group == 15 && a.z != 7)) return 2;
+    if (a.z == 7) {
+        for (const Neighbor& nb : m.neighbors(donor)) {
+            const Bond& b = m.bonds[at(nb.bond)];
+            if (is_d_block_metal(m.atoms[at(nb.atom)].z)) continue;
+            if (b.order >= 2 || b.aromatic) return 2;
+        }
+        return 1;
+    }
+    return 0;
+}
+
+std::string donor_label(const Molecule& m, int donor) {
+    const Atom& a = m.atoms[at(donor)];
+    int h = 0;
+    for (const Neighbor& nb : m.neighbors(donor))
+        if (m.atoms[at(nb.atom)].z == 1) ++h;
+    std::string s(element(a.z).symbol);
+    if (h > 0) s += h == 1 ? "H" : fmt::format("H{}", h);
+    return s;
+}
+
+// The ideal directions of a named polyhedron (for a user's override), sites in a fixed order.
+std::vector<Vector3d> named_polyhedron(const std::string& name, int sites) {
+    const double s3 = std::sqrt(3.0) / 2;
+    std::vector<Vector3d> v;
+    if (name == "linear") v = {Vector3d::UnitZ(), -Vector3d::UnitZ()};
+    else if (name == "trigonal planar") v = {Vector3d::UnitX(), Vector3d(-0.5, s3, 0), Vector3d(-0.5, -s3, 0)};
+    else if (name == "T-shaped") v = {Vector3d::UnitX(), Vector3d::UnitY(), -Vector3d::UnitX()};
+    else if (name == "tetrahedral")
+        v = {Vector3d(1, 1, 1).normalized(), Vector3d(1, -1, -1).normalized(), Vector3d(-1, 1, -1).normalized(),
+             Vector3d(-1, -1, 1).normalized()};
+    else if (name == "square planar") v = {Vector3d::UnitX(), Vector3d::UnitY(), -Vector3d::UnitX(), -Vector3d::UnitY()};
+    else if (name == "seesaw")
+        v = {Vector3d::UnitZ(), -Vector3d::UnitZ(), Vector3d::UnitX(), Vector3d(-0.5, s3, 0)};
+    else if (name == "trigonal bipyramidal")
+        v = {Vector3d::UnitZ(), -Vector3d::UnitZ(), Vector3d::UnitX(), Vector3d(-0.5, s3, 0), Vector3d(-0.5, -s3, 0)};
+    else if (name == "square pyramidal") {
+        // Apex-base angle 104 degrees (common practice for square-pyramidal complexes; it minimises the repulsion
+        // of five equal points with the base held square).
+        const double t = 104.0 * M_PI / 180;
+        v = {Vector3d::UnitZ()};
+        for (int k = 0; k < 4; ++k)
+            v.emplace_back(std::sin(t) * std::cos(k * M_PI / 2), std::sin(t) * std::sin(k * M_PI / 2), std::cos(t));
+    } else if (name == "octahedral")
+        v = {Vector3d::UnitZ(), -Vector3d::UnitZ(), Vector3d::UnitX(), -Vector3d::UnitX(), Vector3d::UnitY(),
+             -Vector3d::UnitY()};
+    else if (name == "trigonal prismatic") {
+        // Square side faces: the ideal trigonal prism inscribed in the sphere.
+        const double h = std::sqrt(3.0 / 7.0), r = std::sqrt(4.0 / 7.0);
+        for (int z : {1, -1})
+            for (int k = 0; k < 3; ++k) v.emplace_back(r * std::cos(2 * M_PI * k / 3), r * std::sin(2 * M_PI * k / 3), z * h);
+    } else if (name == "pentagonal bipyramidal") {
+        v = {Vector3d::UnitZ(), -Vector3d::UnitZ()};
+        for (int k = 0; k < 5; ++k) v.emplace_back(std::cos(2 * M_PI * k / 5), std::sin(2 * M_PI * k / 5), 0);
+    } else if (name == "square antiprismatic") {
+        // Polar angle of the square antiprism with equal edges inscribed in the unit sphere: 59.26 degrees (from memory).
+        const double t = 59.26 * M_PI / 180;
+        for (int z : {1, -1})
+            for (int k = 0; k < 4; ++k) {
+                const double phi = M_PI / 2 * k + (z < 0 ? M_PI / 4 : 0);
+                v.emplace_back(std::sin(t) * std::cos(phi), std::sin(t) * std::sin(phi), z * std::cos(t));
+            }
+    } else if (name == "cubic") {
+        for (int x : {1, -1})
+            for (int y : {1, -1})
+                for (int z : {1, -1}) v.push_back(Vector3d(x, y, z).normalized());
+    }
+    if (static_cast<int>(v.size()) != sites) return {};
+    return v;
+}
+
+// The k free sites that lie closest together (smallest sum of pairwise angles): where a hapto ligand that takes k
+// coordination sites goes (a cyclopentadienyl ring on a fac face of an octahedron, common practice).
+std::vector<int> closest_sites(const std::vector<Vector3d>& sites, const std::vector<char>& taken, int k) {
+    std::vector<int> free;
+    for (size_t i = 0; i < sites.size(); ++i)
+        if (!taken[i]) free.push_back(static_cast<int>(i));
+    std::vector<int> best;
+    double best_cost = 1e300;
+    const int n = static_cast<int>(free.size());
+    auto cost = [&](const std::vector<int>& set) {
+        double c = 0;
+        for (size_t a = 0; a < set.size(); ++a)
+            for (size_t b = a + 1; b < set.size(); ++b)
+                c += std::acos(std::clamp(sites[at(set[a])].dot(sites[at(set[b])]), -1.0, 1.0));
+        return c;
+    };
+    if (k == 1) return free.empty() ? best : std::vector<int>{free[0]};
+    for (int a = 0; a < n; ++a)
+        for (int b = a + 1; b < n; ++b) {
+            if (k == 2) {
+                std::vector<int> set{free[at(a)], free[at(b)]};
+                const double c = cost(set);
+                if (c < best_cost - 1e-9) best_cost = c, best = set;
+                continue;
+            }
+            for (int c3 = b + 1; c3 < n; ++c3) {
+                std::vector<int> set{free[at(a)], free[at(b)], free[at(c3)]};
+                const double c = cost(set);
+                if (c < best_cost - 1e-9) best_cost = c, best = set;
+            }
+        }
+    return best;
+}
+
+class MetalAnalyser {
+public:
+    MetalAnalyser(const Molecule& m, bool solve, const MetalOptions& options) : m_(m), solve_(solve), options_(options) {}
+
+    MetalAnalysis run() {
+        const int n = m_.atom_count();
+        out_.centre_of_atom.assign(at(n), -1);
+        out_.hapto_atom.assign(at(n), 0);
+        for (int i = 0; i < n; ++i) {
+            const int z = m_.atoms[at(i)].z;
+            if (is_f_block_metal(z))
+                throw UnsupportedError(fmt::format(
+                    "atom {} ({}) is an f-block (lanthanide) centre; repel's metal model covers the d block only "
+                    "(no shape is claimed for f-block centres)",
+                    i + 1, element(z).symbol));
+            if (!is_d_block_metal(z)) continue;
+            out_.centre_of_atom[at(i)] = static_cast<int>(out_.centres.size());
+            MetalCentre c;
+            c.atom = i;
+            out_.centres.push_back(c);
+        }
+        if (out_.centres.empty()) return std::move(out_);
+        for (MetalCentre& c : out_.centres) find_ligands(c);
+        count_electrons();
+        for (MetalCentre& c : out_.centres) {
+            choose_polyhedron(c);
+            choose_spin(c);
+            set_lengths(c);
+            if (solve_) place_ligands(c);
+        }
+        return std::move(out_);
+    }
+
+private:
+    const Molecule& m_;
+    bool solve_;
+    const MetalOptions& options_;
+    MetalAnalysis out_;
+    std::vector<int> taken_;  // per centre: electrons its ligands took (ionic model)
+
+    bool is_metal(int i) const { return is_d_block_metal(m_.atoms[at(i)].z); }
+
+    // Sigma donors in neighbour order; groups of neighbours bonded to each other (contiguous pi systems) are hapto
+    // ligands.
+    void find_ligands(MetalCentre& c) {
+        const int metal = c.atom;
+        std::vector<int> nbrs;
+        std::vector<LigandDomain> metals;
+        for (const Neighbor& nb : m_.neighbors(metal)) {
+            if (is_metal(nb.atom)) {
+                // A metal-metal bond takes a site of its own (Mn2(CO)10: five carbonyls and the other Mn).
+                c.metal_metal_bonds += m_.bonds[at(nb.bond)].order;
+                LigandDomain d;
+                d.atoms = {nb.atom};
+                d.bond_order = m_.bonds[at(nb.bond)].order;
+                d.field = 2;
+                d.label = fmt::format("{} (metal-metal bond)", element(m_.atoms[at(nb.atom)].z).symbol);
+                metals.push_back(d);
+                continue;
+            }
+            nbrs.push_back(nb.atom);
+        }
+        std::vector<int> group(nbrs.size(), -1);
+        int groups = 0;
+        for (size_t s = 0; s < nbrs.size(); ++s) {
+            if (group[s] >= 0) continue;
+            group[s] = groups;
+            std::vector<size_t> stack{s};
+            while (!stack.empty()) {
+                const size_t u = stack.back();
+                stack.pop_back();
+                for (size_t v = 0; v < nbrs.size(); ++v)
+                    if (group[v] < 0 && m_.bond_between(nbrs[u], nbrs[v]) >= 0) {
+                        group[v] = groups;
+                        stack.push_back(v);
+                    }
+            }
+            ++groups;
+        }
+        std::vector<LigandDomain> hapto;
+        for (int g = 0; g < groups; ++g) {
+            std::vector<int> atoms;
+            for (size_t s = 0; s < nbrs.size(); ++s)
+                if (group[s] == g) atoms.push_back(nbrs[s]);
+            LigandDomain d;
+            if (atoms.size() == 1) {
+                d.atoms = atoms;
+                d.bond_order = m_.bonds[at(m_.bond_between(metal, atoms[0]))].order;
+                d.field = field_class(m_, atoms[0]);
+                d.label = donor_label(m_, atoms[0]);
+                c.ligands.push_back(d);
+                continue;
+            }
+            std::sort(atoms.begin(), atoms.end());
+            d.atoms = atoms;
+            const int eta = static_cast<int>(atoms.size());
+            // Coordination sites of a hapto ligand: one per electron pair it gives (alkene 1; allyl, diene 2;
+            // cyclopentadienyl, arene 3), at most 3 (common practice of organometallic electron counting, Green,
+            // J. Organomet. Chem. 500 (1995) 127).
+            d.sites = eta <= 2 ? 1 : eta <= 4 ? 2 : 3;
+            d.field = 2;
+            d.label = fmt::format("eta{} ligand (atoms {}..{})", eta, atoms.front() + 1, atoms.back() + 1);
+            for (int a : atoms) {
+                out_.hapto_atom[at(a)] = 1;
+                out_.hapto_bonds.emplace_back(metal, a);
+            }
+            hapto.push_back(d);
+        }
+        for (LigandDomain& d : metals) c.ligands.push_back(std::move(d));
+        // Sigma ligands (donors and metals) in the order of Molecule::neighbors(metal), then the hapto ligands.
+        std::vector<int> rank(at(m_.atom_count()), 0);
+        int r = 0;
+        for (const Neighbor& nb : m_.neighbors(metal)) rank[at(nb.atom)] = r++;
+        std::stable_sort(c.ligands.begin(), c.ligands.end(),
+                         [&](const LigandDomain& a, const LigandDomain& b) { return rank[at(a.atoms[0])] < rank[at(b.atoms[0])]; });
+        for (LigandDomain& d : hapto) c.ligands.push_back(std::move(d));
+        c.coordination_number = static_cast<int>(c.ligands.size());
+        c.sites = 0;
+        for (const LigandDomain& d : c.ligands) c.sites += d.sites;
+    }
+
+    // Sum of bond orders from atom i to atoms that are not d-block metals (its own skeleton), hydrogens included.
+    int nonmetal_order_sum(int i) const {
+        int s = std::max(0, m_.atoms[at(i)].hydrogens);
+        for (const Neighbor& nb : m_.neighbors(i))
+            if (!is_metal(nb.atom)) s += m_.bonds[at(nb.bond)].order;
+        return s;
+    }
+
+    // The ionic model (reference-data.md: the ligands cut off the metal as closed-shell species): each donor takes
+    // from the metal the electrons that make its ligand closed-shell (an octet, a duet for hydrogen; period-3 and
+    // heavier donors may keep an expanded octet), at most one per bond-order unit to metals. Those units are the
+    // covalent (X-type) part of its metal bonds, the rest dative (L-type, one lone pair each). Written formal
+    // charges take part: NH3 and [NH3+]-[Pt-] give the same metal. Atoms of hapto ligands take one electron where
+    // the ring or chain as written has an odd one (a cyclopentadienyl radical becomes C5H5-).
+    void count_electrons() {
+        taken_.assign(out_.centres.size(), 0);
+        for (int i = 0; i < m_.atom_count(); ++i) {
+            if (is_metal(i)) continue;
+            const Atom& a = m_.atoms[at(i)];
+            const ElementData& el = element(a.z);
+            if (out_.hapto_atom[at(i)]) {
+                const int n0 = el.valence_electrons - a.charge - nonmetal_order_sum(i);
+                if (n0 % 2 != 0) {
+                    for (const Neighbor& nb : m_.neighbors(i))
+                        if (is_metal(nb.atom)) {
+                            ++taken_[at(out_.centre_of_atom[at(nb.atom)])];
+                            break;
+                        }
+                }
+                continue;
+            }
+            std::vector<Neighbor> metal_bonds;
+            int k = 0;
+            for (const Neighbor& nb : m_.neighbors(i))
+                if (is_metal(nb.atom)) {
+                    metal_bonds.push_back(nb);
+                    k += m_.bonds[at(nb.bond)].order;
+                }
+            if (metal_bonds.empty()) continue;
+            const int s = nonmetal_order_sum(i);
+            const int n0 = el.valence_electrons - a.charge - s;
+            int t = 0;
+            if (el.period == 1) {
+                t = 2 - 2 * s - n0;
+            } else {
+                t = 8 - 2 * s - n0;
+                if (t < 0 && el.period >= 3) t = (n0 % 2 == 0) ? 0 : 1;  // expanded octet kept as written
+            }
+            if (t < 0)
+                throw InputError(fmt::format("atom {} ({}) has more electrons than its octet holds before its bond to "
+                                             "a metal is counted; write its charge (the ligand as the free species)",
+                                             i + 1, el.symbol),
+                                 {}, a.column);
+            if (t > k) {
+                out_.warnings.push_back(fmt::format(
+                    "atom {} ({}): its ligand is not closed-shell even with every bond to the metal counted as "
+                    "covalent; built as the radical it is written as",
+                    i + 1, el.symbol));
+                t = k;
+            }
+            // Electrons the ligand takes in the ionic model. A carbonyl written in the cumulated form, M=C=O, is the
+            // neutral ligand CO (the same molecule as [M]-[C-]#[O+]): its two covalent units are counted for the
+            // carbon's own domains but take nothing from the metal.
+            int taken = t;
+            if (a.z == 6 && a.charge == 0 && metal_bonds.size() == 1 && k == 2 && m_.degree(i) == 2) {
+                for (const Neighbor& nb : m_.neighbors(i)) {
+                    const Atom& o = m_.atoms[at(nb.atom)];
+                    if (!is_metal(nb.atom) && (o.z == 8 || o.z == 16) && o.charge == 0 && m_.degree(nb.atom) == 1 &&
+                        m_.bonds[at(nb.bond)].order == 2)
+                        taken = 0;
+                }
+            }
+            // Share the covalent units among the metals: each bond takes at most its order, the metal with the fewest
+            // electrons taken so far first (bridging halides of a symmetric dimer go one to each metal).
+            std::vector<int> units(metal_bonds.size(), 0);
+            int left = t, left_taken = taken;
+            while (left > 0) {
+                int best = -1;
+                for (size_t b = 0; b < metal_bonds.size(); ++b) {
+                    if (units[b] >= m_.bonds[at(metal_bonds[b].bond)].order) continue;
+                    const int cb = out_.centre_of_atom[at(metal_bonds[b].atom)];
+                    if (best < 0 || taken_[at(cb)] < taken_[at(out_.centre_of_atom[at(metal_bonds[at(best)].atom)])])
+                        best = static_cast<int>(b);
+                }
+                if (best < 0) break;
+                ++units[at(best)];
+                --left;
+                if (left_taken > 0) {
+                    ++taken_[at(out_.centre_of_atom[at(metal_bonds[at(best)].atom)])];
+                    --left_taken;
+                }
+            }
+            for (size_t b = 0; b < metal_bonds.size(); ++b) {
+                MetalBond mb;
+                mb.donor = i;
+                mb.metal = metal_bonds[b].atom;
+                mb.covalent = units[b];
+                mb.taken = units[b];
+                out_.bonds.push_back(mb);
+            }
+        }
+        for (size_t k = 0; k < out_.centres.size(); ++k) {
+            MetalCentre& c = out_.centres[k];
+            const Atom& a = m_.atoms[at(c.atom)];
+            const ElementData& el = element(a.z);
+            c.oxidation_state = a.charge + taken_[k];
+            c.d_electrons = el.group - c.oxidation_state;
+            if (c.d_electrons < 0)
+                throw InputError(fmt::format("atom {} ({}): its ligands as written would take {} electrons, leaving "
+                                             "oxidation state {:+d}, more than the {} valence electrons of a group-{} "
+                                             "metal; check the ligands' charges",
+                                             c.atom + 1, el.symbol, taken_[k], c.oxidation_state, el.group, el.group),
+                                 {}, a.column);
+            if (c.d_electrons > 10)
+                throw InputError(fmt::format("atom {} ({}): oxidation state {:+d} would leave {} d electrons, more "
+                                             "than a d shell holds; check the charges",
+                                             c.atom + 1, el.symbol, c.oxidation_state, c.d_electrons),
+                                 {}, a.column);
+        }
+    }
+
+    bool all_strong(const MetalCentre& c) const {
+        for (const LigandDomain& d : c.ligands)
+            if (d.field < 2) return false;
+        return !c.ligands.empty();
+    }
+
+    void choose_polyhedron(MetalCentre& c) {
+        const int z = m_.atoms[at(c.atom)].z;
+        const ElementData& el = element(z);
+        const std::string who = metal_label(m_, c.atom, c.oxidation_state);
+        const int d = c.d_electrons;
+        for (const auto& [atom, name] : options_.polyhedra)
+            if (atom == c.atom) {
+                if (named_polyhedron(name, c.sites).empty())
+                    throw InputError(fmt::format("atom {} ({}): the polyhedron \"{}\" does not have {} sites", c.atom + 1,
+                                                 el.symbol, name, c.sites));
+                c.polyhedron = name;
+                c.square_planar = name == "square planar";
+                c.polyhedron_reason = fmt::format("{} as asked", name);
+                return;
+            }
+        bool hapto = false;
+        for (const LigandDomain& l : c.ligands) hapto = hapto || l.hapto();
+        switch (c.sites) {
+            case 0: c.polyhedron = "single atom"; c.polyhedron_reason = "no ligands"; return;
+            case 1: c.polyhedron = "terminal"; c.polyhedron_reason = "one ligand"; return;
+            case 2: c.polyhedron = "linear"; break;
+            case 3: c.polyhedron = "trigonal planar"; break;
+            case 4: {
+                // Four-coordinate d8: square planar for the heavier metals of groups 9-11 in those oxidation states
+                // (Pd(II), Pt(II), Au(III), Rh(I), Ir(I)) and for Ni(II) with strong-field ligands ([Ni(CN)4]2-;
+                // [NiCl4]2- is tetrahedral); four-coordinate d9 Cu(II) square planar (common practice; reference-
+                // data.md: ligand field and d-count rules). d10 and the rest: tetrahedral (Kepert).
+                const bool heavy_d8 = d == 8 && el.period >= 5 && el.group >= 9 && el.group <= 11;
+                const bool nickel = d == 8 && z == 28 && all_strong(c);
+                const bool copper = d == 9 && z == 29;
+                if ((heavy_d8 || nickel || copper) && !hapto) {
+                    c.polyhedron = "square planar";
+                    c.square_planar = true;
+                    c.polyhedron_reason = fmt::format("d{} {}, four-coordinate{}: square planar", d, who,
+                                                      nickel ? " with strong-field ligands" : "");
+                    return;
+                }
+                c.polyhedron = "tetrahedral";
+                c.polyhedron_reason = fmt::format("d{} {}, four-coordinate: tetrahedral{}", d, who,
+                                                  d == 8 && z == 28 ? " (d8 Ni(II) with weak-field ligands)" : "");
+                return;
+            }
+            case 5: c.polyhedron = "trigonal bipyramidal"; break;
+            case 6: c.polyhedron = "octahedral"; break;
+            case 7: c.polyhedron = "pentagonal bipyramidal"; break;
+            case 8: c.polyhedron = "square antiprismatic"; break;
+            case 9: c.polyhedron = "tricapped trigonal prismatic"; break;
+            default:
+                if (c.sites > 12)
+                    throw UnsupportedError(fmt::format("atom {} ({}) has {} coordination sites; at most 12 are supported",
+                                                       c.atom + 1, el.symbol, c.sites));
+                c.polyhedron = fmt::format("{} sites", c.sites);
+        }
+        c.polyhedron_reason = fmt::format("d{} {}, {} coordination site{}: {} (ligand repulsion)", d, who, c.sites,
+                                          c.sites == 1 ? "" : "s", c.polyhedron);
+        if (hapto) {
+            int rings = 0;
+            for (const LigandDomain& l : c.ligands) rings += l.sites == 3 ? 1 : 0;
+            if (rings == 2 && c.coordination_number == 2) c.polyhedron_reason += "; a sandwich of two rings";
+            else if (rings == 1) c.polyhedron_reason += "; a piano stool (the ring takes three sites)";
+        }
+    }
+
+    // Unpaired electrons of one centre (see spin_reason for the rule applied).
+    void choose_spin(MetalCentre& c) {
+        const int z = m_.atoms[at(c.atom)].z;
+        const ElementData& el = element(z);
+        const int d = c.d_electrons;
+        const std::string who = metal_label(m_, c.atom, c.oxidation_state);
+        auto high_spin = [](int n) { return n <= 5 ? n : 10 - n; };
+        // Low-spin octahedral t2g^x eg^y (common practice).
+        auto low_spin_octahedral = [](int n) {
+            static const int u[] = {0, 1, 2, 3, 2, 1, 0, 1, 2, 1, 0};
+            return u[n];
+        };
+        int field_sum = 0, strong = 0;
+        bool all_halide = true;
+        for (const LigandDomain& l : c.ligands) {
+            field_sum += l.field * l.sites;
+            if (l.field == 2) strong += l.sites;
+            if (l.hapto() || element(m_.atoms[at(l.atoms[0])].z).group != 17) all_halide = false;
+        }
+        if (c.square_planar) {
+            c.unpaired_electrons = d == 8 ? 0 : d % 2;
+            c.spin_reason = fmt::format("square-planar d{}: {}", d, d == 8 ? "low spin (singlet)" : "one unpaired electron");
+            c.spin_state = d == 8 ? "low spin" : "";
+        } else if (c.sites <= 4) {
+            // Tetrahedral (and lower) fields are weak: high spin (common practice).
+            c.unpaired_electrons = high_spin(d);
+            c.spin_state = (d >= 3 && d <= 7) ? "high spin" : "";
+            c.spin_reason = fmt::format("{}-coordinate d{}: {} unpaired (tetrahedral and lower fields are weak: high "
+                                        "spin)",
+                                        c.sites, d, c.unpaired_electrons);
+        } else {
+            const bool octahedral = c.sites == 6;
+            const bool choice = octahedral ? (d >= 4 && d <= 7) : d >= 2;
+            bool low = false;
+            std::string why;
+            if (el.period >= 5) {
+                low = true;
+                why = "second- and third-row metals are low spin";
+            } else if (2 * strong >= c.sites) {
+                low = true;
+                why = "strong-field ligands (C, P, hydride, pi-acceptor N, hapto ligands) hold most sites";
+            } else if (d == 6 && c.oxidation_state >= 3 && !all_halide) {
+                low = true;
+                why = "d6 with oxidation state +3 or more and N or O donors (Co(III)) is low spin";
+            } else {
+                why = "first-row metal with weak- or intermediate-field ligands: high spin";
+            }
+            if (!choice) {
+                c.unpaired_electrons = octahedral ? low_spin_octahedral(d) : (d <= 1 ? d : (low ? d % 2 : high_spin(d)));
+                c.spin_state = octahedral ? "" : (low ? "low spin" : "high spin");
+                if (octahedral) why = "the d count leaves no choice";
+            } else {
+                c.unpaired_electrons = low ? (octahedral ? low_spin_octahedral(d) : d % 2) : high_spin(d);
+                c.spin_state = low ? "low spin" : "high spin";
+            }
+            c.spin_reason = fmt::format("{} d{}: {} unpaired ({})", who, d, c.unpaired_electrons, why);
+            (void)field_sum;
+        }
+        if (c.metal_metal_bonds > 0) {
+            const int before = c.unpaired_electrons;
+            c.unpaired_electrons = std::max(0, c.unpaired_electrons - c.metal_metal_bonds);
+            if (before != c.unpaired_electrons)
+                c.spin_reason += fmt::format("; {} paired in the metal-metal bond", before - c.unpaired_electrons);
+        }
+        // Jahn-Teller distortion: octahedral d9 and high-spin d4.
+        if (c.sites == 6 && c.coordination_number == 6 && (d == 9 || (d == 4 && c.spin_state == "high spin")))
+            c.polyhedron_reason += fmt::format("; d{}{}: Jahn-Teller elongated along one axis", d,
+                                               d == 4 ? " high spin" : "");
+    }
+
+    void set_lengths(MetalCentre& c) {
+        const int z = m_.atoms[at(c.atom)].z;
+        for (LigandDomain& l : c.ligands) {
+            MetalLigandBond b;
+            b.metal_z = z;
+            b.oxidation_state = c.oxidation_state;
+            b.d_electrons = c.d_electrons;
+            b.coordination_number = c.coordination_number;
+            b.high_spin = c.spin_state == "high spin";
+            b.square_planar = c.square_planar;
+            b.donor_z = m_.atoms[at(l.atoms[0])].z;
+            b.order = l.bond_order;
+            b.hapto = l.hapto() ? static_cast<int>(l.atoms.size()) : 0;
+            b.donor_charge = m_.atoms[at(l.atoms[0])].charge;
+            if (!l.hapto()) {
+                const int donor = l.atoms[0];
+                b.donor_degree = 0;
+                for (const Neighbor& nb : m_.neighbors(donor))
+                    if (!is_metal(nb.atom)) {
+                        ++b.donor_degree;
+                        b.donor_partner_z = m_.atoms[at(nb.atom)].z;
+                        const Bond& bond = m_.bonds[at(nb.bond)];
+                        b.donor_multiple = b.donor_multiple || bond.order >= 2 || bond.aromatic;
+                    }
+                const MetalBond* mb = out_.bond(donor, c.atom);
+                b.covalent = mb != nullptr ? mb->taken : 0;
+            }
+            if (!l.hapto() && is_metal(l.atoms[0])) {
+                l.length = metal_metal_length(z, m_.atoms[at(l.atoms[0])].z, l.bond_order);
+                continue;
+            }
+            l.length = metal_ligand_length(b);
+        }
+    }
+
+    bool jahn_teller(const MetalCentre& c) const {
+        return c.sites == 6 && c.coordination_number == 6 &&
+               (c.d_electrons == 9 || (c.d_electrons == 4 && c.spin_state == "high spin"));
+    }
+
+    void place_ligands(MetalCentre& c) {
+        const int nl = static_cast<int>(c.ligands.size());
+        if (nl == 0) return;
+        std::vector<Vector3d> sites;
+        // Each ligand's sites, in order (a hapto ligand's sites follow each other).
+        std::vector<int> site_owner;
+        for (int l = 0; l < nl; ++l)
+            for (int s = 0; s < c.ligands[at(l)].sites; ++s) site_owner.push_back(l);
+        const std::vector<Vector3d> named = named_polyhedron(c.polyhedron, c.sites);
+        if (!named.empty() && !c.polyhedron_reason.ends_with("as asked") && c.sites <= 3) {
+            sites = named;
+        } else if (!named.empty() && c.polyhedron_reason.ends_with("as asked")) {
+            sites = named;
+        } else if (c.sites == 1) {
+            sites = {Vector3d::UnitZ()};
+        } else {
+            // Kepert: donors on spheres of their own bond lengths; square-planar centres as four bonding domains and
+            // two lone-pair-like domains of the arrangement stage (AX4E2 is square planar there).
+            double longest = 0;
+            for (const LigandDomain& l : c.ligands) longest = std::max(longest, l.length);
+            std::vector<SphereDomain> fitted, arrangement;
+            for (int s : site_owner) {
+                const LigandDomain& l = c.ligands[at(s)];
+                const double r = l.length > 0 && longest > 0 ? l.length / longest : 1.0;
+                fitted.push_back({1.0, r, kKepertExponent});
+                arrangement.push_back(arrangement_domain(DomainKind::bond));
+            }
+            if (c.square_planar)
+                for (int k = 0; k < 2; ++k) {
+                    fitted.push_back(arrangement_domain(DomainKind::lone_pair));
+                    arrangement.push_back(arrangement_domain(DomainKind::lone_pair));
+                }
+            std::vector<Vector3d> solved = solve_sphere_staged(arrangement, fitted);
+            solved.resize(site_owner.size());
+            sites = solved;
+        }
+        // Hapto ligands on the closest free sites, then sigma donors on their own solved site where free.
+        std::vector<char> taken(sites.size(), 0);
+        std::vector<Vector3d> dirs(at(nl), Vector3d::Zero());
+        std::vector<int> order(at(nl));
+        std::iota(order.begin(), order.end(), 0);
+        std::stable_sort(order.begin(), order.end(),
+                         [&](int a, int b) { return c.ligands[at(a)].sites > c.ligands[at(b)].sites; });
+        for (int l : order) {
+            const LigandDomain& lig = c.ligands[at(l)];
+            if (!lig.hapto()) continue;
+            const std::vector<int> set = closest_sites(sites, taken, lig.sites);
+            Vector3d sum = Vector3d::Zero();
+            for (int s : set) {
+                taken[at(s)] = 1;
+                sum += sites[at(s)];
+            }
+            dirs[at(l)] = sum.norm() > 1e-9 ? sum.normalized() : Vector3d::UnitZ();
+        }
+        size_t next = 0;
+        for (int l = 0; l < nl; ++l) {
+            if (c.ligands[at(l)].hapto()) continue;
+            // Its own site from the solve (sites are in ligand order), else the first free one.
+            size_t own = 0;
+            for (size_t s = 0; s < site_owner.size(); ++s)
+                if (site_owner[s] == l) own = s;
+            if (own < taken.size() && !taken[own]) {
+                taken[own] = 1;
+                dirs[at(l)] = sites[own];
+                continue;
+            }
+            while (next < taken.size() && taken[next]) ++next;
+            if (next < taken.size()) {
+                taken[next] = 1;
+                dirs[at(l)] = sites[next];
+            }
+        }
+        c.directions = dirs;
+        if (jahn_teller(c)) elongate(c);
+    }
+
+    // The Jahn-Teller axis: the trans pair with the longest bonds (the weakest donors), the lower indices on a tie.
+    void elongate(MetalCentre& c) {
+        const int nl = static_cast<int>(c.ligands.size());
+        int best_a = -1, best_b = -1;
+        double best = -1;
+        for (int a = 0; a < nl; ++a)
+            for (int b = a + 1; b < nl; ++b) {
+                if (c.directions[at(a)].dot(c.directions[at(b)]) > -0.9) continue;
+                const double sum = c.ligands[at(a)].length + c.ligands[at(b)].length;
+                if (sum > best + 1e-9) best = sum, best_a = a, best_b = b;
+            }
+        if (best_a < 0) return;
+        for (int l = 0; l < nl; ++l)
+            c.ligands[at(l)].length += (l == best_a || l == best_b) ? kJahnTellerAxial : kJahnTellerEquatorial;
+    }
+};
+
+}  // namespace
+
+bool is_d_block_metal(int z) {
+    return (z >= 21 && z <= 30) || (z >= 39 && z <= 48) || (z >= 72 && z <= 80);
+}
+
+bool is_f_block_metal(int z) { return z >= 57 && z <= 71; }
+
+const MetalBond* MetalAnalysis::bond(int donor, int metal) const {
+    for (const MetalBond& b : bonds)
+        if (b.donor == donor && b.metal == metal) return &b;
+    return nullptr;
+}
+
+MetalAnalysis analyse_metals(const Molecule& molecule, bool solve, const MetalOptions& options) {
+    return MetalAnalyser(molecule, solve, options).run();
+}
+
+Molecule without_hapto_bonds(const Molecule& molecule, const MetalAnalysis& metals) {
+    if (metals.hapto_bonds.empty()) return molecule;
+    Molecule out = molecule;
+    std::vector<Bond> kept;
+    kept.reserve(molecule.bonds.size());
+    for (const Bond& b : molecule.bonds) {
+        bool hapto = false;
+        for (const auto& [metal, atom] : metals.hapto_bonds)
+            if ((b.a == metal && b.b == atom) || (b.b == metal && b.a == atom)) hapto = true;
+        if (!hapto) kept.push_back(b);
+    }
+    out.bonds = std::move(kept);
+    out.rebuild_adjacency();
+    return out;
+}
+
+const std::vector<std::string>& polyhedron_names() {
+    static const std::vector<std::string> names{"linear", "trigonal planar", "T-shaped", "tetrahedral",
+                                                "square planar", "seesaw", "trigonal bipyramidal", "square pyramidal",
+                                                "octahedral", "trigonal prismatic", "pentagonal bipyramidal",
+                                                "square antiprismatic", "cubic"};
+    return names;
+}
+
+}  // namespace repel
