@@ -121,9 +121,9 @@ TEST(PolyhedralSites, UnitVectorsInTheDocumentedLabelling) {
     EXPECT_GT(oh[0].dot(oh[2].cross(oh[3])), 0);
 }
 
-// OpenSMILES "Square Planar Centers": the shapes U (@SP1), 4 (@SP2), Z (@SP3) drawn through the neighbours in order:
-// U and Z start and end on atoms next to each other round the square... except that Z's start and end are never
-// adjacent; so the trans pairs are U (a,c)(b,d), 4 (a,b)(c,d), Z (a,d)(b,c).
+// OpenSMILES "Square Planar Centers": the shapes U (@SP1), 4 (@SP2), Z (@SP3) drawn through the neighbours in order
+// (U and Z start with two neighbouring corners; Z's start and end are never adjacent), so the trans pairs are
+// U (a,c)(b,d), 4 (a,b)(c,d), Z (a,d)(b,c).
 TEST(SquarePlanar, ShapesGiveTheTransPairs) {
     const std::vector<std::vector<std::pair<int, int>>> trans{{{0, 2}, {1, 3}}, {{0, 1}, {2, 3}}, {{0, 3}, {1, 2}}};
     for (int index = 1; index <= 3; ++index) {
