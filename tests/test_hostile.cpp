@@ -171,7 +171,9 @@ std::vector<Case> cases() {
     add("element_beyond_radon", S, text("[Og]"), R, "");
     add("chiral_index_out_of_range", S, text("F[C@TB21](Cl)(Br)(I)C"), R, "");
     add("chiral_class_OH31", S, text("F[S@OH31](F)(F)(F)(F)F"), R, "");
-    add("tetrahedral_with_five_neighbours", S, text("F[C@](Cl)(Br)(I)(C)C"), R, "");
+    add("tetrahedral_with_five_neighbours", S, text("F[C@TH1](Cl)(Br)(I)C"), R, "");
+    add("shorthand_mark_with_seven_neighbours", S, text("F[C@](Cl)(Br)(I)(C)(C)C"), R, "");
+    add("shorthand_mark_with_six_neighbours_is_octahedral", S, text("F[C@](Cl)(Br)(I)(C)C"), V);
     add("conflicting_double_bond_marks", S, text("F/C=C(/F)/F"), R, "");
     add("direction_mark_spam", S, text("C/////C"), R, "");
     add("quadruple_bond_twice", S, text("C$$C"), R, "");

@@ -8,6 +8,7 @@
 #include <cstring>
 #include <fmt/format.h>
 #include <string>
+#include <utility>
 
 #include "core/element.hpp"
 #include "core/error.hpp"
@@ -59,6 +60,7 @@ struct AtomState {
     int order_sum = 0;          // sum of bond orders, an aromatic bond counting 1
     bool pi_satisfied = false;  // an explicit '=' to another aromatic atom already gives it its double bond
     bool preceded = false;      // joined to the atom before it in the chain (not first, not after '.')
+    bool chiral_shorthand = false;  // marked '@' or '@@' (no class written)
 };
 
 // Reused between calls: a batch of millions of SMILES should not allocate per molecule for the reader's own state.
@@ -164,6 +166,7 @@ private:
     bool any_aromatic_ = false;
     bool any_direction_ = false;
     bool any_chiral_ = false;
+    bool shorthand_ = false;  // the bracket atom being read has a '@' or '@@' without a class
 
     int prev_ = -1;           // the atom the next atom, bond or ring number attaches to
     char bond_ = 0;           // pending bond symbol
@@ -440,6 +443,7 @@ size_t Reader::chirality(size_t i, Atom& atom) {
         if (i < end_ && s[i] == '@') error("'@@@' is not a chirality mark: use '@' or '@@'", column);
         atom.chiral_class = ChiralClass::TH;
         atom.chiral_index = 2;
+        shorthand_ = true;
     } else if (i + 1 < end_ && is_upper(s[i]) && is_upper(s[i + 1]) && s[i] != 'H') {
         struct ClassName {
             std::string_view name;
@@ -472,6 +476,7 @@ size_t Reader::chirality(size_t i, Atom& atom) {
     } else {
         atom.chiral_class = ChiralClass::TH;
         atom.chiral_index = 1;
+        shorthand_ = true;
     }
     any_chiral_ = true;
     return i;
@@ -484,6 +489,7 @@ void Reader::add_atom(Atom& atom, int hydrogen_event) {
     if (atom.aromatic) any_aromatic_ = true;
     const int v = mol_.add_atom(atom);
     ws.atoms.emplace_back();
+    ws.atoms.back().chiral_shorthand = std::exchange(shorthand_, false);
     if (prev_ >= 0) {
         connect(prev_, v, bond_, bond_column_, 1);
         ws.atoms[static_cast<size_t>(v)].preceded = true;
@@ -930,6 +936,13 @@ void Reader::chirality_orders() {
         }
         std::vector<int> list = order_of(v);
         const int count = static_cast<int>(list.size());
+        // '@' and '@@' on five or six neighbours are @TB1/@TB2 and @OH1/@OH2 (OpenSMILES, "Octahedral Centers":
+        // its equivalent forms include C[Co@](F)(Cl)(Br)(I)S; TB1/TB2 read the same way, from the first neighbour
+        // towards the last). Not so for four: @SP has no shorthand ("Square Planar Centers").
+        if (a.chiral_class == ChiralClass::TH && ws.atoms[static_cast<size_t>(v)].chiral_shorthand) {
+            if (count == 5) a.chiral_class = ChiralClass::TB;
+            else if (count == 6) a.chiral_class = ChiralClass::OH;
+        }
         int lowest = 0, highest = 0;
         switch (a.chiral_class) {
         case ChiralClass::TH: lowest = 3; highest = 4; break;
@@ -941,8 +954,9 @@ void Reader::chirality_orders() {
         if (count < lowest || count > highest) {
             const std::string needed = lowest == highest ? fmt::format("{}", lowest)
                                                          : fmt::format("{} (or {} and a lone pair)", highest, lowest);
-            error(fmt::format("chirality mark '{}' needs {} neighbours; this atom has {}", mark_text(a), needed,
-                              count),
+            const bool shorthand = ws.atoms[static_cast<size_t>(v)].chiral_shorthand;
+            error(fmt::format("chirality mark '{}' needs {} neighbours{}; this atom has {}", mark_text(a), needed,
+                              shorthand ? " (5 or 6 as the trigonal bipyramidal or octahedral mark)" : "", count),
                   a.column);
         }
         a.stereo_neighbors = std::move(list);

@@ -10,6 +10,7 @@
 
 #include "core/element.hpp"
 #include "core/error.hpp"
+#include "graph/polyhedral_stereo.hpp"
 #include "input/organic_subset.hpp"
 #include "input/smiles.hpp"
 #include "input/smiles_stereo.hpp"
@@ -135,7 +136,7 @@ void Writer::build_tree() {
 }
 
 // On a chiral atom, ring digits go in the order of the mark's neighbour list, so that the order read back is the
-// stored one whenever the tree allows (needed for @SP, @TB and @OH, which cannot be re-derived for another order).
+// stored one whenever the tree allows (the mark is then written with the index it was read with).
 void Writer::order_ring_digits() {
     for (int v = 0; v < n_; ++v) {
         const Atom& a = atom(v);
@@ -267,14 +268,16 @@ void Writer::derive_chirality() {
             parity = permutation_parity(resolved, written);
             break;
         }
-        default:
+        default: {
+            // @SP, @TB, @OH: the index that puts the neighbours, in the order written, on the same sites up to a
+            // rotation (the specification's tables, graph/polyhedral_stereo.cpp)
             written = written_order(v, true);
-            if (written != stored)
-                cannot(fmt::format("the @SP, @TB or @OH mark of atom {} refers to a neighbour order that this "
-                                   "atom order cannot write",
-                                   v + 1));
-            parity = 0;
-            break;
+            const int index = reorder_polyhedral_index(a.chiral_class, a.chiral_index, stored, written);
+            if (index == 0)
+                cannot(fmt::format("the chirality neighbours of atom {} do not match its bonds", v + 1));
+            chiral_index_[static_cast<size_t>(v)] = index;
+            continue;
+        }
         }
         if (parity < 0)
             cannot(fmt::format("the chirality neighbours of atom {} do not match its bonds", v + 1));

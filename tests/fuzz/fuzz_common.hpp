@@ -16,6 +16,7 @@
 
 #include "core/error.hpp"
 #include "graph/molecule.hpp"
+#include "graph/polyhedral_stereo.hpp"
 #include "input/smiles.hpp"
 #include "input/smiles_stereo.hpp"
 
@@ -56,7 +57,8 @@ Outcome guarded(const char* step, std::string_view input, F&& f, bool writer_ste
 
 // Same chirality for one centre of x and y: equal classes, and for TH/AL the neighbour lists related by a
 // permutation whose parity matches the index change (a three-neighbour TH list has its lone pair placed as the
-// reader places it); other classes must keep list and index.
+// reader places it); for SP/TB/OH the two marks put the neighbours on the same sites up to a rotation (the
+// specification's tables, graph/polyhedral_stereo.hpp), whatever the two lists' orders.
 inline bool same_chirality(const Atom& a, const Atom& b, int centre) {
     if (a.chiral_class != b.chiral_class) return false;
     if (a.chiral_class == ChiralClass::none) return true;
@@ -68,7 +70,8 @@ inline bool same_chirality(const Atom& a, const Atom& b, int centre) {
         if (p < 0) return false;
         return b.chiral_index == (p ? 3 - a.chiral_index : a.chiral_index);
     }
-    return a.stereo_neighbors == b.stereo_neighbors && a.chiral_index == b.chiral_index;
+    const int index = reorder_polyhedral_index(a.chiral_class, a.chiral_index, a.stereo_neighbors, b.stereo_neighbors);
+    return index != 0 && index == b.chiral_index;
 }
 
 // Empty when x and y are the same graph (atoms in the same order with the same element, charge, isotope, implicit
