@@ -448,7 +448,9 @@ ShapeFit fit_shape(std::span<const Vector3d> ligands, const Vector3d& centre, co
     }
 
     // Branch and bound over the assignments, on an explicit stack.
-    const double slack = 1e-9 * std::sqrt(qq * pp);
+    // A branch is dropped only when its bound is below the best by more than the rounding of the fast overlap (whose
+    // smaller singular values carry an absolute error near sqrt(epsilon) of the largest).
+    const double slack = 1e-7 * std::sqrt(qq * pp);
     std::array<int, kMaxCn> chosen{};
     std::array<int, kMaxCn + 1> next{};
     std::array<Matrix3d, kMaxCn + 1> partial;

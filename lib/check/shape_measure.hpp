@@ -38,7 +38,7 @@ struct ShapeFit {
 // CShM of the N + 1 points (centre and N ligands; the centre maps to the ideal's centre) against the ideal,
 // minimised over the assignment of ligands to vertices, proper rotation, translation and uniform scale:
 // S = 100 min sum |q_i - p_i|^2 / sum |q_i - q_0|^2, q_0 the centroid of the measured points (Pinsky and Avnir).
-// Exact for every N (branch and bound over the assignments, see the .cpp). Throws std::invalid_argument when
+// Exact for every N up to rounding (branch and bound over all assignments, see the .cpp); deterministic. Throws std::invalid_argument when
 // N != ideal.vertices, N is outside 2..9, a coordinate is not finite, or all points coincide.
 double continuous_shape_measure(std::span<const Eigen::Vector3d> ligands, const Eigen::Vector3d& centre,
                                 const ReferencePolyhedron& ideal);
