@@ -16,7 +16,10 @@ int run_shape(const ShapeArgs& args) {
         Molecule mol = read_species(text, args.notation);
         mol.name = name;
         mol.make_hydrogens_explicit();
+        std::vector<std::string> notes;
+        join_separated_sandwich_ions(mol, notes);  // as build does: ion-separated metallocenes are sandwiches
         MoleculeDomains d = analyse_domains(mol);
+        d.warnings.insert(d.warnings.begin(), notes.begin(), notes.end());
         const std::string title = name.empty() ? text : name;
         if (doc) *doc = shape_json(mol, d, title);
         if (table) *table = shape_table(mol, d, title);

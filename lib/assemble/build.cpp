@@ -132,8 +132,19 @@ MoleculeDomains with_bond_lengths_of(const Molecule& molecule, const MoleculeDom
 
 }  // namespace
 
-Structure build_structure(const Molecule& molecule, const BuildOptions& options) {
+Structure build_structure(const Molecule& written, const BuildOptions& options) {
     Structure s;
+    // Metallocenes written as separate ions are joined into the sandwich they are (metal.hpp).
+    Molecule joined_storage;
+    std::vector<std::string> join_notes;
+    bool joined = false;
+    for (const Atom& a : written.atoms)
+        if (is_transition_metal(a.z)) {
+            joined_storage = written;
+            joined = join_separated_sandwich_ions(joined_storage, join_notes) > 0 || !join_notes.empty();
+            break;
+        }
+    const Molecule& molecule = joined ? joined_storage : written;
     s.molecule = molecule;
     const int n = molecule.atom_count();
     if (n == 0) throw InputError("nothing to build: the molecule has no atoms");
@@ -165,7 +176,8 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options)
     s.charge = domains.charge;
     s.multiplicity = options.multiplicity > 0 ? options.multiplicity : domains.multiplicity;
     s.multiplicity_reason = options.multiplicity > 0 ? "as asked" : domains.multiplicity_reason;
-    s.warnings = domains.warnings;
+    s.warnings = join_notes;
+    for (const std::string& w : domains.warnings) s.warnings.push_back(w);
     for (int i = 0; i < n; ++i)
         s.molecule.atoms[static_cast<size_t>(i)].radical_electrons = domains.atoms[static_cast<size_t>(i)].single_electrons;
 

@@ -6,6 +6,7 @@
 #include <fmt/format.h>
 
 #include "assemble/place.hpp"
+#include "graph/polyhedral_stereo.hpp"
 
 namespace repel {
 
@@ -54,6 +55,16 @@ std::vector<ChiralTarget> chiral_targets(const Molecule& molecule, std::vector<s
     std::vector<ChiralTarget> out;
     for (int i = 0; i < molecule.atom_count(); ++i) {
         std::string problem;
+        const ChiralClass cls = molecule.atoms[static_cast<size_t>(i)].chiral_class;
+        if (cls == ChiralClass::SP || cls == ChiralClass::TB || cls == ChiralClass::OH) {
+            // Square-planar, trigonal-bipyramidal and octahedral marks: the metal analysis puts the ligands on their
+            // sites; the handedness of TB and OH arrangements is kept by one signed volume per face.
+            for (const SignedVolumeTarget& v : volume_targets(molecule, i, &problem))
+                out.push_back({i, v.n1, v.n2, v.n3, v.sign});
+            if (!problem.empty())
+                warnings.push_back(fmt::format("stereo mark on atom {} not applied: {}", i + 1, problem));
+            continue;
+        }
         if (auto t = chiral_target(molecule, i, &problem)) out.push_back(*t);
         else if (!problem.empty())
             warnings.push_back(fmt::format("stereo mark on atom {} not applied: {}", i + 1, problem));

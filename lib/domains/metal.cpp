@@ -14,6 +14,7 @@
 #include "core/error.hpp"
 #include "domains/metal_lengths.hpp"
 #include "domains/model.hpp"
+#include "graph/polyhedral_stereo.hpp"
 #include "sphere/sphere.hpp"
 
 namespace repel {
@@ -303,6 +304,12 @@ private:
             if (out_.hapto_atom[at(i)]) {
                 const int n0 = el.valence_electrons - a.charge - nonmetal_order_sum(i);
                 if (n0 % 2 != 0) {
+                    if (!a.bracket)
+                        out_.warnings.push_back(fmt::format(
+                            "atom {} ({}) of a hapto ligand is written without brackets, so its bond to the metal counts "
+                            "in its hydrogen count (OpenSMILES) and the ligand is read as an anion; for the neutral "
+                            "ligand write the hydrogens in brackets (ethylene: [CH2]=[CH2])",
+                            i + 1, el.symbol));
                     for (const Neighbor& nb : m_.neighbors(i))
                         if (is_metal(nb.atom)) {
                             ++taken_[at(out_.centre_of_atom[at(nb.atom)])];
@@ -339,6 +346,17 @@ private:
                     "covalent; built as the radical it is written as",
                     i + 1, el.symbol));
                 t = k;
+            }
+            // An organic-subset N, O, P or S written without brackets gets its hydrogens by OpenSMILES' valence rule,
+            // which counts the bond to the metal: `N1CC[NH2][Pt]1` makes the first N an amido (NH-) ligand. Said,
+            // since the neutral donor ([NH2], [OH2]) is the commoner intent.
+            if (!a.bracket && a.charge == 0 && t > 0 && (a.z == 7 || a.z == 8 || a.z == 15 || a.z == 16)) {
+                int h = std::max(0, a.hydrogens);
+                for (const Neighbor& nb : m_.neighbors(i)) h += m_.atoms[at(nb.atom)].z == 1 ? 1 : 0;
+                out_.warnings.push_back(fmt::format(
+                    "atom {} ({}) is written without brackets, so its bond to the metal counts in its hydrogen count "
+                    "(OpenSMILES) and it is read as an anionic ligand; for the neutral donor write [{}H{}]",
+                    i + 1, el.symbol, el.symbol, h + 1 > 1 ? std::to_string(h + 1) : std::string()));
             }
             // Electrons the ligand takes in the ionic model. A carbonyl written in the cumulated form, M=C=O, is the
             // neutral ligand CO (the same molecule as [M]-[C-]#[O+]): its two covalent units are counted for the
@@ -424,6 +442,27 @@ private:
             }
         bool hapto = false;
         for (const LigandDomain& l : c.ligands) hapto = hapto || l.hapto();
+        // A written @SP/@TB/@OH mark asks for its polyhedron (OpenSMILES), where the centre has that many sigma
+        // ligands.
+        const Atom& atom = m_.atoms[at(c.atom)];
+        const int marked = polyhedral_neighbor_count(atom.chiral_class);
+        if (marked > 0) {
+            if (!hapto && marked == c.sites && m_.degree(c.atom) == marked) {
+                c.polyhedron = atom.chiral_class == ChiralClass::SP   ? "square planar"
+                               : atom.chiral_class == ChiralClass::TB ? "trigonal bipyramidal"
+                                                                      : "octahedral";
+                c.square_planar = atom.chiral_class == ChiralClass::SP;
+                c.polyhedron_reason = fmt::format("d{} {}: {} as its stereo mark says", d, who, c.polyhedron);
+                return;
+            }
+            c.stereo_note = fmt::format("the @{}{} mark needs {} ligands bonded by sigma bonds; the centre has {} "
+                                        "coordination sites: not applied",
+                                        atom.chiral_class == ChiralClass::SP   ? "SP"
+                                        : atom.chiral_class == ChiralClass::TB ? "TB"
+                                                                               : "OH",
+                                        atom.chiral_index, marked, c.sites);
+            out_.warnings.push_back(fmt::format("stereo mark on atom {} not applied: {}", c.atom + 1, c.stereo_note));
+        }
         switch (c.sites) {
             case 0: c.polyhedron = "single atom"; c.polyhedron_reason = "no ligands"; return;
             case 1: c.polyhedron = "terminal"; c.polyhedron_reason = "one ligand"; return;
@@ -437,7 +476,10 @@ private:
                 const bool heavy_d8 = d == 8 && el.period >= 5 && el.group >= 9 && el.group <= 11;
                 const bool nickel = d == 8 && z == 28 && all_strong(c);
                 const bool copper = d == 9 && z == 29;
-                if ((heavy_d8 || nickel || copper) && !hapto) {
+                // An eta2 ligand (an alkene, Zeise's anion) takes one site of the square like any donor.
+                bool wide_hapto = false;
+                for (const LigandDomain& l : c.ligands) wide_hapto = wide_hapto || l.sites > 1;
+                if ((heavy_d8 || nickel || copper) && !wide_hapto) {
                     c.polyhedron = "square planar";
                     c.square_planar = true;
                     c.polyhedron_reason = fmt::format("d{} {}, four-coordinate{}: square planar", d, who,
@@ -589,6 +631,18 @@ private:
         for (int l = 0; l < nl; ++l)
             for (int s = 0; s < c.ligands[at(l)].sites; ++s) site_owner.push_back(l);
         const std::vector<Vector3d> named = named_polyhedron(c.polyhedron, c.sites);
+        if (c.polyhedron_reason.ends_with("stereo mark says")) {
+            std::string problem;
+            if (auto dirs = marked_directions(m_, c.atom, &problem)) {
+                // Sigma ligands are in neighbour order, as the mark's directions.
+                c.directions = *dirs;
+                c.stereo_note = fmt::format("ligands placed as the stereo mark says (OpenSMILES)");
+                if (jahn_teller(c)) elongate(c);
+                return;
+            }
+            c.stereo_note = "mark not applied: " + problem;
+            out_.warnings.push_back(fmt::format("stereo mark on atom {} not applied: {}", c.atom + 1, problem));
+        }
         if (!named.empty() && !c.polyhedron_reason.ends_with("as asked") && c.sites <= 3) {
             sites = named;
         } else if (!named.empty() && c.polyhedron_reason.ends_with("as asked")) {
@@ -705,6 +759,97 @@ Molecule without_hapto_bonds(const Molecule& molecule, const MetalAnalysis& meta
     out.bonds = std::move(kept);
     out.rebuild_adjacency();
     return out;
+}
+
+namespace {
+
+// The five ring atoms of a cyclopentadienide ring through the carbanion a, or empty.
+std::vector<int> cyclopentadienide_ring(const Molecule& m, int a) {
+    auto carbon = [&](int i) { return m.atoms[at(i)].z == 6; };
+    const auto& na = m.neighbors(a);
+    for (size_t p = 0; p < na.size(); ++p)
+        for (size_t q = p + 1; q < na.size(); ++q) {
+            const int b = na[p].atom, e = na[q].atom;
+            if (!carbon(b) || !carbon(e)) continue;
+            for (const Neighbor& x : m.neighbors(b)) {
+                if (x.atom == a || !carbon(x.atom)) continue;
+                for (const Neighbor& y : m.neighbors(x.atom)) {
+                    if (y.atom == b || y.atom == a || !carbon(y.atom) || m.bond_between(y.atom, e) < 0 || y.atom == e)
+                        continue;
+                    std::vector<int> ring{a, b, x.atom, y.atom, e};
+                    int charge = 0;
+                    bool trigonal = true;
+                    for (int r : ring) {
+                        charge += m.atoms[at(r)].charge;
+                        if (r == a) continue;
+                        bool pi = m.atoms[at(r)].aromatic;
+                        for (const Neighbor& nb : m.neighbors(r)) pi = pi || m.bonds[at(nb.bond)].order == 2;
+                        trigonal = trigonal && pi;
+                    }
+                    if (charge == -1 && trigonal) {
+                        std::sort(ring.begin(), ring.end());
+                        return ring;
+                    }
+                }
+            }
+        }
+    return {};
+}
+
+}  // namespace
+
+int join_separated_sandwich_ions(Molecule& m, std::vector<std::string>& warnings) {
+    bool any_metal = false;
+    for (const Atom& a : m.atoms) any_metal = any_metal || is_d_block_metal(a.z);
+    if (!any_metal) return 0;
+    int count = 0;
+    const std::vector<int> comp = m.components(&count);
+    std::vector<int> comp_size(at(count), 0);
+    std::vector<char> comp_has_metal(at(count), 0);
+    for (int i = 0; i < m.atom_count(); ++i) {
+        ++comp_size[at(comp[at(i)])];
+        if (is_transition_metal(m.atoms[at(i)].z)) comp_has_metal[at(comp[at(i)])] = 1;
+    }
+    // Rings, one per component, in the order written.
+    std::vector<std::vector<int>> rings;
+    std::vector<char> comp_taken(at(count), 0);
+    for (int i = 0; i < m.atom_count(); ++i) {
+        const Atom& a = m.atoms[at(i)];
+        if (a.z != 6 || a.charge != -1 || comp_has_metal[at(comp[at(i)])] || comp_taken[at(comp[at(i)])]) continue;
+        std::vector<int> ring = cyclopentadienide_ring(m, i);
+        if (ring.empty()) continue;
+        comp_taken[at(comp[at(i)])] = 1;
+        rings.push_back(std::move(ring));
+    }
+    int joined = 0;
+    size_t next = 0;
+    for (int i = 0; i < m.atom_count(); ++i) {
+        const Atom& a = m.atoms[at(i)];
+        if (!is_d_block_metal(a.z)) continue;
+        const bool lone = comp_size[at(comp[at(i)])] == 1;
+        if (!lone && a.charge < 1) continue;
+        const int take = std::min(2, a.charge);
+        int took = 0;
+        while (took < take && next < rings.size()) {
+            for (int r : rings[next]) m.add_bond(i, r, 1);
+            ++next;
+            ++took;
+        }
+        if (took > 0) {
+            joined += took;
+            warnings.push_back(fmt::format(
+                "atom {} ({}{:+d}) and {} cyclopentadienide ring{} written as separate ions: built as the {} they "
+                "form (each ring bonded to the metal through all five atoms)",
+                i + 1, element(a.z).symbol, a.charge, took, took == 1 ? "" : "s",
+                took == 2 ? "sandwich compound" : "half-sandwich"));
+        } else if (lone) {
+            warnings.push_back(fmt::format(
+                "atom {} ({}) is a lone metal ion with no bonds; it is built apart from the other components (write "
+                "its bonds to the ligand atoms for a complex)",
+                i + 1, element(a.z).symbol));
+        }
+    }
+    return joined;
 }
 
 const std::vector<std::string>& polyhedron_names() {

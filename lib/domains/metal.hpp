@@ -88,6 +88,14 @@ MetalAnalysis analyse_metals(const Molecule& molecule, bool solve = true, const 
 // but without those.
 Molecule without_hapto_bonds(const Molecule& molecule, const MetalAnalysis& metals);
 
+// The ion-separated form of metallocenes and their relatives as chemical databases write them
+// ("[CH-]1C=CC=C1.[CH-]1C=CC=C1.[Fe+2]"): a d-block metal cation with charge +q, alone or with ligands of its own
+// ("[cH-]1cccc1.[Mn+](...)"), takes up to min(q, 2) cyclopentadienide rings (a five-membered carbon ring whose atoms carry a total charge of -1, every ring
+// atom trigonal), in the order written, each bonded to the metal through all five ring atoms (an eta5 ligand). Other
+// ions stay apart. Returns the number of rings joined and says so in `warnings`; a lone metal atom beside rings it is
+// not joined to (arenes, a neutral metal) is left apart with a warning, since the form does not say it is a sandwich.
+int join_separated_sandwich_ions(Molecule& molecule, std::vector<std::string>& warnings);
+
 // The polyhedron names a user may ask for, for the option's help and its check.
 const std::vector<std::string>& polyhedron_names();
 

@@ -1,5 +1,5 @@
 // JSON writer: one object per structure,
-//   {"name", "charge", "multiplicity",
+//   {"name", "charge", "multiplicity", "multiplicity_reason" (only where a rule decided it: metal centres),
 //    "atoms": [{"index" (1-based), "element", "x", "y", "z" (Angstrom, 6 decimals), "charge"}, ...],
 //    "bonds": [{"atoms": [i, j] (1-based), "order"}, ...],
 //    "warnings": ["...", ...]}
@@ -59,6 +59,8 @@ std::string JsonWriter::record(const Structure& structure, const std::string& ti
     out += "  \"name\": " + dump(Json(title)) + ",\n";
     out += "  \"charge\": " + dump(Json(structure.charge)) + ",\n";
     out += "  \"multiplicity\": " + dump(Json(structure.multiplicity)) + ",\n";
+    if (!structure.multiplicity_reason.empty())
+        out += "  \"multiplicity_reason\": " + dump(Json(structure.multiplicity_reason)) + ",\n";
     out += array_field("atoms", atoms) + ",\n";
     out += array_field("bonds", bonds) + ",\n";
     out += array_field("warnings", warnings) + "\n";

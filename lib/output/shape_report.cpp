@@ -16,6 +16,10 @@ std::string atom_name(const Molecule& m, int i) {
     return fmt::format("{}{}", element(m.atoms[static_cast<size_t>(i)].z).symbol, i + 1);
 }
 
+std::string metal_oxidation_label(const Molecule& m, const MetalCentre& mc) {
+    return fmt::format("{}({:+d})", element(m.atoms[static_cast<size_t>(mc.atom)].z).symbol, mc.oxidation_state);
+}
+
 }  // namespace
 
 std::string shape_table(const Molecule& m, const MoleculeDomains& d, const std::string& title) {
@@ -45,6 +49,16 @@ std::string shape_table(const Molecule& m, const MoleculeDomains& d, const std::
             line += fmt::format(" {}-{}-{} {:.1f}", atom_name(m, a.a), atom_name(m, c.atom), atom_name(m, a.b), a.degrees);
         out += line + "\n";
     }
+    for (const MetalCentre& mc : d.metals.centres) {
+        out += fmt::format("{}: {}, d{}, coordination number {}{}; {}\n", atom_name(m, mc.atom),
+                           metal_oxidation_label(m, mc), mc.d_electrons, mc.coordination_number,
+                           mc.sites != mc.coordination_number ? fmt::format(" ({} sites)", mc.sites) : std::string(),
+                           mc.polyhedron_reason);
+        out += fmt::format("  spin: {}{}\n", mc.spin_state.empty() ? std::string() : mc.spin_state + ", ", mc.spin_reason);
+        for (const LigandDomain& l : mc.ligands)
+            if (l.hapto()) out += fmt::format("  {}: one domain at its centroid, {:.2f} A to each atom\n", l.label, l.length);
+        if (!mc.stereo_note.empty()) out += "  stereo: " + mc.stereo_note + "\n";
+    }
     for (const std::string& w : d.warnings) out += "warning: " + w + "\n";
     return out;
 }
@@ -55,6 +69,7 @@ nlohmann::json shape_json(const Molecule& m, const MoleculeDomains& d, const std
     doc["charge"] = d.charge;
     doc["multiplicity"] = d.multiplicity;
     doc["unpaired_electrons"] = d.unpaired_electrons;
+    if (!d.multiplicity_reason.empty()) doc["multiplicity_reason"] = d.multiplicity_reason;
     nlohmann::json centres = nlohmann::json::array();
     for (const CentreDomains& c : d.atoms) {
         if (!is_centre(c)) continue;
@@ -73,6 +88,35 @@ nlohmann::json shape_json(const Molecule& m, const MoleculeDomains& d, const std
         for (const PredictedAngle& a : c.angles)
             angles.push_back({{"atoms", {a.a + 1, c.atom + 1, a.b + 1}}, {"degrees", std::round(a.degrees * 100) / 100}});
         j["angles"] = angles;
+        const int k = d.metals.centre_of_atom.empty() ? -1 : d.metals.centre_of_atom[static_cast<size_t>(c.atom)];
+        if (k >= 0) {
+            const MetalCentre& mc = d.metals.centres[static_cast<size_t>(k)];
+            nlohmann::json metal;
+            metal["oxidation_state"] = mc.oxidation_state;
+            metal["d_electrons"] = mc.d_electrons;
+            metal["coordination_number"] = mc.coordination_number;
+            metal["sites"] = mc.sites;
+            metal["polyhedron"] = mc.polyhedron;
+            metal["polyhedron_reason"] = mc.polyhedron_reason;
+            metal["unpaired_electrons"] = mc.unpaired_electrons;
+            metal["spin_state"] = mc.spin_state;
+            metal["spin_reason"] = mc.spin_reason;
+            nlohmann::json ligands = nlohmann::json::array();
+            for (const LigandDomain& l : mc.ligands) {
+                nlohmann::json lj;
+                nlohmann::json atoms = nlohmann::json::array();
+                for (int a : l.atoms) atoms.push_back(a + 1);
+                lj["atoms"] = atoms;
+                lj["hapto"] = l.hapto() ? static_cast<int>(l.atoms.size()) : 1;
+                lj["sites"] = l.sites;
+                lj["length"] = std::round(l.length * 1000) / 1000;
+                lj["label"] = l.label;
+                ligands.push_back(lj);
+            }
+            metal["ligands"] = ligands;
+            if (!mc.stereo_note.empty()) metal["stereo"] = mc.stereo_note;
+            j["metal"] = metal;
+        }
         centres.push_back(j);
     }
     doc["centres"] = centres;

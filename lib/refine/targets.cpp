@@ -31,7 +31,8 @@ std::vector<PredictedAngle> centre_angles(const CentreDomains& centre) {
         for (size_t q = p + 1; q < centre.domains.size(); ++q) {
             const Domain& a = centre.domains[p];
             const Domain& b = centre.domains[q];
-            if (a.kind != DomainKind::bond || b.kind != DomainKind::bond) continue;
+            // Bonded domains with a neighbour atom (a hapto ligand's domain has none: no angle term of its own).
+            if (a.kind != DomainKind::bond || b.kind != DomainKind::bond || a.neighbor < 0 || b.neighbor < 0) continue;
             const double c =
                 std::clamp(centre.directions[p].normalized().dot(centre.directions[q].normalized()), -1.0, 1.0);
             angles.push_back({a.neighbor, b.neighbor, std::acos(c) / kDegree});
