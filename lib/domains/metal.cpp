@@ -507,8 +507,13 @@ private:
         if (hapto) {
             int rings = 0;
             for (const LigandDomain& l : c.ligands) rings += l.sites == 3 ? 1 : 0;
-            if (rings == 2 && c.coordination_number == 2) c.polyhedron_reason += "; a sandwich of two rings";
-            else if (rings == 1) c.polyhedron_reason += "; a piano stool (the ring takes three sites)";
+            if (rings == 2 && c.coordination_number == 2) {
+                c.polyhedron_reason += "; a sandwich of two rings";
+                c.polyhedron = "sandwich";
+            } else if (rings == 1) {
+                c.polyhedron_reason += "; a piano stool (the ring takes three sites)";
+                c.polyhedron = "piano stool";
+            }
         }
     }
 
