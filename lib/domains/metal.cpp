@@ -474,16 +474,20 @@ private:
                 // [NiCl4]2- is tetrahedral); four-coordinate d9 Cu(II) square planar (common practice; reference-
                 // data.md: ligand field and d-count rules). d10 and the rest: tetrahedral (Kepert).
                 const bool heavy_d8 = d == 8 && el.period >= 5 && el.group >= 9 && el.group <= 11;
-                const bool nickel = d == 8 && z == 28 && all_strong(c);
+                // Ni(II): square planar unless a weak-field donor (halide, O) is among its ligands ([NiCl4]2- and
+                // NiCl2(PPh3)2 are tetrahedral; Ni(CN)4 2-, Ni(dmg)2 and nickel porphyrins square planar).
+                bool weak = false;
+                for (const LigandDomain& l : c.ligands) weak = weak || l.field == 0;
+                const bool nickel = d == 8 && z == 28 && !weak;
                 const bool copper = d == 9 && z == 29;
                 // An eta2 ligand (an alkene, Zeise's anion) takes one site of the square like any donor.
                 bool wide_hapto = false;
-                for (const LigandDomain& l : c.ligands) wide_hapto = wide_hapto || l.sites > 1;
+                for (const LigandDomain& l : c.ligands) wide_hapto = wide_hapto || l.sites > 2;
                 if ((heavy_d8 || nickel || copper) && !wide_hapto) {
                     c.polyhedron = "square planar";
                     c.square_planar = true;
                     c.polyhedron_reason = fmt::format("d{} {}, four-coordinate{}: square planar", d, who,
-                                                      nickel ? " with strong-field ligands" : "");
+                                                      nickel ? " without weak-field donors" : "");
                     return;
                 }
                 c.polyhedron = "tetrahedral";
@@ -491,7 +495,19 @@ private:
                                                   d == 8 && z == 28 ? " (d8 Ni(II) with weak-field ligands)" : "");
                 return;
             }
-            case 5: c.polyhedron = "trigonal bipyramidal"; break;
+            case 5:
+                // One multiply bonded ligand (a vanadyl or molybdenyl oxo, a multiple metal-metal bond) leaves the
+                // site trans to it empty: a square pyramid with that ligand at the apex (common practice:
+                // VO(acac)2, MoOCl4, Re2Cl8 2-).
+                if ((terminal_multiple_count(c) == 1 || multiple_metal_bond(c)) && !hapto) {
+                    c.polyhedron = "square pyramidal";
+                    c.polyhedron_reason = fmt::format("d{} {}, five coordination sites with one multiple bond: square "
+                                                      "pyramidal (the site trans to it left empty)",
+                                                      d, who);
+                    return;
+                }
+                c.polyhedron = "trigonal bipyramidal";
+                break;
             case 6: c.polyhedron = "octahedral"; break;
             case 7: c.polyhedron = "pentagonal bipyramidal"; break;
             case 8: c.polyhedron = "square antiprismatic"; break;
@@ -569,7 +585,11 @@ private:
                 c.spin_state = octahedral ? "" : (low ? "low spin" : "high spin");
                 if (octahedral) why = "the d count leaves no choice";
             } else {
-                c.unpaired_electrons = low ? (octahedral ? low_spin_octahedral(d) : d % 2) : high_spin(d);
+                // Low spin beyond the octahedron: pairs fill the lowest orbitals; in a pentagonal bipyramid those are
+                // a degenerate pair (dxz, dyz), which two electrons occupy singly ([V(CN)7]4-, a triplet; common
+                // practice), in the other polyhedra a single orbital ([Mo(CN)8]4-, diamagnetic).
+                const int paired = c.sites == 7 ? (d == 2 ? 2 : d % 2) : d % 2;
+                c.unpaired_electrons = low ? (octahedral ? low_spin_octahedral(d) : paired) : high_spin(d);
                 c.spin_state = low ? "low spin" : "high spin";
             }
             c.spin_reason = fmt::format("{} d{}: {} unpaired ({})", who, d, c.unpaired_electrons, why);
@@ -587,6 +607,21 @@ private:
                                                d == 4 ? " high spin" : "");
     }
 
+    // Ligands bonded to the metal by a multiple bond and to nothing else (oxo, nitrido, imido's N is not terminal).
+    int terminal_multiple_count(const MetalCentre& c) const {
+        int n = 0;
+        for (const LigandDomain& l : c.ligands)
+            if (!l.hapto() && l.bond_order >= 2 && !is_metal(l.atoms[0]) && m_.degree(l.atoms[0]) == 1) ++n;
+        return n;
+    }
+
+    // A multiple bond to another metal (the quadruple bond of Re2Cl8 2-).
+    bool multiple_metal_bond(const MetalCentre& c) const {
+        for (const LigandDomain& l : c.ligands)
+            if (!l.hapto() && is_metal(l.atoms[0]) && l.bond_order >= 2) return true;
+        return false;
+    }
+
     void set_lengths(MetalCentre& c) {
         const int z = m_.atoms[at(c.atom)].z;
         for (LigandDomain& l : c.ligands) {
@@ -601,6 +636,9 @@ private:
             b.order = l.bond_order;
             b.hapto = l.hapto() ? static_cast<int>(l.atoms.size()) : 0;
             b.donor_charge = m_.atoms[at(l.atoms[0])].charge;
+            b.valence_electrons = c.d_electrons + 2 * c.sites;
+            b.yl = !l.hapto() && l.bond_order >= 2 && terminal_multiple_count(c) == 1 && c.coordination_number >= 5 &&
+                   m_.degree(l.atoms[0]) == 1;
             if (!l.hapto()) {
                 const int donor = l.atoms[0];
                 b.donor_degree = 0;
@@ -652,6 +690,18 @@ private:
             sites = named;
         } else if (!named.empty() && c.polyhedron_reason.ends_with("as asked")) {
             sites = named;
+        } else if (c.polyhedron == "square pyramidal" && c.sites == 5) {
+            // The multiply bonded ligand at the apex of the square pyramid (apex-base angle 104 degrees, near
+            // VO(acac)2's O=V-O and Re2Cl8 2-'s Re-Re-Cl, from memory), the others round the base.
+            size_t apex_owner = 0;
+            for (size_t s = 0; s < site_owner.size(); ++s)
+                if (c.ligands[at(site_owner[s])].bond_order >= 2) {
+                    apex_owner = s;
+                    break;
+                }
+            sites.assign(site_owner.size(), Vector3d::Zero());
+            size_t base = 1;
+            for (size_t s = 0; s < site_owner.size(); ++s) sites[s] = s == apex_owner ? named[0] : named[base++];
         } else if (c.sites == 1) {
             sites = {Vector3d::UnitZ()};
         } else {
@@ -666,11 +716,12 @@ private:
                 fitted.push_back({1.0, r, kKepertExponent});
                 arrangement.push_back(arrangement_domain(DomainKind::bond));
             }
-            if (c.square_planar)
-                for (int k = 0; k < 2; ++k) {
-                    fitted.push_back(arrangement_domain(DomainKind::lone_pair));
-                    arrangement.push_back(arrangement_domain(DomainKind::lone_pair));
-                }
+            // The two empty sites of a square-planar centre as lone-pair-like domains of the arrangement stage.
+            const int empty = c.square_planar ? 2 : 0;
+            for (int k = 0; k < empty; ++k) {
+                fitted.push_back(arrangement_domain(DomainKind::lone_pair));
+                arrangement.push_back(arrangement_domain(DomainKind::lone_pair));
+            }
             std::vector<Vector3d> solved = solve_sphere_staged(arrangement, fitted);
             solved.resize(site_owner.size());
             sites = solved;
@@ -693,26 +744,116 @@ private:
             }
             dirs[at(l)] = sum.norm() > 1e-9 ? sum.normalized() : Vector3d::UnitZ();
         }
-        size_t next = 0;
+        // Sigma donors: each on its own solved site, except that the two donors of a chelate must be cis (the
+        // repulsion solve does not know the ring that joins them): then the assignment of donors to free sites with
+        // the smallest sum of chelate angles, moving as few donors as possible from their solved sites.
+        std::vector<int> sigma;
+        std::vector<size_t> own_site;
         for (int l = 0; l < nl; ++l) {
             if (c.ligands[at(l)].hapto()) continue;
-            // Its own site from the solve (sites are in ligand order), else the first free one.
-            size_t own = 0;
+            sigma.push_back(l);
+            size_t own = sites.size();
             for (size_t s = 0; s < site_owner.size(); ++s)
                 if (site_owner[s] == l) own = s;
-            if (own < taken.size() && !taken[own]) {
-                taken[own] = 1;
-                dirs[at(l)] = sites[own];
-                continue;
-            }
-            while (next < taken.size() && taken[next]) ++next;
-            if (next < taken.size()) {
-                taken[next] = 1;
-                dirs[at(l)] = sites[next];
-            }
+            own_site.push_back(own);
         }
+        std::vector<size_t> free_sites;
+        for (size_t s = 0; s < sites.size(); ++s)
+            if (!taken[s]) free_sites.push_back(s);
+        const std::vector<size_t> chosen = assign_sigma_sites(c, sigma, own_site, free_sites, sites);
+        for (size_t k = 0; k < sigma.size() && k < chosen.size(); ++k) dirs[at(sigma[k])] = sites[chosen[k]];
         c.directions = dirs;
         if (jahn_teller(c)) elongate(c);
+    }
+
+    // Donor pairs of one chelate: joined by a path of at most kChelatePath bonds that avoids the metal (a chelate
+    // ring of up to six atoms with the metal: ethylenediamine, bipyridine, oxalate, acetylacetonate, the adjacent
+    // nitrogens of a porphyrin).
+    static constexpr int kChelatePath = 4;
+    bool chelate_pair(int metal, int a, int b) const {
+        std::vector<int> depth(at(m_.atom_count()), -1);
+        std::vector<int> queue{a};
+        depth[at(a)] = 0;
+        for (size_t head = 0; head < queue.size(); ++head) {
+            const int u = queue[head];
+            if (u == b) return true;
+            if (depth[at(u)] >= kChelatePath) continue;
+            for (const Neighbor& nb : m_.neighbors(u)) {
+                if (nb.atom == metal || depth[at(nb.atom)] >= 0 || is_metal(nb.atom)) continue;
+                depth[at(nb.atom)] = depth[at(u)] + 1;
+                queue.push_back(nb.atom);
+            }
+        }
+        return false;
+    }
+
+    std::vector<size_t> assign_sigma_sites(const MetalCentre& c, const std::vector<int>& sigma,
+                                           const std::vector<size_t>& own_site, const std::vector<size_t>& free_sites,
+                                           const std::vector<Vector3d>& sites) const {
+        const size_t n = sigma.size();
+        std::vector<std::pair<size_t, size_t>> pairs;
+        for (size_t p = 0; p < n; ++p)
+            for (size_t q = p + 1; q < n; ++q)
+                if (chelate_pair(c.atom, c.ligands[at(sigma[p])].atoms[0], c.ligands[at(sigma[q])].atoms[0]))
+                    pairs.emplace_back(p, q);
+        std::vector<size_t> plain(n);
+        {
+            std::vector<char> used(sites.size(), 1);
+            for (size_t s : free_sites) used[s] = 0;
+            for (size_t k = 0; k < n; ++k) {
+                size_t s = own_site[k];
+                if (s >= sites.size() || used[s]) {
+                    s = sites.size();
+                    for (size_t f : free_sites)
+                        if (!used[f]) {
+                            s = f;
+                            break;
+                        }
+                }
+                plain[k] = s;
+                if (s < sites.size()) used[s] = 1;
+            }
+        }
+        if (pairs.empty() || free_sites.size() < n) return plain;
+        // Branch and bound over assignments (at most 9 donors): cost = sum of chelate angles (radians) + a small
+        // price per donor moved off its solved site; the solve's own assignment bounds the search from the start.
+        constexpr double kMovePrice = 1e-3;
+        auto angle = [&](size_t s, size_t t) { return std::acos(std::clamp(sites[s].dot(sites[t]), -1.0, 1.0)); };
+        std::vector<size_t> current(n), best = plain;
+        double best_cost = 0;
+        for (const auto& [p, q] : pairs) best_cost += angle(plain[p], plain[q]);
+        for (size_t k = 0; k < n; ++k) best_cost += plain[k] != own_site[k] ? kMovePrice : 0;
+        std::vector<char> used(sites.size(), 0);
+        // Explicit stack: (donor index, next free-site index to try, cost so far).
+        struct Frame {
+            size_t donor, next;
+            double cost;
+        };
+        std::vector<Frame> stack{{0, 0, 0.0}};
+        while (!stack.empty()) {
+            Frame& f = stack.back();
+            if (f.donor == n) {
+                if (f.cost < best_cost - 1e-12) best_cost = f.cost, best = current;
+                stack.pop_back();
+                if (!stack.empty()) used[current[stack.back().donor]] = 0;
+                continue;
+            }
+            if (f.next >= free_sites.size()) {
+                stack.pop_back();
+                if (!stack.empty()) used[current[stack.back().donor]] = 0;
+                continue;
+            }
+            const size_t s = free_sites[f.next++];
+            if (used[s]) continue;
+            double cost = f.cost + (s != own_site[f.donor] ? kMovePrice : 0);
+            for (const auto& [p, q] : pairs)
+                if (q == f.donor) cost += angle(current[p], s);
+            if (cost >= best_cost - 1e-12) continue;
+            current[f.donor] = s;
+            used[s] = 1;
+            stack.push_back({f.donor + 1, 0, cost});
+        }
+        return best;
     }
 
     // The Jahn-Teller axis: the trans pair with the longest bonds (the weakest donors), the lower indices on a tie.

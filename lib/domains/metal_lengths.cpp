@@ -93,6 +93,9 @@ constexpr IonicRadius kShannon[] = {
 // own anion radii (O2- 1.35-1.40, F- 1.285-1.33, Cl- 1.81) fit the oxides and fluorides; bonds to the heavier
 // halides and to neutral N donors are more covalent and shorter than the sums of crystal radii.
 constexpr double kDonorN = 1.43;
+// N with a pi bond of its own (pyridine, bipyridine, phenanthroline, imines): shorter than amine N on the same
+// metal (back-bonding; [Fe(bipy)3]2+ 1.97 A against [Fe(NH3)6]2+-type amines, from memory).
+constexpr double kDonorPiN = 1.36;
 constexpr double kDonorO = 1.35;
 constexpr double kDonorF = 1.25;
 constexpr double kDonorCl = 1.69;
@@ -100,6 +103,9 @@ constexpr double kDonorBr = 1.84;
 constexpr double kDonorI = 2.06;
 constexpr double kDonorS = 1.75;
 constexpr double kDonorCyanideC = 1.35;
+// Change of an ionic radius per unit of oxidation state where the table lacks that state for the ion (Ru(II)):
+// Shannon's radii of one metal fall by about 0.06-0.10 A per unit (common practice).
+constexpr double kRadiusPerOxidationState = 0.08;
 // Change of an ionic radius per step of coordination number where Shannon's table lacks that number for the ion
 // (common practice: his radii grow about 0.05-0.08 A per step).
 constexpr double kRadiusPerCoordination = 0.06;
@@ -114,7 +120,7 @@ constexpr double kHaptoLengthening = 0.16;
 
 double donor_radius(const MetalLigandBond& b) {
     switch (b.donor_z) {
-        case 7: return kDonorN;
+        case 7: return b.donor_multiple ? kDonorPiN : kDonorN;
         case 8: return kDonorO;
         case 9: return kDonorF;
         case 17: return kDonorCl;
@@ -140,24 +146,63 @@ double covalent_radius(int z, int order) {
     return e.r_single;
 }
 
-}  // namespace
-
-double metal_ionic_radius(int z, int ox, int cn, bool high_spin, bool square_planar) {
+// The table's radius for the ion at the coordination number nearest cn (adjusted per step), or 0 without an entry.
+double tabulated_radius(int z, int ox, int cn, bool high_spin, bool square_planar) {
     const IonicRadius* best = nullptr;
     int best_gap = 1000;
     for (const IonicRadius& r : kShannon) {
         if (r.z != z || r.ox != ox) continue;
         if (r.spin != 0 && (r.spin == 2) != high_spin) continue;
-        int gap = std::abs(r.cn - cn) * 2 + (r.sp != square_planar ? 1 : 0);
+        const int gap = std::abs(r.cn - cn) * 2 + (r.sp != square_planar ? 1 : 0);
         if (gap < best_gap) best_gap = gap, best = &r;
     }
-    if (best == nullptr) return 0;
-    return best->r + kRadiusPerCoordination * (cn - best->cn);
+    return best == nullptr ? 0 : best->r + kRadiusPerCoordination * (cn - best->cn);
+}
+
+}  // namespace
+
+double metal_ionic_radius(int z, int ox, int cn, bool high_spin, bool square_planar) {
+    const double r = tabulated_radius(z, ox, cn, high_spin, square_planar);
+    if (r > 0) return r;
+    // Not tabulated (Ru(II)): the next higher oxidation state of the same ion, widened by the step per unit.
+    const double higher = tabulated_radius(z, ox + 1, cn, high_spin, square_planar);
+    return higher > 0 ? higher + kRadiusPerOxidationState : 0;
+}
+
+// Hapto ligands on a centre with more than 18 valence electrons sit further out: the electrons beyond 18 fill
+// metal-ring antibonding orbitals (metallocenes, from memory: Fe-C 2.064 in ferrocene (18 electrons), 2.119 in
+// cobaltocene (19), 2.196 A in nickelocene (20); Haaland, Acc. Chem. Res. 12 (1979) 415).
+constexpr double kHaptoPerElectronAbove18 = 0.065;
+// A neutral six-membered ring sits further out than a cyclopentadienyl (bis(benzene)chromium Cr-C 2.150,
+// (benzene)Cr(CO)3 2.23 A, against CpMn(CO)3 Mn-C 2.14, from memory).
+constexpr double kArene = 0.04;
+
+// The polar-bond correction of Schomaker and Stevenson (J. Am. Chem. Soc. 63 (1941) 37), as for main-group bonds
+// (core/bond_length.cpp): 0.10 A per unit of Pauling electronegativity difference when the metal is more
+// electropositive than hydrogen.
+static double polar_correction(int za, int zb) {
+    const double a = element(za).electronegativity, b = element(zb).electronegativity;
+    if (a <= 0 || b <= 0 || std::min(a, b) >= element(1).electronegativity) return 0;
+    return 0.10 * std::fabs(a - b);
 }
 
 double metal_ligand_length(const MetalLigandBond& b) {
     const ElementData& metal = element(b.metal_z);
-    if (b.hapto > 0) return metal.r_single + element(b.donor_z).r_single + kHaptoLengthening;
+    if (b.hapto > 0)
+        return metal.r_single + element(b.donor_z).r_single + kHaptoLengthening +
+               (b.hapto == 6 ? kArene : 0.0) + kHaptoPerElectronAbove18 * std::max(0, b.valence_electrons - 18);
+    const int group = element(b.donor_z).group;
+    // Chlorides, bromides and iodides of d0 centres are molecular (TiCl4, NbCl5, WCl6 in the gas phase): covalent
+    // radii with the polar correction meet them (TiCl4 2.19 against 2.170 A, from memory), where the ionic radii of
+    // the small, highly charged ions fall short. Fluorides keep the ionic radii (MoF6 1.84 against 1.820 A).
+    if (b.d_electrons == 0 && group == 17 && b.donor_z != 9 && b.order == 1)
+        return metal.r_single + element(b.donor_z).r_single - polar_correction(b.metal_z, b.donor_z);
+    // The linear molecules of group 12 (HgCl2, ZnCl2, Hg(CH3)2) are covalent too (HgCl2 2.252 A, from memory).
+    if (metal.group == 12 && b.coordination_number <= 2)
+        return metal.r_single + element(b.donor_z).r_single - polar_correction(b.metal_z, b.donor_z);
+    // A lone terminal oxo beside sigma donors (vanadyl, molybdenyl) is a triple bond, sigma and two pi (common
+    // practice): Pyykko's triple-bond radii (VO(acac)2 V=O 1.59 against 1.57 A, from memory).
+    if (b.yl) return covalent_radius(b.metal_z, 3) + covalent_radius(b.donor_z, 3);
     if (b.oxidation_state > 0) {
         const double donor = donor_radius(b);
         const double ionic = donor > 0 ? metal_ionic_radius(b.metal_z, b.oxidation_state, b.coordination_number,

@@ -20,6 +20,8 @@ struct MetalLigandBond {
     bool donor_multiple = false;// the donor has a multiple or aromatic bond of its own (CO, CN-, pyridine)
     int donor_partner_z = 0;    // the element of the donor's one non-metal neighbour, when it has one (O in CO)
     int covalent = 0;           // electrons its ligand takes from the metal (X-type units)
+    bool yl = false;            // the one terminal oxo (or nitrido) of a centre whose other ligands are sigma donors
+    int valence_electrons = 0;  // the centre's electron count (d electrons + 2 per coordination site), for hapto
 };
 
 // Distance in Angstrom from the metal to the donor atom (to each atom of a hapto ligand).
