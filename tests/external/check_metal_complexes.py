@@ -304,7 +304,7 @@ def main():
                 continue
             want = row['polyhedron']
             t.check(best == want, f'{name}: {label} best polyhedron {best} ({value:.2f}), expected {want} '
-                                  f'({measures.get(want, float("nan")):.2f})')
+                                  f'({measures.get(want, float("nan")):.2f}; {row["source"]})')
             shapes.append(f'{best} {value:.2f}')
             isomer_check(t, f'{name} ({label})', symbols, coords, m, sites, row['isomer'])
         # distances: the mean over every centre of the donors a key selects
@@ -320,7 +320,7 @@ def main():
             err = built - measured
             errors[row['split']].append(abs(err))
             t.check(abs(err) <= ENTRY_MAX, f'{name}: M-{key} {built:.3f} A vs measured {measured:.3f} '
-                                           f'(error {err:+.3f}, guard {ENTRY_MAX})')
+                                           f'(error {err:+.3f}, guard {ENTRY_MAX}; {row["source"]})')
             built_text.append(f'{key}={built:.3f}')
             measured_text.append(f'{key}={measured:.3f}')
         table.append((name, row['polyhedron'], '; '.join(shapes), f'{multiplicity}/{row["multiplicity"]}',
