@@ -130,6 +130,26 @@ MoleculeDomains with_bond_lengths_of(const Molecule& molecule, const MoleculeDom
     return d;
 }
 
+// The frame of a metal centre with hapto ligands as assembled, held in the refinement: distances from each hapto
+// atom to the other ligands' atoms of the same metal (a hapto domain has no angle terms; without these the rings
+// and the other ligands would drift round the metal, held only by their bonds to it and the contacts).
+std::vector<DistanceRestraint> hapto_frame_restraints(const MetalAnalysis& metals, const std::vector<Vector3d>& pos) {
+    constexpr double kWeight = 0.5;  // half a bond's stiffness: the frame is a target, not a bond (common practice)
+    std::vector<DistanceRestraint> out;
+    for (const MetalCentre& c : metals.centres) {
+        for (size_t l = 0; l < c.ligands.size(); ++l) {
+            if (!c.ligands[l].hapto()) continue;
+            for (size_t o = 0; o < c.ligands.size(); ++o) {
+                if (o == l || (c.ligands[o].hapto() && o < l)) continue;
+                for (int a : c.ligands[l].atoms)
+                    for (int b : c.ligands[o].atoms)
+                        out.push_back({a, b, (pos[static_cast<size_t>(a)] - pos[static_cast<size_t>(b)]).norm(), kWeight});
+            }
+        }
+    }
+    return out;
+}
+
 }  // namespace
 
 Structure build_structure(const Molecule& written, const BuildOptions& options) {
@@ -229,6 +249,7 @@ Structure build_structure(const Molecule& written, const BuildOptions& options) 
         refine_options.bond_outlier = options.bond_outlier;
         refine_options.angle_outlier = options.angle_outlier;
         refine_options.ring_graph = hapto ? &skeleton : nullptr;
+        if (hapto) refine_options.restraints = hapto_frame_restraints(domains.metals, s.positions);
         const RefineResult r = refine_structure(molecule, hapto ? with_bond_lengths_of(molecule, domains) : domains,
                                                 chiral, double_bonds, s.positions, refine_options);
         if (!r.converged && r.iterations > 0)

@@ -30,6 +30,8 @@ size_t at(int i) { return static_cast<size_t>(i); }
 // polyhedra of coordination numbers 2-9 (linear, trigonal planar, tetrahedron, trigonal bipyramid, octahedron,
 // pentagonal bipyramid, square antiprism, tricapped trigonal prism) are the minima for any n in the usual range.
 constexpr double kKepertExponent = 6.0;
+// Repulsion weight of a hydride ligand against 1 for every other donor (see place_ligands).
+constexpr double kHydrideWeight = 0.3;
 // Jahn-Teller elongation of an octahedral d9 or high-spin d4 centre (Jahn and Teller, Proc. R. Soc. A 161 (1937)
 // 220): two trans bonds long, four short. Hexaaqua copper(II) in crystals: about 1.97 A equatorial and 2.3-2.4 A
 // axial against a mean near 2.08 A (from memory): -0.06 and +0.28 A from the undistorted length (chosen so that the
@@ -713,7 +715,10 @@ private:
             for (int s : site_owner) {
                 const LigandDomain& l = c.ligands[at(s)];
                 const double r = l.length > 0 && longest > 0 ? l.length / longest : 1.0;
-                fitted.push_back({1.0, r, kKepertExponent});
+                // A hydride takes little room: the ligands cis to it lean towards it (HCo(CO)4, HMn(CO)5; common
+                // practice).
+                const bool hydride = !l.hapto() && m_.atoms[at(l.atoms[0])].z == 1;
+                fitted.push_back({hydride ? kHydrideWeight : 1.0, r, kKepertExponent});
                 arrangement.push_back(arrangement_domain(DomainKind::bond));
             }
             // The two empty sites of a square-planar centre as lone-pair-like domains of the arrangement stage.

@@ -155,7 +155,7 @@ private:
     // semantics
     void hydrogens_and_valences();
     void kekulize_aromatic();
-    bool dative_metal_bonds();
+    bool dative_metal_bonds(bool heteroatoms_only);
     void double_bond_configurations();
     void chirality_orders();
 
@@ -775,13 +775,15 @@ void Reader::hydrogens_and_valences() {
 // An aromatic atom bonded to a d-block metal: the bond counts as written for its hydrogens (OpenSMILES), but when the
 // ring does not kekulize that way the bond is a dative one that leaves the ring's pi system alone (a pyridine-type
 // n donating its lone pair, a cyclopentadienide [cH-] bonded to the metal through the ring). The atoms' double-bond
-// needs are worked out again with their metal bonds left out. Returns false when no atom changes.
-bool Reader::dative_metal_bonds() {
+// needs are worked out again with their metal bonds left out (for heteroatoms only, or every aromatic atom).
+// Returns false when no atom changes.
+bool Reader::dative_metal_bonds(bool heteroatoms_only) {
     bool changed = false;
     for (int v = 0; v < mol_.atom_count(); ++v) {
         Atom& a = mol_.atoms[static_cast<size_t>(v)];
         const AtomState& st = ws.atoms[static_cast<size_t>(v)];
         if (!a.aromatic || st.pi_satisfied) continue;
+        if (heteroatoms_only && a.z == 6) continue;
         int metal = 0;
         for (const Neighbor& nb : mol_.neighbors(v)) {
             const int z = mol_.atoms[static_cast<size_t>(nb.atom)].z;
@@ -811,8 +813,16 @@ bool Reader::dative_metal_bonds() {
 }
 
 void Reader::kekulize_aromatic() {
+    // A heteroatom (n, p, o, s) bonded to a metal is first taken as a dative donor (pyridine, bipyridine,
+    // phenanthroline: its ring keeps its pi system), then as written; carbon (an aryl) as written first.
+    const std::vector<unsigned char> as_written = ws.needs_double;
+    const bool dative = dative_metal_bonds(true);
     int failed = kekulize(mol_, ws.needs_double);
-    if (failed >= 0 && dative_metal_bonds()) failed = kekulize(mol_, ws.needs_double);
+    if (failed >= 0 && dative) {
+        ws.needs_double = as_written;
+        failed = kekulize(mol_, ws.needs_double);
+    }
+    if (failed >= 0 && dative_metal_bonds(false)) failed = kekulize(mol_, ws.needs_double);
     if (failed < 0) return;
     const Atom& a = mol_.atoms[static_cast<size_t>(failed)];
     bool in_ring = false;

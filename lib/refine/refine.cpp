@@ -123,7 +123,7 @@ RefineResult refine_structure(const Molecule& molecule, const MoleculeDomains& d
             throw std::invalid_argument("refine_structure: the position of atom " + std::to_string(i + 1) +
                                         " is not a finite number");
 
-    const refine::EnergyTerms terms = refine::build_terms(molecule, domains, chiral, double_bonds, options.ring_graph);
+    const refine::EnergyTerms terms = refine::build_terms(molecule, domains, chiral, double_bonds, options.ring_graph, &options.restraints);
     ContactModel contacts(molecule);
     const size_t dim = 3 * static_cast<size_t>(n);
     std::vector<double> x(dim);

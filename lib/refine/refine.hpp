@@ -25,6 +25,14 @@ struct DoubleBondTarget {
     bool cis = false;
 };
 
+// A distance held near a target besides the bonds (the frame of a metal centre with hapto ligands, whose domains have
+// no angle terms of their own): energy weight * kBond * (d - length)^2.
+struct DistanceRestraint {
+    int a = -1, b = -1;
+    double length = 0;
+    double weight = 1;
+};
+
 struct RefineOptions {
     int max_iterations = 2000;
     // Stop when the RMS gradient (energy units per Angstrom) falls below this. 1e-3 keeps bonds within about
@@ -39,6 +47,7 @@ struct RefineOptions {
     // The graph whose rings force ring angles (targets.cpp), when it differs from the molecule refined: a complex's
     // hapto ligands are bonded to the metal through every atom, and those bonds make no ring angles.
     const Molecule* ring_graph = nullptr;
+    std::vector<DistanceRestraint> restraints;
 };
 
 // A bond a-b (c = -1) or an angle a-b-c (centre b) of the refined structure far from its target.

@@ -372,8 +372,15 @@ private:
 
 EnergyTerms build_terms(const Molecule& molecule, const MoleculeDomains& domains,
                         const std::vector<ChiralTarget>& chiral, const std::vector<DoubleBondTarget>& double_bonds,
-                        const Molecule* ring_graph) {
-    return TermBuilder(molecule, domains, ring_graph).build(chiral, double_bonds);
+                        const Molecule* ring_graph, const std::vector<DistanceRestraint>* restraints) {
+    EnergyTerms terms = TermBuilder(molecule, domains, ring_graph).build(chiral, double_bonds);
+    if (restraints != nullptr)
+        for (const DistanceRestraint& r : *restraints) {
+            require(r.a >= 0 && r.b >= 0 && r.a < molecule.atom_count() && r.b < molecule.atom_count() && r.a != r.b,
+                    "a distance restraint names atoms outside the molecule");
+            terms.bonds.push_back({r.a, r.b, r.length, kBond * r.weight});
+        }
+    return terms;
 }
 
 }  // namespace repel::refine

@@ -18,6 +18,7 @@ namespace repel::refine {
 // ligands); the molecule itself otherwise.
 EnergyTerms build_terms(const Molecule& molecule, const MoleculeDomains& domains,
                         const std::vector<ChiralTarget>& chiral, const std::vector<DoubleBondTarget>& double_bonds,
-                        const Molecule* ring_graph = nullptr);
+                        const Molecule* ring_graph = nullptr,
+                        const std::vector<DistanceRestraint>* restraints = nullptr);
 
 }  // namespace repel::refine
