@@ -47,6 +47,18 @@ from metal_geometry import centre_shape, metal_centres, metal_sites  # noqa: E40
 check_xtb_client.XTB_TIMEOUT = 300
 HAPTO_SHIFT = 0.3          # A: a hapto ligand stays bonded while its centroid distance to the metal moves this little
 MIN_SUBSET = 30
+# Where xtb's optimum leaves the crystal's polyhedron or bonds, asserted as it happens so that any other change is seen
+# (README.md, "Metal complexes", known limits). row -> (polyhedron after xtb, extra bonds xtb makes, why).
+KNOWN_XTB = {
+    # GFN2-xTB twists these away from the square plane and the octahedron their crystal structures show (Cu(acac)2
+    # square planar, K3[Fe(C2O4)3].3H2O octahedral; the table check holds repel's start to those): the gas-phase
+    # model, not the start.
+    'bis(acetylacetonato)copper(II)': ('SS-4', 0, 'GFN2 optimum twisted off the crystal square plane'),
+    'tris(oxalato)ferrate(III)': ('TPR-6', 0, 'GFN2 optimum of the gas-phase trianion turns the octahedron to a prism'),
+    # repel points the oxime hydrogens away from the O- of the other ligand (the assembly has no hydrogen-bond
+    # term), so the two O-H...O bridges of the crystal are missing in the start and xtb rebuilds the centre.
+    'bis(dimethylglyoximato)nickel(II)': ('SS-4', 2, 'no O-H...O bridges in the start (no hydrogen-bond term)'),
+}
 
 # The complexes optimised (names of tests/data/metal_complexes.tsv). Octachlorodirhenate is left out: its Re-Re
 # quadruple bond has no V2000 bond type, so repel (rightly) refuses to write it as SDF.
@@ -145,12 +157,14 @@ def main():
         if not t.check(o_sym == symbols, f'{name}: xtbopt.xyz has the same atoms in the same order'):
             continue
         missing, extra, moved = graph_problems(symbols, opt, graph, metals, hapto_pairs, centroids)
-        t.check(not missing and not extra and not moved,
-                f'{name}: connectivity kept by xtb; missing {missing}, extra {extra}, hapto centroid moved {moved}')
+        known = KNOWN_XTB.get(name)
+        t.check(not missing and not moved and len(extra) == (known[1] if known else 0),
+                f'{name}: connectivity kept by xtb; missing {missing}, extra {extra}, hapto centroid moved {moved}'
+                + (f' (known: {known[2]})' if known else ''))
         before, after = shapes_of(symbols, start, bonds), shapes_of(symbols, opt, bonds)
         for m in metals:
             (s0, v0), (s1, v1) = before[m], after[m]
-            t.check(s0 is not None and s0 == s1,
+            t.check(s0 is not None and (s1 == known[0] if known else s0 == s1),
                     f'{name}: {symbols[m]}{m + 1} polyhedron kept by xtb ({s0} {v0 if v0 is None else round(v0, 2)} '
                     f'-> {s1} {v1 if v1 is None else round(v1, 2)})')
         heavy = [i for i, s in enumerate(symbols) if s != 'H']
