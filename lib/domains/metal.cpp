@@ -337,11 +337,19 @@ private:
                 t = 8 - 2 * s - n0;
                 if (t < 0 && el.period >= 3) t = (n0 % 2 == 0) ? 0 : 1;  // expanded octet kept as written
             }
-            if (t < 0)
-                throw InputError(fmt::format("atom {} ({}) has more electrons than its octet holds before its bond to "
-                                             "a metal is counted; write its charge (the ligand as the free species)",
-                                             i + 1, el.symbol),
-                                 {}, a.column);
+            if (t < 0) {
+                int added = 0;  // hydrogens OpenSMILES gave it (its bond to the metal counted)
+                for (const Neighbor& nb : m_.neighbors(i)) added += m_.atoms[at(nb.atom)].parent == i ? 1 : 0;
+                throw InputError(
+                    fmt::format("atom {} ({}) has more electrons than its octet holds before its bond to a metal is "
+                                "counted{}",
+                                i + 1, el.symbol,
+                                added > 0 ? fmt::format(": written without brackets it was given {} hydrogen{} (OpenSMILES "
+                                                        "counts the metal bond); write it in brackets, e.g. [{}]",
+                                                        added, added == 1 ? "" : "s", el.symbol)
+                                          : std::string("; write its charge (the ligand as the free species)")),
+                    {}, a.column);
+            }
             if (t > k) {
                 out_.warnings.push_back(fmt::format(
                     "atom {} ({}): its ligand is not closed-shell even with every bond to the metal counted as "

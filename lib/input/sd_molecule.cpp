@@ -1,5 +1,8 @@
 #include "input/sd_molecule.hpp"
 
+#include "domains/metal.hpp"
+#include "graph/polyhedral_stereo.hpp"
+
 #include <fmt/format.h>
 
 #include <Eigen/Geometry>
@@ -155,6 +158,31 @@ void perceive_aromatic_rings(Molecule& m) {
     }
 }
 
+// The arrangement of a metal with four, five or six sigma ligands in 3D as an OpenSMILES mark (@SP, @TB, @OH over
+// its neighbour order), so that the build keeps cis/trans, fac/mer and Delta/Lambda of the file. Only where the
+// neighbours sit near the ideal polyhedron (root-mean-square distance of the unit directions below 0.25 after the
+// best rotation) and none is part of a hapto ligand; square planar only when flat.
+void metal_stereo_from_coordinates(Molecule& m, const std::vector<Eigen::Vector3d>& pos, int a, bool three_d) {
+    constexpr double kFit = 0.25;
+    const int degree = m.degree(a);
+    if (!three_d || degree < 4 || degree > 6) return;
+    const auto& nbs = m.neighbors(a);
+    for (const Neighbor& x : nbs)
+        for (const Neighbor& y : nbs)
+            if (x.atom != y.atom && m.bond_between(x.atom, y.atom) >= 0) return;  // a hapto ligand
+    std::vector<Eigen::Vector3d> d;
+    for (const Neighbor& nb : nbs) d.push_back((pos[static_cast<size_t>(nb.atom)] - pos[static_cast<size_t>(a)]).normalized());
+    const ChiralClass cls = degree == 4 ? ChiralClass::SP : degree == 5 ? ChiralClass::TB : ChiralClass::OH;
+    double residual = 1e9;
+    const int index = best_polyhedral_index(cls, d, &residual);
+    if (index <= 0 || !(residual < kFit)) return;
+    Atom& atom = m.atoms[static_cast<size_t>(a)];
+    atom.stereo_neighbors.clear();
+    for (const Neighbor& nb : nbs) atom.stereo_neighbors.push_back(nb.atom);
+    atom.chiral_class = cls;
+    atom.chiral_index = index;
+}
+
 }  // namespace
 
 Molecule molecule_from_sd_record(const std::string& text, long first_line) {
@@ -204,6 +232,11 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
         Atom& atom = m.atoms[static_cast<size_t>(a)];
         const OrganicElement* e = organic_element(atom.z);
         if (!e) continue;
+        // An atom bonded to a metal: its bond may be dative (NH3 on Pt has four bonds and no hydrogen to add), so
+        // none are added; files of complexes list their hydrogens.
+        bool on_metal = false;
+        for (const Neighbor& nb : m.neighbors(a)) on_metal = on_metal || is_d_block_metal(m.atoms[static_cast<size_t>(nb.atom)].z);
+        if (on_metal) continue;
         const int sum = m.bond_order_sum(a);
         const int unpaired = atom.radical_electrons > 0 ? atom.radical_electrons : 0;
         const int v = target_valence(*e, atom.charge, sum + unpaired);
@@ -225,7 +258,18 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
     for (int a = 0; a < n; ++a) {
         Atom& atom = m.atoms[static_cast<size_t>(a)];
         const int degree = m.degree(a);
+        if (is_d_block_metal(atom.z)) {
+            metal_stereo_from_coordinates(m, pos, a, three_d);
+            continue;
+        }
         if (degree + atom.hydrogens != 4 || degree < 3) continue;
+        // An atom of a hapto ligand (bonded to a metal that one of its neighbours is bonded to) has no handedness.
+        bool hapto = false;
+        for (const Neighbor& nb : m.neighbors(a))
+            if (is_d_block_metal(m.atoms[static_cast<size_t>(nb.atom)].z))
+                for (const Neighbor& other : m.neighbors(a))
+                    hapto = hapto || (other.atom != nb.atom && m.bond_between(other.atom, nb.atom) >= 0);
+        if (hapto) continue;
         int hydrogens = atom.hydrogens;
         for (const Neighbor& nb : m.neighbors(a))
             if (m.atoms[static_cast<size_t>(nb.atom)].z == 1) ++hydrogens;

@@ -53,8 +53,12 @@ void add_checked_bond(ReadStructure& rec, long a, long b, long type, long line, 
     if (a < 1 || a > n || b < 1 || b > n || a == b)
         fail_at(line, fmt::format("a bond between atoms {} and {}: expected two different atoms from 1 to {}", a, b, n),
                 text, column);
+    // Type 9 is the CTfile's coordination bond (a donor to a metal): read as a single bond, whose electron count
+    // the metal analysis decides (lib/domains/metal.hpp).
+    if (type == 9) type = 1;
     if (type < 1 || type > 4)
-        fail_at(line, fmt::format("bond type {}: expected 1, 2, 3 (single, double, triple) or 4 (aromatic)", type),
+        fail_at(line, fmt::format("bond type {}: expected 1, 2, 3 (single, double, triple), 4 (aromatic) or 9 "
+                                  "(coordination)", type),
                 text, column);
     if (m.bond_between(static_cast<int>(a - 1), static_cast<int>(b - 1)) >= 0)
         fail_at(line, fmt::format("atoms {} and {} are bonded twice", a, b), text, column);
