@@ -140,6 +140,12 @@ int run_build(const BuildArgs& args) {
     BuildOptions options;
     options.refine = args.refine;
     options.time_limit = args.time_limit;
+    try {
+        options.metals = metal_options(args.polyhedra);
+    } catch (const std::exception& e) {
+        std::cerr << "repel build: " << e.what() << "\n";
+        return 2;
+    }
 
     auto build_one = [&](const std::string& text, const std::string& name) {
         Molecule mol = read_species(text, args.notation);

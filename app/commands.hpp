@@ -5,8 +5,10 @@
 #include <fstream>
 #include <istream>
 #include <string>
+#include <vector>
 
 #include "core/limits.hpp"
+#include "domains/metal.hpp"
 #include "input/species.hpp"
 #include "output/writer.hpp"
 
@@ -27,6 +29,7 @@ struct BuildArgs {
     bool resume = false;      // --resume
     bool progress = true;     // a progress line when standard error is a terminal (--no-progress turns it off)
     double time_limit = kDefaultTimeLimit;  // --time-limit: seconds per molecule (0: none)
+    std::vector<std::string> polyhedra;     // --polyhedron ATOM=NAME, for metal centres
 };
 
 struct ShapeArgs {
@@ -34,7 +37,12 @@ struct ShapeArgs {
     std::string input_file;
     Notation notation = Notation::automatic;
     bool json = false;
+    std::vector<std::string> polyhedra;  // --polyhedron ATOM=NAME
 };
+
+// --polyhedron ATOM=NAME values (ATOM 1-based) as the library's per-centre choices. Throws InputError naming the
+// value that is not of that form or names no polyhedron the library knows.
+MetalOptions metal_options(const std::vector<std::string>& values);
 
 int run_build(const BuildArgs& args);
 int run_shape(const ShapeArgs& args);

@@ -50,6 +50,10 @@ int run(int argc, char** argv) {
                         "continue an interrupted batch from the checkpoint beside -o (starts afresh when there is none)");
     bool no_progress = false;
     cmd_build->add_flag("--no-progress", no_progress, "no progress line on standard error (it is only drawn on a terminal)");
+    cmd_build->add_option("--polyhedron", build.polyhedra,
+                          "ATOM=NAME: build metal atom ATOM (1-based) as this polyhedron (square planar, tetrahedral, "
+                          "octahedral, trigonal prismatic, ...); may be repeated")
+        ->type_name("ATOM=NAME");
     cmd_build->add_option("--time-limit", build.time_limit,
                           "seconds one molecule may take before it fails as a record (0: no limit)")
         ->check(CLI::NonNegativeNumber)
@@ -65,6 +69,8 @@ int run(int argc, char** argv) {
     cmd_shape->add_option("INPUT", shape.input, "a SMILES string or a formula of a single-centre species");
     cmd_shape->add_option("-i,--input", shape.input_file, "a .smi file, or - for standard input");
     cmd_shape->add_flag("--json", shape.json, "one JSON document instead of the table");
+    cmd_shape->add_option("--polyhedron", shape.polyhedra, "ATOM=NAME: analyse metal atom ATOM as this polyhedron")
+        ->type_name("ATOM=NAME");
     cmd_shape->add_flag("--formula", shape_formula, "read INPUT as a formula only");
     cmd_shape->add_flag("--smiles", shape_smiles, "read INPUT as SMILES only");
     cmd_shape->get_option("INPUT")->excludes(cmd_shape->get_option("--input"));

@@ -1,10 +1,12 @@
 // `repel shape`: the electron-domain analysis of every centre, as a table or JSON.
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <fstream>
 #include <iostream>
 
 #include "commands.hpp"
+#include "core/error.hpp"
 #include "domains/domains.hpp"
 #include "input/records.hpp"
 #include "output/shape_report.hpp"
@@ -18,7 +20,18 @@ int run_shape(const ShapeArgs& args) {
         mol.make_hydrogens_explicit();
         std::vector<std::string> notes;
         join_separated_sandwich_ions(mol, notes);  // as build does: ion-separated metallocenes are sandwiches
-        MoleculeDomains d = analyse_domains(mol);
+        const MetalOptions options = metal_options(args.polyhedra);
+        MoleculeDomains d;
+        bool metal = false;
+        for (const Atom& a : mol.atoms) metal = metal || is_d_block_metal(a.z);
+        if (metal && !options.polyhedra.empty()) {
+            const MetalAnalysis metals = analyse_metals(mol, true, options);
+            d = analyse_domains(mol, true, &metals);
+        } else {
+            if (!options.polyhedra.empty())
+                throw InputError("--polyhedron names a metal atom, and this molecule has no d-block metal");
+            d = analyse_domains(mol);
+        }
         d.warnings.insert(d.warnings.begin(), notes.begin(), notes.end());
         const std::string title = name.empty() ? text : name;
         if (doc) *doc = shape_json(mol, d, title);
@@ -60,6 +73,30 @@ int run_shape(const ShapeArgs& args) {
     if (args.json) std::cout << all.dump(2) << "\n";
     std::cerr << fmt::format("read {}, built {}, failed {}\n", read, read - failed, failed);
     return failed > 0 ? 1 : 0;
+}
+
+MetalOptions metal_options(const std::vector<std::string>& values) {
+    MetalOptions out;
+    for (const std::string& v : values) {
+        const size_t eq = v.find('=');
+        int atom = 0;
+        try {
+            atom = eq == std::string::npos ? 0 : std::stoi(v.substr(0, eq));
+        } catch (const std::exception&) {
+            atom = 0;
+        }
+        const std::string name = eq == std::string::npos ? std::string() : v.substr(eq + 1);
+        const auto& names = polyhedron_names();
+        if (atom < 1 || std::find(names.begin(), names.end(), name) == names.end()) {
+            std::string list;
+            for (const std::string& n : names) list += (list.empty() ? "" : ", ") + n;
+            throw InputError(fmt::format("--polyhedron {}: expected ATOM=NAME, ATOM a 1-based atom number and NAME one "
+                                         "of: {}",
+                                         v, list));
+        }
+        out.polyhedra.emplace_back(atom - 1, name);
+    }
+    return out;
 }
 
 }  // namespace repel::app

@@ -183,6 +183,10 @@ public:
             c.atom = i;
             out_.centres.push_back(c);
         }
+        for (const auto& [atom, name] : options_.polyhedra)
+            if (atom < 0 || atom >= n || out_.centre_of_atom[at(atom)] < 0)
+                throw InputError(fmt::format("a polyhedron was asked for atom {}, which is not a d-block metal centre",
+                                             atom + 1));
         if (out_.centres.empty()) return std::move(out_);
         for (MetalCentre& c : out_.centres) find_ligands(c);
         count_electrons();
