@@ -318,6 +318,20 @@ std::vector<Case> cases() {
     add("build_hydrogen_only", B, text("[H]"), V);
     c.push_back({"build_time_limit_tiny", B, [] { return repeat("C", 3000); }, R, "gave up after", 120, 1e-9});
 
+    // --- metal centres: every coordination number the model knows, and beyond; impossible electron counts; f block
+    add("build_metal_13_ligands", B, text("[W]" + repeat("([C-]#[O+])", 13)), R, "sites", 60);
+    add("build_metal_12_ligands", B, text("[W-6]" + repeat("([H])", 12)), V, "", 60);
+    add("build_metal_oxidation_beyond_group", B, text("F[Ti](F)(F)(F)F"), R, "oxidation state", 60);
+    add("build_metal_d_count_beyond_ten", B, text("[Zn-3]"), R, "d electrons", 60);
+    add("build_lanthanide", B, text("F[Gd](F)F"), R, "f-block", 60);
+    add("build_metal_hub_10k_carbonyls", B, [] { return "[W]" + repeat("([C-]#[O+])", 10000); }, R, "", 60);
+    add("build_metal_chain_500", B, [] { return "[Cu]" + repeat("[Cu]", 499); }, V, "", 120);
+    add("build_metal_1000_sandwich_ions", B, [] { return repeat("[cH-]1cccc1.", 2000) + repeat("[Fe+2].", 999) + "[Fe+2]"; },
+        V, "", 300);
+    add("build_metal_bonded_to_every_atom_of_a_chain", B, text("C1=C2C3=C4[Fe]1234"), Want::either, "", 60);
+    add("build_metal_mark_of_the_wrong_class", B, text("F[Pt@OH5](F)(F)F"), R, "needs 6", 60);
+    add("build_metal_mark_on_a_tetrahedral_metal", B, text("F[Zn@SP1-2](F)(F)F"), V, "", 60);
+
     // --- `repel check` on hostile coordinates
     add("check_1000_atoms_on_one_point", Step::check_xyz, [] { return xyz_of(1000, [](int) { return "C 0 0 0"; }); },
         Want::either, "", 120);

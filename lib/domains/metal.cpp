@@ -419,6 +419,9 @@ private:
             const ElementData& el = element(a.z);
             c.oxidation_state = a.charge + taken_[k];
             c.d_electrons = el.group - c.oxidation_state;
+            // Beyond ten, the electrons of bonds to other metals (a group-11 metal(0) bonded to another: Cu-Cu, as
+            // the s electron of Cu2 does).
+            if (c.d_electrons > 10 && c.d_electrons - 10 <= c.metal_metal_bonds) c.d_electrons = 10;
             if (c.d_electrons < 0)
                 throw InputError(fmt::format("atom {} ({}): its ligands as written would take {} electrons, leaving "
                                              "oxidation state {:+d}, more than the {} valence electrons of a group-{} "
