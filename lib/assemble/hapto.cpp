@@ -45,6 +45,8 @@ void place_hapto_ligands(const Molecule& skeleton, const MoleculeDomains& domain
     int count = 0;
     const std::vector<int> comp = skeleton.components(&count);
     std::vector<char> moved(at(count), 0);
+    std::vector<std::vector<int>> members_of(at(count));
+    for (int i = 0; i < skeleton.atom_count(); ++i) members_of[at(comp[at(i)])].push_back(i);
     for (const MetalCentre& c : ma.centres) {
         bool any = false;
         for (const LigandDomain& l : c.ligands) any = any || l.hapto();
@@ -102,12 +104,10 @@ void place_hapto_ligands(const Molecule& skeleton, const MoleculeDomains& domain
                     for (const Neighbor& nb : skeleton.neighbors(a)) plane.push_back(pos[at(nb.atom)]);
             }
             Vector3d n = plane_normal(plane);
-            std::vector<int> members;
+            const std::vector<int>& members = members_of[at(piece)];
             Vector3d rest = Vector3d::Zero();
             int nrest = 0;
-            for (int i = 0; i < skeleton.atom_count(); ++i) {
-                if (comp[at(i)] != piece) continue;
-                members.push_back(i);
+            for (int i : members) {
                 if (std::find(lig.atoms.begin(), lig.atoms.end(), i) == lig.atoms.end()) {
                     rest += pos[at(i)];
                     ++nrest;
@@ -119,9 +119,11 @@ void place_hapto_ligands(const Molecule& skeleton, const MoleculeDomains& domain
             const Vector3d target = pm + u * h;
             const Matrix3d q0 = rotation_between(n, u);
             // The turn about the axis that clashes least with what is already in place.
-            std::vector<int> fixed;
-            for (int i = 0; i < skeleton.atom_count(); ++i)
-                if (comp[at(i)] == comp[at(c.atom)] || moved[at(comp[at(i)])]) fixed.push_back(i);
+            // Atoms already in place near this metal: its own piece and the hapto pieces moved onto it.
+            std::vector<int> fixed = members_of[at(comp[at(c.atom)])];
+            for (const LigandDomain& other : c.ligands)
+                if (other.hapto() && moved[at(comp[at(other.atoms[0])])] && comp[at(other.atoms[0])] != piece)
+                    for (int i : members_of[at(comp[at(other.atoms[0])])]) fixed.push_back(i);
             double best_score = 0;
             std::vector<Vector3d> best;
             for (int k = 0; k < kTurns; ++k) {

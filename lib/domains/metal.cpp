@@ -902,8 +902,11 @@ bool is_d_block_metal(int z) {
 bool is_f_block_metal(int z) { return z >= 57 && z <= 71; }
 
 const MetalBond* MetalAnalysis::bond(int donor, int metal) const {
-    for (const MetalBond& b : bonds)
-        if (b.donor == donor && b.metal == metal) return &b;
+    // bonds are in donor order (count_electrons walks the atoms in order): a binary search, then the few of that donor.
+    auto it = std::lower_bound(bonds.begin(), bonds.end(), donor,
+                               [](const MetalBond& b, int d) { return b.donor < d; });
+    for (; it != bonds.end() && it->donor == donor; ++it)
+        if (it->metal == metal) return &*it;
     return nullptr;
 }
 
@@ -914,14 +917,15 @@ MetalAnalysis analyse_metals(const Molecule& molecule, bool solve, const MetalOp
 Molecule without_hapto_bonds(const Molecule& molecule, const MetalAnalysis& metals) {
     if (metals.hapto_bonds.empty()) return molecule;
     Molecule out = molecule;
+    std::vector<char> drop(molecule.bonds.size(), 0);
+    for (const auto& [metal, atom] : metals.hapto_bonds) {
+        const int b = molecule.bond_between(metal, atom);
+        if (b >= 0) drop[at(b)] = 1;
+    }
     std::vector<Bond> kept;
     kept.reserve(molecule.bonds.size());
-    for (const Bond& b : molecule.bonds) {
-        bool hapto = false;
-        for (const auto& [metal, atom] : metals.hapto_bonds)
-            if ((b.a == metal && b.b == atom) || (b.b == metal && b.a == atom)) hapto = true;
-        if (!hapto) kept.push_back(b);
-    }
+    for (size_t b = 0; b < molecule.bonds.size(); ++b)
+        if (!drop[b]) kept.push_back(molecule.bonds[b]);
     out.bonds = std::move(kept);
     out.rebuild_adjacency();
     return out;
