@@ -282,7 +282,9 @@ std::vector<Case> cases() {
     add("sdf_1e300", D, [] { return replaced(kFormaldehydeSdf, "    1.2050    0.0000", "    1e+300    0.0000"); }, R, "beyond");
     add("sdf_bond_to_atom_0", D, [] { return replaced(kFormaldehydeSdf, "  1  2  2  0", "  0  2  2  0"); }, R, "");
     add("sdf_bond_to_atom_99", D, [] { return replaced(kFormaldehydeSdf, "  1  2  2  0", "  1 99  2  0"); }, R, "");
-    add("sdf_bond_type_9", D, [] { return replaced(kFormaldehydeSdf, "  1  2  2  0", "  1  2  9  0"); }, R, "");
+    add("sdf_bond_type_8", D, [] { return replaced(kFormaldehydeSdf, "  1  2  2  0", "  1  2  8  0"); }, R, "bond type 8");
+    // Type 9 is the CTfile's coordination bond: read as a bond (between C and O here: the file is still read).
+    add("sdf_bond_type_9_coordination", D, [] { return replaced(kFormaldehydeSdf, "  1  2  2  0", "  1  2  9  0"); }, V, "");
     add("sdf_chg_count_99", D, [] { return replaced(kFormaldehydeSdf, "M  END", "M  CHG 99   1   1\nM  END"); }, R, "");
     add("sdf_chg_99", D, [] { return replaced(kFormaldehydeSdf, "M  END", "M  CHG  1   1  99\nM  END"); }, R, "charge");
     add("sdf_no_m_end", D, [] { return replaced(kFormaldehydeSdf, "M  END\n", ""); }, R, "");

@@ -1,7 +1,8 @@
 #!/usr/bin/env python3
 """A batch gives the same bytes whatever the parallelism: 1, 2 and 4 threads, --shard slices merged back, MPI ranks.
 
-The input: 10,000 records, the drug set of benchmarks/drug_like.smi repeated with a different name each time
+The input: 10,000 records, the drug set of benchmarks/drug_like.smi and the metal complexes of
+tests/data/metal_complexes.tsv, repeated with a different name each time
 (the repeats make the per-thread caches of the sphere solver warm on some threads and cold on others, which is the
 point: the library promises bit-identical output whatever the thread or cache state).
 
@@ -38,6 +39,12 @@ def make_input(path, count):
             if line.strip() and not line.startswith("#"):
                 smiles, name = line.split(None, 1)
                 drugs.append((smiles, name.strip()))
+    with open(os.path.join(SOURCE, "tests", "data", "metal_complexes.tsv")) as f:
+        for line in f:
+            if line.startswith("#") or line.startswith("name\t") or not line.strip():
+                continue
+            fields = line.rstrip("\n").split("\t")
+            drugs.append((fields[1], fields[0].replace(" ", "_")))
     with open(path, "w") as f:
         for i in range(count):
             smiles, name = drugs[i % len(drugs)]
