@@ -4,6 +4,8 @@
 // Targets (issue 3): at least 1,000 drug-sized molecules per second per core; a 10,000-atom molecule in under 2 s.
 #include <benchmark/benchmark.h>
 
+#include <fstream>
+#include <sstream>
 #include <string>
 #include <vector>
 
@@ -85,6 +87,36 @@ void BM_BuildDrugSetFromText(benchmark::State& state) {
     report_set(state, p);
 }
 BENCHMARK(BM_BuildDrugSetFromText)->Unit(benchmark::kMillisecond);
+
+// The metal complexes of tests/data/metal_complexes.tsv (99 complexes, 2 to 9 coordination sites, chelates,
+// hapto ligands), from text: what `repel build` does per record minus the writer.
+void BM_BuildMetalComplexes(benchmark::State& state) {
+    std::vector<std::string> texts;
+    std::ifstream table(REPEL_SOURCE_DIR "/tests/data/metal_complexes.tsv");
+    for (std::string line; std::getline(table, line);) {
+        if (line.empty() || line[0] == '#' || line.rfind("name\t", 0) == 0) continue;
+        std::istringstream fields(line);
+        std::string name, smiles;
+        std::getline(fields, name, '\t');
+        std::getline(fields, smiles, '\t');
+        try {
+            build_structure(prepare(smiles));
+            texts.push_back(smiles);
+        } catch (const std::exception&) {
+        }
+    }
+    if (texts.empty()) {
+        state.SkipWithError("no complexes read from tests/data/metal_complexes.tsv");
+        return;
+    }
+    for (auto _ : state)
+        for (const std::string& t : texts) benchmark::DoNotOptimize(build_structure(prepare(t)));
+    state.counters["complexes"] = static_cast<double>(texts.size());
+    state.counters["complexes_per_s"] =
+        benchmark::Counter(static_cast<double>(texts.size()) * static_cast<double>(state.iterations()),
+                           benchmark::Counter::kIsRate);
+}
+BENCHMARK(BM_BuildMetalComplexes)->Unit(benchmark::kMillisecond);
 
 // Large molecules. HO-(CH2CH2O)n-H: 7 atoms per unit with hydrogens.
 std::string peg_smiles(int atoms) {
