@@ -256,6 +256,13 @@ TEST(MetalGeometry, ZeiseAnionHasItsAlkenePerpendicularToTheSquare) {
     const Eigen::Vector3d cc = (s.positions[5] - s.positions[4]).normalized();
     EXPECT_GT(std::abs(normal.dot(cc)), 0.9);
     EXPECT_EQ(s.multiplicity, 1);
+    // Trans influence: the Cl trans to the alkene is the longest Pt-Cl (2.34 against 2.30 A, from memory).
+    const Eigen::Vector3d mid = 0.5 * (s.positions[4] + s.positions[5]);
+    int trans = 0;
+    for (int cl : {0, 2, 3})
+        if ((s.positions[static_cast<size_t>(cl)] - pt).normalized().dot((mid - pt).normalized()) < -0.9) trans = cl;
+    for (int cl : {0, 2, 3})
+        if (cl != trans) EXPECT_GT(distance(s, 1, trans), distance(s, 1, cl) + 0.03);
 }
 
 TEST(MetalGeometry, PianoStoolHasItsCarbonylsOnAFace) {

@@ -698,6 +698,7 @@ private:
                 c.directions = *dirs;
                 c.stereo_note = fmt::format("ligands placed as the stereo mark says (OpenSMILES)");
                 if (jahn_teller(c)) elongate(c);
+                if (c.square_planar) trans_influence(c);
                 return;
             }
             c.stereo_note = "mark not applied: " + problem;
@@ -784,6 +785,33 @@ private:
         for (size_t k = 0; k < sigma.size() && k < chosen.size(); ++k) dirs[at(sigma[k])] = sites[chosen[k]];
         c.directions = dirs;
         if (jahn_teller(c)) elongate(c);
+        if (c.square_planar) trans_influence(c);
+    }
+
+    // Trans influence in a square plane: a weak-field donor (halide, O, sp3 N) trans to a ligand of high trans
+    // influence (hydride, a sigma-bonded carbon other than CO and CN-, P, As, an alkene) is longer (common practice:
+    // Zeise's anion Pt-Cl 2.34 A trans to the alkene against 2.30 cis, from memory).
+    static constexpr double kTransInfluence = 0.05;
+    bool strong_trans(const LigandDomain& l) const {
+        if (l.hapto()) return l.atoms.size() == 2;
+        const int donor = l.atoms[0];
+        const int z = m_.atoms[at(donor)].z;
+        if (z == 1 || z == 15 || z == 33) return true;
+        if (z != 6) return false;
+        for (const Neighbor& nb : m_.neighbors(donor))
+            if (!is_metal(nb.atom) && m_.bonds[at(nb.bond)].order == 3) return false;  // CO, CN-
+        return true;
+    }
+    void trans_influence(MetalCentre& c) {
+        const size_t n = c.ligands.size();
+        std::vector<double> add(n, 0.0);
+        for (size_t a = 0; a < n; ++a) {
+            if (c.ligands[a].hapto() || c.ligands[a].field > 1) continue;
+            for (size_t b = 0; b < n; ++b)
+                if (b != a && c.directions[a].dot(c.directions[b]) < -0.9 && strong_trans(c.ligands[b]))
+                    add[a] = kTransInfluence;
+        }
+        for (size_t a = 0; a < n; ++a) c.ligands[a].length += add[a];
     }
 
     // Donor pairs of one chelate: joined by a path of at most kChelatePath bonds that avoids the metal (a chelate
