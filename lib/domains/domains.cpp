@@ -9,6 +9,7 @@
 #include "core/element.hpp"
 #include "core/error.hpp"
 #include "domains/model.hpp"
+#include "input/organic_subset.hpp"
 #include "sphere/sphere.hpp"
 
 namespace repel {
@@ -145,6 +146,17 @@ bool delocalised_lone_pair(const Molecule& m, int i, int lone_pairs, int single_
     return false;
 }
 
+// What the reader made of an organic-subset atom written above every normal valence (OpenSMILES gives it no
+// implicit hydrogens): said in the valence errors, since the SMILES itself is valid.
+std::string as_read(const Molecule& m, int i) {
+    const Atom& a = m.atoms[static_cast<size_t>(i)];
+    const OrganicElement* org = organic_element(a.z);
+    if (a.bracket || org == nullptr || a.charge != 0 || m.bond_order_sum(i) <= org->max_valence()) return "";
+    return fmt::format(" (read as a neutral {} with no hydrogens: bonds of total order {} are above its normal "
+                       "valences, which give hydrogens only below them)",
+                       org->name, m.bond_order_sum(i));
+}
+
 double angle_between(const Eigen::Vector3d& a, const Eigen::Vector3d& b) {
     return std::acos(std::clamp(a.dot(b), -1.0, 1.0)) * 180.0 / M_PI;
 }
@@ -223,17 +235,18 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
         // Non-bonding electrons of the Lewis structure: valence electrons less the formal charge and the bonds.
         const int nonbonding = el.valence_electrons - atom.charge - order_sum;
         if (nonbonding < 0)
-            throw InputError(fmt::format("{} has bonds of total order {}, more than its {} valence electrons allow{}",
+            throw InputError(fmt::format("{} has bonds of total order {}, more than its {} valence electrons allow{}{}",
                                          atom_label(m, i), order_sum, el.valence_electrons,
-                                         atom.charge != 0 ? fmt::format(" with charge {:+d}", atom.charge) : ""),
+                                         atom.charge != 0 ? fmt::format(" with charge {:+d}", atom.charge) : "",
+                                         as_read(m, i)),
                              {}, atom.column);
         // First-row atoms keep a duet, second-row atoms an octet (octet expansion only from period 3 on).
         const int electrons = 2 * order_sum + nonbonding;
         const int limit = el.period == 1 ? 2 : el.period == 2 ? 8 : 1000;
         if (electrons > limit)
             throw InputError(
-                fmt::format("{} would hold {} electrons; a period-{} atom holds at most {}{}", atom_label(m, i),
-                            electrons, el.period, limit,
+                fmt::format("{} would hold {} electrons; a period-{} atom holds at most {}{}{}", atom_label(m, i),
+                            electrons, el.period, limit, as_read(m, i),
                             el.period == 2 ? " (write the formal charges, e.g. [N+](=O)[O-] for a nitro group)" : ""),
                 {}, atom.column);
         c.lone_pairs = nonbonding / 2;
