@@ -288,9 +288,10 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
             std::vector<SphereDomain> sd, arrangement;
             sd.reserve(c.domains.size());
             arrangement.reserve(c.domains.size());
-            for (const Domain& d : c.domains) {
+            for (size_t k = 0; k < c.domains.size(); ++k) {
+                const Domain& d = c.domains[k];
                 sd.push_back({d.weight, d.radius, d.kind == DomainKind::bond ? model.bond_exponent : model.lone_pair_exponent});
-                arrangement.push_back(arrangement_domain(d.kind));
+                arrangement.push_back(arrangement_domain(d.kind, k < orders.size() ? orders[k] : 1.0));
             }
             c.directions = solve_sphere_staged(arrangement, sd);
             const int nbonds = static_cast<int>(m.neighbors(i).size());
