@@ -140,6 +140,8 @@ int run_build(const BuildArgs& args) {
     BuildOptions options;
     options.refine = args.refine;
     options.time_limit = args.time_limit;
+    options.charge = args.charge;
+    options.multiplicity = args.multiplicity;
 
     auto build_one = [&](const std::string& text, const std::string& name) {
         Molecule mol = read_species(text, args.notation);

@@ -4,6 +4,7 @@
 
 #include <fstream>
 #include <istream>
+#include <optional>
 #include <string>
 
 #include "core/limits.hpp"
@@ -27,6 +28,8 @@ struct BuildArgs {
     bool resume = false;      // --resume
     bool progress = true;     // a progress line when standard error is a terminal (--no-progress turns it off)
     double time_limit = kDefaultTimeLimit;  // --time-limit: seconds per molecule (0: none)
+    std::optional<int> charge;        // --charge: must equal the written total charge
+    std::optional<int> multiplicity;  // --multiplicity: written instead of the domain analysis's
 };
 
 struct ShapeArgs {

@@ -348,3 +348,54 @@ TEST(Domains, MultipleBondIsEquatorialInATrigonalBipyramid) {
         EXPECT_EQ(trans, 1);
     }
 }
+
+// Radicals (issue "Main-group chemistry done right"): nitrogen dioxide written [O]N=O is built as the delocalised
+// molecule (odd electron on N, O-N-O 134.1 deg, CRC, from memory), not as nitrite (115); the methyl radical is planar
+// (common practice; D3h); CF3 keeps its domain (pyramidal, from memory).
+TEST(Radicals, OddElectronOfATerminalAtomMovesToThePiCentre) {
+    const MoleculeDomains d = analyse_domains(from_smiles("[O]N=O"));
+    EXPECT_EQ(d.atoms[1].single_electrons, 1);
+    EXPECT_EQ(d.atoms[0].single_electrons, 0);
+    EXPECT_EQ(d.atoms[1].axe, "AX2+e");
+    ASSERT_EQ(d.atoms[1].angles.size(), 1u);
+    EXPECT_NEAR(d.atoms[1].angles[0].degrees, 134.1, 2.0);
+    EXPECT_EQ(d.multiplicity, 2);
+    EXPECT_EQ(d.charge, 0);
+    // The formula path's Lewis structure gives the same angle.
+    EXPECT_NEAR(of("NO2").atoms[0].angles[0].degrees, d.atoms[1].angles[0].degrees, 0.01);
+    // A nitroxide's N has no pi bond: its odd electron stays where it is written.
+    const MoleculeDomains tempo = analyse_domains(from_smiles("CC1(C)CCCC(C)(C)N1[O]"));
+    EXPECT_EQ(tempo.atoms[10].single_electrons, 1);
+}
+
+TEST(Radicals, MethylRadicalIsPlanarTrifluoromethylIsNot) {
+    const MoleculeDomains d = analyse_domains(from_smiles("[CH3]"));
+    EXPECT_EQ(d.atoms[0].steric_number, 3);
+    EXPECT_EQ(d.atoms[0].p_single_electrons, 1);
+    EXPECT_EQ(d.atoms[0].shape, "trigonal planar");
+    for (const PredictedAngle& a : d.atoms[0].angles) EXPECT_NEAR(a.degrees, 120.0, 1e-6);
+    EXPECT_EQ(d.multiplicity, 2);
+    const MoleculeDomains cf3 = analyse_domains(from_smiles("F[C](F)F"));
+    EXPECT_EQ(cf3.atoms[1].steric_number, 4);
+    EXPECT_EQ(cf3.atoms[1].shape, "trigonal pyramidal");
+}
+
+// Ground states of higher spin than the Lewis structure's, with a warning (Hund's rule for free atoms; NH, PH and
+// phenylnitrene are triplets, from memory). Singlet molecules stay singlets.
+TEST(Radicals, GroundStateMultiplicityOfAtomsAndNitrenes) {
+    struct Case {
+        const char* smiles;
+        int multiplicity;
+    };
+    for (const Case& c : {Case{"[C]", 3}, Case{"[N]", 4}, Case{"[O]", 3}, Case{"[F]", 2}, Case{"[Si]", 3},
+                          Case{"[NH]", 3}, Case{"[PH]", 3}, Case{"c1ccccc1[N]", 3}, Case{"O=O", 3}, Case{"[Cl-]", 1},
+                          Case{"[Na+]", 1}, Case{"C", 1}, Case{"CN", 1}, Case{"[CH3]", 2}}) {
+        SCOPED_TRACE(c.smiles);
+        const MoleculeDomains d = analyse_domains(from_smiles(c.smiles));
+        EXPECT_EQ(d.multiplicity, c.multiplicity);
+        bool said = false;
+        for (const std::string& w : d.warnings) said = said || w.find("multiplicity raised by") != std::string::npos;
+        const bool raised = c.multiplicity > d.unpaired_electrons + 1;
+        EXPECT_EQ(said, raised);
+    }
+}

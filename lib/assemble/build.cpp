@@ -123,8 +123,38 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options)
     s.charge = domains.charge;
     s.multiplicity = domains.multiplicity;
     s.warnings = domains.warnings;
+    if (options.charge && *options.charge != domains.charge)
+        throw InputError(fmt::format("total charge {} was asked for, but the written formal charges add up to {}; write "
+                                     "the charges on the atoms (e.g. [NH4+], [O-])",
+                                     *options.charge, domains.charge));
+    if (options.multiplicity) {
+        long electrons = -domains.charge;
+        for (const Atom& a : molecule.atoms) electrons += a.z;
+        const long unpaired = static_cast<long>(*options.multiplicity) - 1;
+        if (*options.multiplicity < 1)
+            throw InputError(fmt::format("multiplicity {} is not possible: it is 2S+1, at least 1", *options.multiplicity));
+        if (unpaired > electrons || (electrons - unpaired) % 2 != 0)
+            throw InputError(fmt::format(
+                "multiplicity {} is not possible for {} electrons: it needs {} unpaired electrons, and an {} electron "
+                "count allows only {} multiplicities ({}){}",
+                *options.multiplicity, electrons, unpaired, electrons % 2 == 0 ? "even" : "odd",
+                electrons % 2 == 0 ? "odd" : "even", electrons % 2 == 0 ? "1, 3, 5, ..." : "2, 4, 6, ...",
+                unpaired > electrons ? fmt::format("; at most {}", electrons + 1) : ""));
+        if (*options.multiplicity != domains.multiplicity) {
+            // The analysis's own ground-state warnings no longer hold; say what was written instead.
+            std::erase_if(s.warnings, [](const std::string& w) {
+                return w.find("multiplicity raised by") != std::string::npos ||
+                       w.find("written high-spin") != std::string::npos;
+            });
+            s.warnings.push_back(fmt::format("multiplicity {} as asked for (the Lewis structure as written gives {}); the "
+                                             "coordinates are those of the structure as written",
+                                             *options.multiplicity, domains.multiplicity));
+        }
+        s.multiplicity = *options.multiplicity;
+    }
     for (int i = 0; i < n; ++i)
-        s.molecule.atoms[static_cast<size_t>(i)].radical_electrons = domains.atoms[static_cast<size_t>(i)].single_electrons;
+        s.molecule.atoms[static_cast<size_t>(i)].radical_electrons =
+            domains.atoms[static_cast<size_t>(i)].single_electrons + domains.atoms[static_cast<size_t>(i)].p_single_electrons;
 
     std::vector<ChiralTarget> chiral;
     for (const ChiralTarget& t : chiral_targets(molecule, s.warnings)) {

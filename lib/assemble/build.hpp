@@ -1,6 +1,8 @@
 // Whole-molecule building: domain frames assembled into Cartesian coordinates, then refined.
 #pragma once
 
+#include <optional>
+
 #include "core/limits.hpp"
 #include "graph/molecule.hpp"
 
@@ -29,6 +31,13 @@ struct BuildOptions {
     // 17.1 (diazepam's seven-membered ring; 15-17 in the other benzodiazepines), G2 worst 11.3 outside warned systems
     // (measured): 25 keeps a margin of half that, and the porphine this check was written for had 29.
     double angle_outlier = 25.0;
+    // The total charge the caller states: it must equal the sum of the written formal charges (an InputError
+    // otherwise; the charges belong on the atoms). Unset: not checked.
+    std::optional<int> charge;
+    // The spin multiplicity to write instead of the one the domain analysis gives (its Lewis structure, raised for
+    // the ground states it knows). Checked against the electron count: multiplicity - 1 unpaired electrons, of the
+    // parity of the electron count and at most that many (an InputError otherwise). Coordinates are not changed.
+    std::optional<int> multiplicity;
 };
 
 // 3D coordinates for a molecule whose hydrogens are explicit (Molecule::make_hydrogens_explicit()).

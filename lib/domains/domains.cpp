@@ -146,6 +146,52 @@ bool delocalised_lone_pair(const Molecule& m, int i, int lone_pairs, int single_
     return false;
 }
 
+// The odd electron of a radical written on a terminal atom next to a centre with a pi bond and a lone pair ([O]N=O,
+// nitrogen dioxide as databases write it) moves to that centre, as in the charge-separated resonance structure
+// [O-][N+](=O) with the odd electron on N (the formula path's least-formal-charge Lewis structure alike): NO2's odd
+// electron sits largely on N and its angle is 134 deg (CRC, from memory), where the structure as written is nitrite's
+// 115. Returns the charge each atom's electron count is taken with (the written charges stay as written).
+std::vector<int> counting_charges(const Molecule& m) {
+    std::vector<int> q(m.atoms.size());
+    for (size_t i = 0; i < m.atoms.size(); ++i) q[i] = m.atoms[i].charge;
+    auto nonbonding = [&](int i) {
+        const Atom& a = m.atoms[static_cast<size_t>(i)];
+        return element(a.z).valence_electrons - q[static_cast<size_t>(i)] - m.bond_order_sum(i) - std::max(0, a.hydrogens);
+    };
+    for (int t = 0; t < m.atom_count(); ++t) {
+        const Atom& a = m.atoms[static_cast<size_t>(t)];
+        if (a.charge != 0 || m.degree(t) != 1 || a.hydrogens > 0 || is_transition_metal(a.z)) continue;
+        if (nonbonding(t) < 1 || nonbonding(t) % 2 != 1) continue;
+        const Neighbor& nb = m.neighbors(t)[0];
+        const int c = nb.atom;
+        const Atom& ca = m.atoms[static_cast<size_t>(c)];
+        if (ca.charge != 0 || q[static_cast<size_t>(c)] != 0 || is_transition_metal(ca.z) || nonbonding(c) < 2 ||
+            nonbonding(c) % 2 != 0 || m.bonds[static_cast<size_t>(nb.bond)].order != 1)
+            continue;
+        bool pi = false;
+        for (const Neighbor& nn : m.neighbors(c))
+            if (nn.atom != t && m.bonds[static_cast<size_t>(nn.bond)].order >= 2) pi = true;
+        if (!pi) continue;
+        q[static_cast<size_t>(t)] = -1;
+        q[static_cast<size_t>(c)] = +1;
+    }
+    return q;
+}
+
+// Unpaired electrons of a free main-group atom in its ground state (Hund's rule, common practice): p-block atoms
+// min(p, 6 - p) for p electrons in the p shell (C, O, Si, S: 3P; N, P: 4S), s-block atoms their odd s electron.
+int free_atom_unpaired(int z, int charge) {
+    const ElementData& e = element(z);
+    const int electrons = e.valence_electrons - charge;
+    if (electrons < 0) return 0;
+    if (e.group >= 13 && e.group <= 18) {
+        const int p = electrons - 2;
+        return p <= 0 ? electrons % 2 : std::max(0, std::min(p, 6 - p));
+    }
+    if (e.group <= 2) return electrons % 2;
+    return -1;  // not said here
+}
+
 // What the reader made of an organic-subset atom written above every normal valence (OpenSMILES gives it no
 // implicit hydrogens): said in the valence errors, since the SMILES itself is valid.
 std::string as_read(const Molecule& m, int i) {
@@ -221,6 +267,7 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
     const DomainModel& model = domain_model();
     MoleculeDomains out;
     out.atoms.resize(m.atoms.size());
+    const std::vector<int> counting = counting_charges(m);
     for (int i = 0; i < m.atom_count(); ++i) {
         const Atom& atom = m.atoms[static_cast<size_t>(i)];
         if (is_transition_metal(atom.z))
@@ -233,7 +280,7 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
         c.atom = i;
         const int order_sum = m.bond_order_sum(i) + std::max(0, atom.hydrogens);
         // Non-bonding electrons of the Lewis structure: valence electrons less the formal charge and the bonds.
-        const int nonbonding = el.valence_electrons - atom.charge - order_sum;
+        const int nonbonding = el.valence_electrons - counting[static_cast<size_t>(i)] - order_sum;
         if (nonbonding < 0)
             throw InputError(fmt::format("{} has bonds of total order {}, more than its {} valence electrons allow{}{}",
                                          atom_label(m, i), order_sum, el.valence_electrons,
@@ -256,11 +303,25 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
             --c.lone_pairs;
         }
         c.bonded = m.degree(i) + std::max(0, atom.hydrogens);
+        // A period-2 radical centre with three bonds and nothing else is planar, its odd electron in the p orbital
+        // (common practice; the methyl radical is planar, D3h: Herzberg, from memory). Electronegative ligands
+        // pyramidalise it (CF3 is pyramidal, F-C-F about 111 deg, from memory), so F, O and Cl keep the domain.
+        if (el.period == 2 && c.single_electrons == 1 && c.lone_pairs == 0 && c.bonded == 3) {
+            bool electronegative = false;
+            for (const Neighbor& nb : m.neighbors(i)) {
+                const int z = m.atoms[static_cast<size_t>(nb.atom)].z;
+                electronegative = electronegative || z == 8 || z == 9 || z == 17;
+            }
+            if (!electronegative) {
+                c.single_electrons = 0;
+                c.p_single_electrons = 1;
+            }
+        }
         c.steric_number = c.bonded + c.lone_pairs + c.single_electrons;
         c.axe = axe_class(c.bonded, c.lone_pairs, c.single_electrons);
         c.electron_geometry = electron_geometry_name(c.steric_number);
         c.shape = shape_name(c.bonded, c.lone_pairs + c.single_electrons);
-        out.unpaired_electrons += c.single_electrons;
+        out.unpaired_electrons += c.single_electrons + c.p_single_electrons;
 
         const std::vector<double> orders = effective_orders(m, i);
         for (size_t k = 0; k < m.neighbors(i).size(); ++k) {
@@ -392,6 +453,33 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve) {
             c.lone_pairs == 1 && m.bond_order_sum(i) == 2)
             out.warnings.push_back(fmt::format(
                 "atom {}: a carbene, written as a singlet; its ground state may be a triplet (CH2's is)", i + 1));
+    }
+    // Ground states of higher spin than the Lewis structure's, by default with a warning (common practice): a free
+    // atom follows Hund's rule (C, O: triplet; N: quartet), and a nitrene R-N or R-P (one single bond, two lone pairs,
+    // neutral) is a triplet (NH, PH, phenylnitrene, from memory). repel build --multiplicity overrides.
+    for (int i = 0; i < m.atom_count(); ++i) {
+        const Atom& a = m.atoms[static_cast<size_t>(i)];
+        const CentreDomains& c = out.atoms[static_cast<size_t>(i)];
+        if (is_transition_metal(a.z)) continue;
+        const int written = c.single_electrons + c.p_single_electrons;
+        if (c.bonded == 0) {
+            const int hund = free_atom_unpaired(a.z, a.charge);
+            if (hund > written && (hund - written) % 2 == 0) {
+                out.multiplicity += hund - written;
+                out.warnings.push_back(fmt::format(
+                    "atom {}: a free {} atom; its ground state has {} unpaired electrons (Hund's rule): multiplicity "
+                    "raised by {} (give the multiplicity to build another state)",
+                    i + 1, element(a.z).symbol, hund, hund - written));
+            }
+        } else if (element(a.z).group == 15 && a.charge == 0 && c.bonded == 1 && written == 0 &&
+                   m.bond_order_sum(i) + std::max(0, a.hydrogens) == 1 &&
+                   c.lone_pairs + c.delocalised_lone_pairs == 2) {
+            out.multiplicity += 2;
+            out.warnings.push_back(fmt::format(
+                "atom {}: a nitrene; its ground state is a triplet (NH, phenylnitrene): multiplicity raised by 2 (give "
+                "the multiplicity to build the singlet)",
+                i + 1));
+        }
     }
     if (out.unpaired_electrons > 1)
         out.warnings.push_back(fmt::format("{} unpaired electrons on different atoms: written high-spin, multiplicity {}",

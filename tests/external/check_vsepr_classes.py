@@ -426,6 +426,39 @@ def main():
                 f'{text}: comment has charge={charge} multiplicity={mult}, got charge={fields.get("charge")} '
                 f'multiplicity={fields.get("multiplicity")}')
 
+    # ---- radicals and spin: NO2 as databases write it ([O]N=O) is the delocalised radical (O-N-O 134.1 deg, CRC,
+    # from memory), the methyl radical planar (common practice); the ground states of free atoms (Hund's rule) and of
+    # nitrenes (NH, phenylnitrene: triplets, from memory) are written by default; --multiplicity and --charge.
+    got = build('[O]N=O')
+    if got:
+        _, c, fields = got
+        x = angle_deg(c[0], c[1], c[2])
+        t.check(abs(x - 134.1) <= 3.0 and fields.get('multiplicity') == '2',
+                f'[O]N=O: O-N-O {x:.2f} within 3 of 134.1 (CRC, from memory), multiplicity 2')
+    got = build('[CH3]')
+    if got:
+        _, c, _ = got
+        total = sum(angle_deg(c[i], c[0], c[j]) for i, j in ((1, 2), (1, 3), (2, 3)))
+        t.check(abs(total - 360.0) <= 0.5, f'[CH3]: planar, H-C-H angles sum to {total:.2f} (360, common practice)')
+    for text, mult in (('[C]', 3), ('[N]', 4), ('[NH]', 3), ('c1ccccc1[N]', 3)):
+        got = build(text)
+        if got:
+            t.check(got[2].get('multiplicity') == str(mult) and 'multiplicity raised' in got[2].get('warnings', ''),
+                    f'{text}: multiplicity {mult} by default, with a warning (got {got[2].get("multiplicity")})')
+    r = run_repel(exe, ['build', '[CH2]', '--multiplicity', '3', '--format', 'sdf'])
+    t.check(r.returncode == 0 and '> <multiplicity>\n3\n' in r.stdout, '[CH2] --multiplicity 3: SDF says 3')
+    r = run_repel(exe, ['build', 'C', '--multiplicity', '2'])
+    t.check(r.returncode == 2 and 'not possible' in r.stderr, f'C --multiplicity 2 refused (10 electrons): {r.stderr.strip()}')
+    r = run_repel(exe, ['build', '[NH4+]', '--charge', '0'])
+    t.check(r.returncode == 2 and 'formal charges add up to 1' in r.stderr, '[NH4+] --charge 0 refused with the sum')
+    r = run_repel(exe, ['build', '[NH4+]', '--charge', '1', '--format', 'json'])
+    t.check(r.returncode == 0 and '"charge": 1' in r.stdout, '[NH4+] --charge 1 builds')
+    smi = os.path.join(tmp, 'spin.smi')
+    with open(smi, 'w') as f:
+        f.write('[CH2] methylene\nO=O dioxygen\nC methane\n')
+    r = run_repel(exe, ['build', '-i', smi, '--multiplicity', '3', '--format', 'xyz', '-j', '1'])
+    t.check(r.returncode == 0 and r.stdout.count('multiplicity=3') == 3, 'batch with --multiplicity 3: three records at 3')
+
     t.finish(tmp)
 
 
