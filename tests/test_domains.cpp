@@ -399,3 +399,22 @@ TEST(Radicals, GroundStateMultiplicityOfAtomsAndNitrenes) {
         EXPECT_EQ(said, raised);
     }
 }
+
+// Three-coordinate boron is a pi acceptor: the lone pair of an N or O beside it goes into boron's empty p orbital,
+// so aminoboranes and borazine are planar at N (common practice; Me2N-BMe2 planar C2NBC2 skeleton, from memory) and
+// boronic esters and acids open at O. Before, Me2N-BMe2's C-N-C came out 106 deg and borazine puckered.
+TEST(DelocalisedLonePairs, BoronTakesTheLonePairOfItsNeighbour) {
+    const MoleculeDomains amino = analyse_domains(from_smiles("CN(C)B(C)C"));
+    EXPECT_EQ(amino.atoms[1].axe, "AX3");
+    EXPECT_EQ(amino.atoms[1].delocalised_lone_pairs, 1);
+    double sum = 0;
+    for (const PredictedAngle& a : amino.atoms[1].angles) sum += a.degrees;
+    EXPECT_NEAR(sum, 360.0, 0.1);
+    const MoleculeDomains borazine = analyse_domains(from_smiles("B1NBNBN1"));
+    for (int n : {1, 3, 5}) EXPECT_EQ(borazine.atoms[static_cast<size_t>(n)].axe, "AX3");
+    const MoleculeDomains acid = analyse_domains(from_smiles("OB(O)c1ccccc1"));
+    EXPECT_EQ(acid.atoms[0].axe, "AX2E");
+    // A four-coordinate borate has no empty orbital: its O keeps both pairs.
+    const MoleculeDomains borate = analyse_domains(from_smiles("CO[B-](OC)(OC)OC"));
+    EXPECT_EQ(borate.atoms[1].axe, "AX2E2");
+}

@@ -120,7 +120,16 @@ std::vector<double> length_orders(const Molecule& m) {
 // - an oxygen only between two heavy atoms: the hydroxyl O of an acid does not open (G2, MP2(full)/6-31G(d):
 //   C-O-H 106.0 in formic, 105.4 in acetic acid, against 107.4 in methanol), where counting its pair as delocalised
 //   would give 111; the opening at an oxygen comes with two heavy ligands (ester, nitrite, aryl and enol ethers).
+// - or bonded to a three-coordinate neutral boron with single bonds only (an empty p orbital: aminoboranes, borazine,
+//   boronic esters and acids are planar at N and O, common practice); next to boron a hydroxyl O counts too (the
+//   B-O-H of boronic acids opens to about 113 deg, from memory).
 // At most one pair per atom is delocalised.
+bool empty_p_boron(const Molecule& m, int j) {
+    const Atom& b = m.atoms[static_cast<size_t>(j)];
+    return b.z == 5 && b.charge == 0 && m.degree(j) + std::max(0, b.hydrogens) == 3 &&
+           m.bond_order_sum(j) + std::max(0, b.hydrogens) == 3;
+}
+
 bool delocalised_lone_pair(const Molecule& m, int i, int lone_pairs, int single_electrons) {
     const Atom& a = m.atoms[static_cast<size_t>(i)];
     if ((a.z != 7 && a.z != 8) || a.charge != 0 || lone_pairs < 1 || single_electrons != 0) return false;
@@ -129,13 +138,16 @@ bool delocalised_lone_pair(const Molecule& m, int i, int lone_pairs, int single_
         if (m.bonds[static_cast<size_t>(nb.bond)].order != 1) return false;
         if (m.atoms[static_cast<size_t>(nb.atom)].z != 1) ++heavy;
     }
-    if (a.z == 8 && (heavy != 2 || a.hydrogens > 0)) return false;
     const auto& nbs = m.neighbors(i);
+    bool boron = false;
+    for (const Neighbor& nb : nbs) boron = boron || empty_p_boron(m, nb.atom);
+    if (a.z == 8 && !boron && (heavy != 2 || a.hydrogens > 0)) return false;
     for (size_t p = 0; p < nbs.size(); ++p)
         for (size_t q = p + 1; q < nbs.size(); ++q)
             if (m.bond_between(nbs[p].atom, nbs[q].atom) >= 0) return false;
     for (const Neighbor& nb : nbs) {
         const Atom& j = m.atoms[static_cast<size_t>(nb.atom)];
+        if (empty_p_boron(m, nb.atom)) return true;
         if (element(j.z).period != 2 || j.charge < 0) continue;
         for (const Neighbor& nn : m.neighbors(nb.atom)) {
             if (nn.atom == i) continue;
