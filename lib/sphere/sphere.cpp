@@ -2,6 +2,7 @@
 
 #include <nlopt.h>
 
+#include <Eigen/Eigenvalues>
 #include <Eigen/Geometry>
 #include <algorithm>
 #include <cmath>
@@ -156,12 +157,95 @@ double relax(const Problem& pb, std::vector<Vector3d>& points) {
     return energy_and_gradient(pb, x.data(), nullptr);
 }
 
+// Newton steps on the gradient after the minimiser: its stops are on the energy (ftol, xtol), and near a minimum the
+// energy changes only quadratically, so it ends about 1e-8 from the minimum at a point that depends on where it
+// started. Two seeds of the same basin (the staged solve starts from different arrangement sites when an arrangement
+// kind is added) then gave directions 1e-8 apart, which the assembly amplified to 0.01-0.07 A (strychnine; measured).
+// The gradient is accurate to round-off, so a few Newton steps bring every start to the same point within about
+// 1e-14. The Hessian is taken by central differences of the analytic gradient (its error only slows convergence).
+constexpr double kPolishStep = 1e-5;         // finite-difference step in the coordinates x (a choice)
+// Eigenvalues of the null modes (rotations, |x| and, under symmetry, the directions it removes) are of the order of
+// the gradient's norm and of round-off, of either sign: below this fraction of the largest plus this multiple of the
+// gradient's norm a mode is not inverted, and only a more negative one stops the polish (a saddle).
+constexpr double kPolishEigenFloor = 1e-9;
+constexpr double kPolishNullFactor = 100.0;
+constexpr double kPolishMaxMove = 1e-4;      // a Newton step longer than this is not a polish: left as it is
+constexpr int kPolishIterations = 6;
+// The directions returned are rounded to this grid (2^-30, about 1e-9) after the polish, so that results agreeing to
+// the polish's precision are bit-identical, whatever seed or path led to them.
+constexpr double kDirectionGrid = 1.0 / 1073741824.0;
+
 struct Seed {
     std::vector<Vector3d> points;  // in the problem's domain order
     double energy;
     std::vector<SymmetryOperation> symmetry;  // operations the relaxation keeps (staged solve only); empty: none
     std::vector<Vector3d> anchors;            // the arrangement sites (staged solve only); empty: none
 };
+
+double gradient_norm(const std::vector<double>& g) {
+    double s = 0;
+    for (double v : g) s += v * v;
+    return std::sqrt(s);
+}
+
+// Polishes a relaxed minimum in place (see kPolishStep); stops at the first step that would not be a small move to
+// a lower gradient at no higher energy (a saddle, or a minimum already at round-off).
+void polish(const Problem& pb, std::vector<Vector3d>& points) {
+    const int m = 3 * pb.n;
+    std::vector<double> x(static_cast<size_t>(m)), g(static_cast<size_t>(m)), xp(static_cast<size_t>(m)),
+        gp(static_cast<size_t>(m)), gm(static_cast<size_t>(m));
+    for (int i = 0; i < pb.n; ++i)
+        for (int c = 0; c < 3; ++c) x[static_cast<size_t>(3 * i + c)] = points[static_cast<size_t>(i)][c];
+    double e = nlopt_objective(0, x.data(), g.data(), const_cast<Problem*>(&pb));
+    double gnorm = gradient_norm(g);
+    Eigen::MatrixXd h(m, m);
+    for (int it = 0; it < kPolishIterations && gnorm > 0; ++it) {
+        for (int k = 0; k < m; ++k) {
+            xp = x;
+            xp[static_cast<size_t>(k)] += kPolishStep;
+            nlopt_objective(0, xp.data(), gp.data(), const_cast<Problem*>(&pb));
+            xp[static_cast<size_t>(k)] -= 2 * kPolishStep;
+            nlopt_objective(0, xp.data(), gm.data(), const_cast<Problem*>(&pb));
+            for (int r = 0; r < m; ++r)
+                h(r, k) = (gp[static_cast<size_t>(r)] - gm[static_cast<size_t>(r)]) / (2 * kPolishStep);
+        }
+        const Eigen::MatrixXd hs = 0.5 * (h + h.transpose());
+        Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> eig(hs);
+        if (eig.info() != Eigen::Success) break;
+        const Eigen::VectorXd& lambda = eig.eigenvalues();
+        const double floor = kPolishEigenFloor * lambda.cwiseAbs().maxCoeff() + kPolishNullFactor * gnorm;
+        if (lambda.minCoeff() < -floor) break;  // not a minimum in every direction: leave it to the minimiser
+        const Eigen::Map<const Eigen::VectorXd> gv(g.data(), m);
+        Eigen::VectorXd step = Eigen::VectorXd::Zero(m);
+        for (int k = 0; k < m; ++k)
+            if (lambda[k] > floor) step -= (eig.eigenvectors().col(k).dot(gv) / lambda[k]) * eig.eigenvectors().col(k);
+        if (!(step.norm() <= kPolishMaxMove)) break;
+        for (int k = 0; k < m; ++k) xp[static_cast<size_t>(k)] = x[static_cast<size_t>(k)] + step[k];
+        for (int i = 0; i < pb.n; ++i) {  // back onto the unit sphere, where the gradient was taken
+            Vector3d v(xp[static_cast<size_t>(3 * i)], xp[static_cast<size_t>(3 * i + 1)], xp[static_cast<size_t>(3 * i + 2)]);
+            v.normalize();
+            for (int c = 0; c < 3; ++c) xp[static_cast<size_t>(3 * i + c)] = v[c];
+        }
+        const double ep = nlopt_objective(0, xp.data(), gp.data(), const_cast<Problem*>(&pb));
+        const double gpn = gradient_norm(gp);
+        if (!(gpn < gnorm) || ep > e + 1e-12 * std::abs(e)) break;
+        const bool converging = gpn < 0.5 * gnorm;  // else at round-off: further steps only cost
+        x = xp;
+        g = gp;
+        e = ep;
+        gnorm = gpn;
+        if (!converging) break;
+    }
+    if (pb.symmetry) {
+        std::vector<double> sx(x.size());
+        symmetrize(*pb.symmetry, pb.n, x.data(), sx.data());
+        x = sx;
+    }
+    for (int i = 0; i < pb.n; ++i)
+        points[static_cast<size_t>(i)] =
+            Vector3d(x[static_cast<size_t>(3 * i)], x[static_cast<size_t>(3 * i + 1)], x[static_cast<size_t>(3 * i + 2)])
+                .normalized();
+}
 
 // Every distinct placement of the domain kinds on the vertices of each starting polyhedron.
 std::vector<Seed> seeds_for(const std::vector<SphereDomain>& sorted, const std::vector<int>& kind) {
@@ -260,18 +344,23 @@ std::vector<Vector3d> best_of(const std::vector<SphereDomain>& sorted, std::vect
         std::stable_sort(seeds.begin(), seeds.end(), [](const Seed& a, const Seed& b) { return a.energy < b.energy; });
         seeds.resize(kMaxRelaxedSeeds);
     }
-    std::vector<Vector3d> best;
+    const Seed* best = nullptr;
     double best_e = INFINITY;
+    auto problem = [&](const Seed& s) {
+        return Problem{sorted.data(), static_cast<int>(sorted.size()), s.symmetry.empty() ? nullptr : &s.symmetry,
+                       s.anchors.empty() ? nullptr : &s.anchors};
+    };
     for (Seed& s : seeds) {
-        Problem pb{sorted.data(), static_cast<int>(sorted.size()), s.symmetry.empty() ? nullptr : &s.symmetry,
-                   s.anchors.empty() ? nullptr : &s.anchors};
-        double e = relax(pb, s.points);
+        double e = relax(problem(s), s.points);
         if (e < best_e * (1 - 1e-12)) {
             best_e = e;
-            best = s.points;
+            best = &s;
         }
     }
-    return best;
+    if (!best) return {};
+    std::vector<Vector3d> points = best->points;
+    polish(problem(*best), points);
+    return points;
 }
 
 // The global solve in canonical domain order; the result is what the cache keeps.
@@ -446,6 +535,7 @@ std::vector<Vector3d> solve(std::span<const SphereDomain> arrangement, std::span
     std::vector<Vector3d> out(domains.size());
     for (size_t k = 0; k < order.size(); ++k) out[static_cast<size_t>(order[k])] = (*solution)[k];
     canonical_frame(out);
+    for (Vector3d& p : out) p = ((p / kDirectionGrid).array().round() * kDirectionGrid).matrix().normalized();
     return out;
 }
 
