@@ -140,6 +140,8 @@ int run_build(const BuildArgs& args) {
     BuildOptions options;
     options.refine = args.refine;
     options.time_limit = args.time_limit;
+    options.charge = args.charge;
+    options.multiplicity = args.multiplicity;
     try {
         options.metals = metal_options(args.polyhedra);
     } catch (const std::exception& e) {

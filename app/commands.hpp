@@ -4,6 +4,7 @@
 
 #include <fstream>
 #include <istream>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -30,6 +31,8 @@ struct BuildArgs {
     bool progress = true;     // a progress line when standard error is a terminal (--no-progress turns it off)
     double time_limit = kDefaultTimeLimit;  // --time-limit: seconds per molecule (0: none)
     std::vector<std::string> polyhedra;     // --polyhedron ATOM=NAME, for metal centres
+    std::optional<int> charge;        // --charge: must equal the written total charge
+    std::optional<int> multiplicity;  // --multiplicity: written instead of the domain analysis's
 };
 
 struct ShapeArgs {

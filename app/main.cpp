@@ -58,6 +58,15 @@ int run(int argc, char** argv) {
                           "seconds one molecule may take before it fails as a record (0: no limit)")
         ->check(CLI::NonNegativeNumber)
         ->capture_default_str();
+    int build_charge = 0, build_multiplicity = 1;
+    auto* build_charge_opt = cmd_build->add_option(
+        "--charge", build_charge,
+        "total charge; must equal the sum of the formal charges written on the atoms (a check, for every record)");
+    auto* build_mult_opt = cmd_build->add_option(
+        "--multiplicity", build_multiplicity,
+        "spin multiplicity 2S+1 to write for every record (default: the ground state where it is known, else the "
+        "Lewis structure's unpaired electrons + 1); checked against the electron count")
+        ->check(CLI::Range(1, 1000));
     auto* in_opt = cmd_build->get_option("INPUT");
     auto* file_opt = cmd_build->get_option("--input");
     in_opt->excludes(file_opt);
@@ -133,6 +142,8 @@ int run(int argc, char** argv) {
         }
         build.notation = notation(build_formula, build_smiles);
         build.refine = !no_refine;
+        if (build_charge_opt->count() > 0) build.charge = build_charge;
+        if (build_mult_opt->count() > 0) build.multiplicity = build_multiplicity;
         return run_build(build);
     }
     if (cmd_shape->parsed()) {

@@ -90,7 +90,7 @@ inline double predict(const DomainModel& model, const Case& c) {
     std::vector<SphereDomain> d, arrangement;
     for (auto [z, order] : c.ligands) {
         d.push_back(bonding_domain(model, c.centre, z, order));
-        arrangement.push_back(arrangement_domain(DomainKind::bond));
+        arrangement.push_back(arrangement_domain(DomainKind::bond, order));
     }
     for (int k = 0; k < c.lone_pairs; ++k) {
         d.push_back(lone_pair_domain(model, c.centre));

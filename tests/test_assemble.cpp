@@ -668,3 +668,30 @@ TEST(Build, SelfCheckIsSilentOnDrugsAndG2) {
     EXPECT_EQ(drugs, 102);
     EXPECT_GT(g2, 100);
 }
+
+// BuildOptions::charge is a check of the written charges; BuildOptions::multiplicity replaces the analysis's and is
+// checked against the electron count (multiplicity - 1 unpaired electrons, of the parity of the electron count).
+TEST(BuildOptionsSpin, ChargeMustMatchAndMultiplicityMustFitTheElectrons) {
+    auto with = [](const std::string& smiles, std::optional<int> charge, std::optional<int> multiplicity) {
+        Molecule m = read_smiles(smiles);
+        m.make_hydrogens_explicit();
+        BuildOptions o;
+        o.charge = charge;
+        o.multiplicity = multiplicity;
+        return build_structure(m, o);
+    };
+    EXPECT_EQ(with("[NH4+]", 1, std::nullopt).charge, 1);
+    EXPECT_THROW(with("[NH4+]", 0, std::nullopt), InputError);
+    const Structure singlet = with("[CH2]", std::nullopt, 3);
+    EXPECT_EQ(singlet.multiplicity, 3);
+    EXPECT_EQ(with("c1ccccc1[N]", std::nullopt, 1).multiplicity, 1);  // the singlet nitrene on request
+    EXPECT_EQ(with("[O]N=O", 0, 4).multiplicity, 4);                   // 23 electrons: 2, 4, ... possible
+    EXPECT_THROW(with("C", std::nullopt, 2), InputError);              // 10 electrons: odd multiplicities only
+    EXPECT_THROW(with("[H][H]", std::nullopt, 5), InputError);         // 4 unpaired of 2 electrons
+    EXPECT_THROW(with("C", std::nullopt, 0), InputError);
+    try {
+        with("C", std::nullopt, 2);
+    } catch (const InputError& e) {
+        EXPECT_NE(std::string(e.what()).find("odd multiplicities"), std::string::npos) << e.what();
+    }
+}

@@ -112,7 +112,8 @@ std::vector<Case> cases() {
     add("chain_100k", S, [] { return repeat("C", 100000); }, V, "", 120);
     add("chain_1m_atoms", S, [] { return repeat("C", kMaxAtoms); }, V, "", 600);
     add("chain_over_atom_limit", S, [] { return repeat("C", kMaxAtoms + 1); }, R, "more than 1000000 atoms", 300);
-    add("hub_with_100k_branches", S, [] { return "C" + repeat("(C)", 100000); }, R, "valence", 120);
+    // Read (OpenSMILES: no implicit hydrogens above every normal valence), refused by the domain analysis.
+    add("hub_with_100k_branches", Step::build, [] { return "C" + repeat("(C)", 100000); }, R, "valence electrons", 120);
     add("xenon_with_10k_fluorines", S, [] { return "[Xe]" + repeat("(F)", 10000); }, V, "", 60);  // builds fail
     add("bracket_chain_50k", S, [] { return repeat("[CH2]", 50000); }, V, "", 120);
     add("double_bond_chain_20k", S, [] { return repeat("C=C", 10000); }, Want::either, "", 60);

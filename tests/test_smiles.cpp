@@ -460,6 +460,45 @@ TEST(SmilesWrite, SimpleMoleculesReadBackAsWritten) {
     EXPECT_EQ(write_smiles(Molecule{}), "");
 }
 
+// OpenSMILES v1.0, "Atoms", "Organic Subset": an organic-subset atom whose bond orders sum above every normal valence
+// has no implicit hydrogens ("... or is greater than any known valence then the implicit hydrogen count is 0"). These
+// are hypervalent molecules as databases write them; the writer keeps them bare, and an atom with no hydrogens that the
+// reader would give some stays in brackets.
+TEST(SmilesRead, OrganicSubsetAboveItsNormalValencesHasNoHydrogens) {
+    struct Case {
+        const char* smiles;
+        int atom;       // 0-based, the hypervalent atom
+        int bonds;      // its bond-order sum
+    };
+    const Case cases[] = {
+        {"FCl(F)F", 1, 3},                            // ClF3
+        {"FCl(F)(F)(F)F", 1, 5},                      // ClF5
+        {"O=I(=O)(=O)[O-]", 1, 7},                    // periodate
+        {"CC(=O)OI(OC(C)=O)c1ccccc1", 4, 3},         // (diacetoxyiodo)benzene
+        {"FBr(F)F", 1, 3},                            // BrF3
+        {"FI(F)(F)(F)(F)(F)F", 1, 7},                 // IF7
+        {"O=Cl(=O)(=O)O", 1, 7},                      // perchloric acid
+        {"FS(F)(F)(F)(F)(F)F", 1, 7},                 // over sulfur's 6: read, refused by the domain analysis
+    };
+    for (const Case& c : cases) {
+        SCOPED_TRACE(c.smiles);
+        const Molecule m = read_smiles(c.smiles);
+        EXPECT_EQ(m.atoms[static_cast<size_t>(c.atom)].hydrogens, 0);
+        EXPECT_EQ(m.bond_order_sum(c.atom), c.bonds);
+        const std::string written = write_smiles(m);
+        const Molecule back = read_smiles(written);
+        ASSERT_EQ(back.atom_count(), m.atom_count()) << written;
+        for (int i = 0; i < m.atom_count(); ++i)
+            EXPECT_EQ(back.atoms[static_cast<size_t>(i)].hydrogens, m.atoms[static_cast<size_t>(i)].hydrogens) << written;
+    }
+    EXPECT_EQ(write_smiles(read_smiles("FCl(F)F")), "FCl(F)F");
+    EXPECT_EQ(write_smiles(read_smiles("F[Cl]F")), "FClF");        // above chlorine's 1: bare means no hydrogens
+    EXPECT_EQ(write_smiles(read_smiles("F[S](F)(F)F")), "FS(F)(F)F");  // at sulfur's 4 alike
+    // Below a normal valence a bare atom would get hydrogens, so one written with none stays in brackets.
+    EXPECT_EQ(write_smiles(read_smiles("F[P]F")), "F[P]F");
+    EXPECT_EQ(write_smiles(read_smiles("F[S](F)(F)(F)F")), "F[S](F)(F)(F)F");
+}
+
 TEST(SmilesRead, AtomFieldsAndColumns) {
     const Molecule m = read_smiles("C[13CH2:4][O-].[Fe+3]");
     ASSERT_EQ(m.atom_count(), 4);

@@ -7,6 +7,7 @@
 #include <vector>
 
 #include "core/error.hpp"
+#include "domains/domains.hpp"
 #include "input/smiles.hpp"
 
 using namespace repel;
@@ -111,18 +112,6 @@ const std::vector<BadCase> kBad = {
     {"C.", 2, "ends after '.'"},
     {"[Na+].[Cl-].", 12, "ends after '.'"},
     {"C.=C", 3, "after '.'"},
-    // valence of the organic subset
-    {"C(C)(C)(C)(C)C", 1, "carbon has 5 bonds; its valence allows at most 4"},
-    {"FC(F)(F)(F)F", 2, "carbon has 5 bonds"},
-    {"C=C(C)(C)C", 3, "counting a double bond as 2"},
-    {"C#C#C", 3, "carbon has 6 bonds"},
-    {"O(C)(C)C", 1, "oxygen has 3 bonds; its valence allows at most 2"},
-    {"CF(C)", 2, "fluorine has 2 bonds"},
-    {"Cl1CCCC1", 1, "chlorine has 2 bonds"},
-    {"CS(C)(C)(C)(C)(C)C", 2, "sulfur has 7 bonds; its valence allows at most 6"},
-    {"B(C)(C)(C)C", 1, "boron has 4 bonds"},
-    {"CN(C)(C)(C)(C)C", 2, "nitrogen has 6 bonds"},
-    {"Co1cccc1C", 2, "aromatic oxygen has 3 bonds"},
     // aromatic systems that cannot be kekulized
     {"c1cccc1", 6, "left without a double bond"},
     {"c1ccnc1", 6, "left without a double bond"},
@@ -168,6 +157,39 @@ TEST(SmilesErrors, TableOfMalformedInput) {
             EXPECT_EQ(e.text(), c.smiles);
         } catch (const std::exception& e) {
             ADD_FAILURE() << "threw something other than InputError: " << e.what();
+        }
+    }
+}
+
+// An organic-subset atom whose bonds exceed its normal valences gets no implicit hydrogens; the SMILES is valid
+// (OpenSMILES v1.0, "Atoms", "Organic Subset": "If that sum is equal to a known valence for the element or is greater
+// than any known valence then the implicit hydrogen count is 0"). The domain analysis then refuses what no Lewis
+// structure allows (more bonds than valence electrons, a period-2 atom over its octet) and says how it was read.
+TEST(SmilesErrors, AboveNormalValenceIsReadAndRefusedByTheDomainAnalysis) {
+    const std::vector<BadCase> cases = {
+        {"C(C)(C)(C)(C)C", 1, "read as a neutral carbon with no hydrogens: bonds of total order 5"},
+        {"FC(F)(F)(F)F", 2, "more than its 4 valence electrons allow"},
+        {"C=C(C)(C)C", 3, "bonds of total order 5"},
+        {"C#C#C", 3, "bonds of total order 6"},
+        {"O(C)(C)C", 1, "would hold 9 electrons; a period-2 atom holds at most 8 (read as a neutral oxygen"},
+        {"CF(C)", 2, "would hold 9 electrons"},
+        {"CS(C)(C)(C)(C)(C)C", 2, "bonds of total order 7, more than its 6 valence electrons allow"},
+        {"B(C)(C)(C)C", 1, "more than its 3 valence electrons allow"},
+        {"CN(C)(C)(C)(C)C", 2, "read as a neutral nitrogen"},
+        {"Co1cccc1C", 2, "would hold 9 electrons"},
+    };
+    for (const BadCase& c : cases) {
+        SCOPED_TRACE("SMILES \"" + c.smiles + "\"");
+        Molecule m = read_smiles(c.smiles);
+        for (const Atom& a : m.atoms) EXPECT_GE(a.hydrogens, 0);
+        m.make_hydrogens_explicit();
+        try {
+            analyse_domains(m, false);
+            ADD_FAILURE() << "accepted by the domain analysis";
+        } catch (const InputError& e) {
+            EXPECT_EQ(e.column(), c.column) << e.what();
+            EXPECT_NE(std::string(e.what()).find(c.word), std::string::npos)
+                << "message: " << e.what() << "\nexpected to contain: " << c.word;
         }
     }
 }

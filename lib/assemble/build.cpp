@@ -186,20 +186,44 @@ Structure build_structure(const Molecule& written, const BuildOptions& options) 
     const Molecule& skeleton = hapto ? skeleton_storage : molecule;
     const MoleculeDomains domains = analyse_domains(skeleton, true, metals.empty() ? nullptr : &metals);
     check_deadline("analysing the electron domains");
-    if (options.multiplicity > 0) {
-        if ((options.multiplicity - 1) % 2 != domains.unpaired_electrons % 2)
-            throw InputError(fmt::format("multiplicity {} is not possible for this molecule: its electron count "
-                                         "gives {} unpaired electrons by the model, so the multiplicity must be {}",
-                                         options.multiplicity, domains.unpaired_electrons,
-                                         domains.unpaired_electrons % 2 == 0 ? "odd (1, 3, 5, ...)" : "even (2, 4, 6, ...)"));
-    }
     s.charge = domains.charge;
-    s.multiplicity = options.multiplicity > 0 ? options.multiplicity : domains.multiplicity;
-    s.multiplicity_reason = options.multiplicity > 0 ? "as asked" : domains.multiplicity_reason;
+    s.multiplicity = domains.multiplicity;
+    s.multiplicity_reason = domains.multiplicity_reason;
     s.warnings = join_notes;
     for (const std::string& w : domains.warnings) s.warnings.push_back(w);
+    if (options.charge && *options.charge != domains.charge)
+        throw InputError(fmt::format("total charge {} was asked for, but the written formal charges add up to {}; write "
+                                     "the charges on the atoms (e.g. [NH4+], [O-])",
+                                     *options.charge, domains.charge));
+    if (options.multiplicity) {
+        long electrons = -domains.charge;
+        for (const Atom& a : molecule.atoms) electrons += a.z;
+        const long unpaired = static_cast<long>(*options.multiplicity) - 1;
+        if (*options.multiplicity < 1)
+            throw InputError(fmt::format("multiplicity {} is not possible: it is 2S+1, at least 1", *options.multiplicity));
+        if (unpaired > electrons || (electrons - unpaired) % 2 != 0)
+            throw InputError(fmt::format(
+                "multiplicity {} is not possible for {} electrons: it needs {} unpaired electrons, and an {} electron "
+                "count allows only {} multiplicities ({}){}",
+                *options.multiplicity, electrons, unpaired, electrons % 2 == 0 ? "even" : "odd",
+                electrons % 2 == 0 ? "odd" : "even", electrons % 2 == 0 ? "1, 3, 5, ..." : "2, 4, 6, ...",
+                unpaired > electrons ? fmt::format("; at most {}", electrons + 1) : ""));
+        if (*options.multiplicity != domains.multiplicity) {
+            // The analysis's own ground-state warnings no longer hold; say what was written instead.
+            std::erase_if(s.warnings, [](const std::string& w) {
+                return w.find("multiplicity raised by") != std::string::npos ||
+                       w.find("written high-spin") != std::string::npos;
+            });
+            s.warnings.push_back(fmt::format("multiplicity {} as asked for (the Lewis structure as written gives {}); the "
+                                             "coordinates are those of the structure as written",
+                                             *options.multiplicity, domains.multiplicity));
+        }
+        s.multiplicity = *options.multiplicity;
+        s.multiplicity_reason = "as asked";
+    }
     for (int i = 0; i < n; ++i)
-        s.molecule.atoms[static_cast<size_t>(i)].radical_electrons = domains.atoms[static_cast<size_t>(i)].single_electrons;
+        s.molecule.atoms[static_cast<size_t>(i)].radical_electrons =
+            domains.atoms[static_cast<size_t>(i)].single_electrons + domains.atoms[static_cast<size_t>(i)].p_single_electrons;
 
     std::vector<ChiralTarget> chiral;
     for (const ChiralTarget& t : chiral_targets(molecule, s.warnings)) {

@@ -1,6 +1,8 @@
 // Whole-molecule building: domain frames assembled into Cartesian coordinates, then refined.
 #pragma once
 
+#include <optional>
+
 #include "core/limits.hpp"
 #include "domains/metal.hpp"
 #include "graph/molecule.hpp"
@@ -30,9 +32,14 @@ struct BuildOptions {
     // 17.1 (diazepam's seven-membered ring; 15-17 in the other benzodiazepines), G2 worst 11.3 outside warned systems
     // (measured): 25 keeps a margin of half that, and the porphine this check was written for had 29.
     double angle_outlier = 25.0;
-    // Spin multiplicity asked for (2S+1); 0: the model's (the Lewis structure's single electrons, the metal centres'
-    // ligand-field rule). Refused when its parity does not fit the electron count.
-    int multiplicity = 0;
+    // The total charge the caller states: it must equal the sum of the written formal charges (an InputError
+    // otherwise; the charges belong on the atoms). Unset: not checked.
+    std::optional<int> charge;
+    // The spin multiplicity to write instead of the one the domain analysis gives (its Lewis structure, raised for
+    // the ground states it knows; the metal centres' ligand-field rule). Checked against the electron count:
+    // multiplicity - 1 unpaired electrons, of the parity of the electron count and at most that many (an InputError
+    // otherwise). Coordinates are not changed.
+    std::optional<int> multiplicity;
     // Per-centre choices for metal centres (a polyhedron asked for).
     MetalOptions metals;
 };

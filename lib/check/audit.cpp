@@ -385,8 +385,10 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
                     continue;
                 }
             }
-            // An sp2-like centre (three bonds, no lone pair) must be flat; the RMS alone misses a mild pyramid.
-            if (c.bonded == 3 && c.steric_number == 3) {
+            // An sp2-like centre (three bonds, no lone pair) must be flat; the RMS alone misses a mild pyramid. A radical
+            // centre with its electron in the p orbital is left out: it is reported as a radical, and a pyramid there
+            // is more often a missing hydrogen than a wrong shape.
+            if (c.bonded == 3 && c.steric_number == 3 && c.p_single_electrons == 0) {
                 const auto& nbs = analysed.neighbors(i);
                 const Eigen::Vector3d& o = pos[static_cast<size_t>(i)];
                 double sum = 0;

@@ -9,6 +9,7 @@
 #include "core/element.hpp"
 #include "core/error.hpp"
 #include "domains/model.hpp"
+#include "input/organic_subset.hpp"
 #include "sphere/sphere.hpp"
 
 namespace repel {
@@ -119,7 +120,16 @@ std::vector<double> length_orders(const Molecule& m) {
 // - an oxygen only between two heavy atoms: the hydroxyl O of an acid does not open (G2, MP2(full)/6-31G(d):
 //   C-O-H 106.0 in formic, 105.4 in acetic acid, against 107.4 in methanol), where counting its pair as delocalised
 //   would give 111; the opening at an oxygen comes with two heavy ligands (ester, nitrite, aryl and enol ethers).
+// - or bonded to a three-coordinate neutral boron with single bonds only (an empty p orbital: aminoboranes, borazine,
+//   boronic esters and acids are planar at N and O, common practice); next to boron a hydroxyl O counts too (the
+//   B-O-H of boronic acids opens to about 113 deg, from memory).
 // At most one pair per atom is delocalised.
+bool empty_p_boron(const Molecule& m, int j) {
+    const Atom& b = m.atoms[static_cast<size_t>(j)];
+    return b.z == 5 && b.charge == 0 && m.degree(j) + std::max(0, b.hydrogens) == 3 &&
+           m.bond_order_sum(j) + std::max(0, b.hydrogens) == 3;
+}
+
 bool delocalised_lone_pair(const Molecule& m, int i, int lone_pairs, int single_electrons) {
     const Atom& a = m.atoms[static_cast<size_t>(i)];
     if ((a.z != 7 && a.z != 8) || a.charge != 0 || lone_pairs < 1 || single_electrons != 0) return false;
@@ -128,13 +138,16 @@ bool delocalised_lone_pair(const Molecule& m, int i, int lone_pairs, int single_
         if (m.bonds[static_cast<size_t>(nb.bond)].order != 1) return false;
         if (m.atoms[static_cast<size_t>(nb.atom)].z != 1) ++heavy;
     }
-    if (a.z == 8 && (heavy != 2 || a.hydrogens > 0)) return false;
     const auto& nbs = m.neighbors(i);
+    bool boron = false;
+    for (const Neighbor& nb : nbs) boron = boron || empty_p_boron(m, nb.atom);
+    if (a.z == 8 && !boron && (heavy != 2 || a.hydrogens > 0)) return false;
     for (size_t p = 0; p < nbs.size(); ++p)
         for (size_t q = p + 1; q < nbs.size(); ++q)
             if (m.bond_between(nbs[p].atom, nbs[q].atom) >= 0) return false;
     for (const Neighbor& nb : nbs) {
         const Atom& j = m.atoms[static_cast<size_t>(nb.atom)];
+        if (empty_p_boron(m, nb.atom)) return true;
         if (element(j.z).period != 2 || j.charge < 0) continue;
         for (const Neighbor& nn : m.neighbors(nb.atom)) {
             if (nn.atom == i) continue;
@@ -143,6 +156,63 @@ bool delocalised_lone_pair(const Molecule& m, int i, int lone_pairs, int single_
         }
     }
     return false;
+}
+
+// The odd electron of a radical written on a terminal atom next to a centre with a pi bond and a lone pair ([O]N=O,
+// nitrogen dioxide as databases write it) moves to that centre, as in the charge-separated resonance structure
+// [O-][N+](=O) with the odd electron on N (the formula path's least-formal-charge Lewis structure alike): NO2's odd
+// electron sits largely on N and its angle is 134 deg (CRC, from memory), where the structure as written is nitrite's
+// 115. Returns the charge each atom's electron count is taken with (the written charges stay as written).
+std::vector<int> counting_charges(const Molecule& m) {
+    std::vector<int> q(m.atoms.size());
+    for (size_t i = 0; i < m.atoms.size(); ++i) q[i] = m.atoms[i].charge;
+    auto nonbonding = [&](int i) {
+        const Atom& a = m.atoms[static_cast<size_t>(i)];
+        return element(a.z).valence_electrons - q[static_cast<size_t>(i)] - m.bond_order_sum(i) - std::max(0, a.hydrogens);
+    };
+    for (int t = 0; t < m.atom_count(); ++t) {
+        const Atom& a = m.atoms[static_cast<size_t>(t)];
+        if (a.charge != 0 || m.degree(t) != 1 || a.hydrogens > 0 || is_transition_metal(a.z)) continue;
+        if (nonbonding(t) < 1 || nonbonding(t) % 2 != 1) continue;
+        const Neighbor& nb = m.neighbors(t)[0];
+        const int c = nb.atom;
+        const Atom& ca = m.atoms[static_cast<size_t>(c)];
+        if (ca.charge != 0 || q[static_cast<size_t>(c)] != 0 || is_transition_metal(ca.z) || nonbonding(c) < 2 ||
+            nonbonding(c) % 2 != 0 || m.bonds[static_cast<size_t>(nb.bond)].order != 1)
+            continue;
+        bool pi = false;
+        for (const Neighbor& nn : m.neighbors(c))
+            if (nn.atom != t && m.bonds[static_cast<size_t>(nn.bond)].order >= 2) pi = true;
+        if (!pi) continue;
+        q[static_cast<size_t>(t)] = -1;
+        q[static_cast<size_t>(c)] = +1;
+    }
+    return q;
+}
+
+// Unpaired electrons of a free main-group atom in its ground state (Hund's rule, common practice): p-block atoms
+// min(p, 6 - p) for p electrons in the p shell (C, O, Si, S: 3P; N, P: 4S), s-block atoms their odd s electron.
+int free_atom_unpaired(int z, int charge) {
+    const ElementData& e = element(z);
+    const int electrons = e.valence_electrons - charge;
+    if (electrons < 0) return 0;
+    if (e.group >= 13 && e.group <= 18) {
+        const int p = electrons - 2;
+        return p <= 0 ? electrons % 2 : std::max(0, std::min(p, 6 - p));
+    }
+    if (e.group <= 2) return electrons % 2;
+    return -1;  // not said here
+}
+
+// What the reader made of an organic-subset atom written above every normal valence (OpenSMILES gives it no
+// implicit hydrogens): said in the valence errors, since the SMILES itself is valid.
+std::string as_read(const Molecule& m, int i) {
+    const Atom& a = m.atoms[static_cast<size_t>(i)];
+    const OrganicElement* org = organic_element(a.z);
+    if (a.bracket || org == nullptr || a.charge != 0 || m.bond_order_sum(i) <= org->max_valence()) return "";
+    return fmt::format(" (read as a neutral {} with no hydrogens: bonds of total order {} are above its normal "
+                       "valences, which give hydrogens only below them)",
+                       org->name, m.bond_order_sum(i));
 }
 
 double angle_between(const Eigen::Vector3d& a, const Eigen::Vector3d& b) {
@@ -269,6 +339,7 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalys
     const MetalAnalysis& ma = out.metals;
     const bool with_metals = !ma.empty();
     for (const std::string& w : ma.warnings) out.warnings.push_back(w);
+    const std::vector<int> counting = counting_charges(m);
     for (int i = 0; i < m.atom_count(); ++i) {
         const Atom& atom = m.atoms[static_cast<size_t>(i)];
         CentreDomains& c = out.atoms[static_cast<size_t>(i)];
@@ -302,21 +373,23 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalys
         const int own_order_sum = m.bond_order_sum(i) + std::max(0, atom.hydrogens) - metal_units - hapto_order;
         const int order_sum = own_order_sum + metal_units;
         // Non-bonding electrons of the Lewis structure: valence electrons less the formal charge and the bonds.
-        int nonbonding = el.valence_electrons - atom.charge - own_order_sum - covalent_units - 2 * (metal_units - covalent_units);
+        int nonbonding = el.valence_electrons - counting[static_cast<size_t>(i)] - own_order_sum - covalent_units -
+                         2 * (metal_units - covalent_units);
         // An atom of a hapto ligand with an odd electron as written takes one from the metal (ionic model).
         if (hapto_atom && nonbonding % 2 != 0) ++nonbonding;
         if (nonbonding < 0)
-            throw InputError(fmt::format("{} has bonds of total order {}, more than its {} valence electrons allow{}",
+            throw InputError(fmt::format("{} has bonds of total order {}, more than its {} valence electrons allow{}{}",
                                          atom_label(m, i), order_sum, el.valence_electrons,
-                                         atom.charge != 0 ? fmt::format(" with charge {:+d}", atom.charge) : ""),
+                                         atom.charge != 0 ? fmt::format(" with charge {:+d}", atom.charge) : "",
+                                         as_read(m, i)),
                              {}, atom.column);
         // First-row atoms keep a duet, second-row atoms an octet (octet expansion only from period 3 on).
         const int electrons = 2 * order_sum + nonbonding;
         const int limit = el.period == 1 ? 2 : el.period == 2 ? 8 : 1000;
         if (electrons > limit)
             throw InputError(
-                fmt::format("{} would hold {} electrons; a period-{} atom holds at most {}{}", atom_label(m, i),
-                            electrons, el.period, limit,
+                fmt::format("{} would hold {} electrons; a period-{} atom holds at most {}{}{}", atom_label(m, i),
+                            electrons, el.period, limit, as_read(m, i),
                             el.period == 2 ? " (write the formal charges, e.g. [N+](=O)[O-] for a nitro group)" : ""),
                 {}, atom.column);
         c.lone_pairs = nonbonding / 2;
@@ -330,11 +403,25 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalys
             --c.lone_pairs;
         }
         c.bonded = m.degree(i) - hapto_bonds + std::max(0, atom.hydrogens);
+        // A period-2 radical centre with three bonds and nothing else is planar, its odd electron in the p orbital
+        // (common practice; the methyl radical is planar, D3h: Herzberg, from memory). Electronegative ligands
+        // pyramidalise it (CF3 is pyramidal, F-C-F about 111 deg, from memory), so F, O and Cl keep the domain.
+        if (el.period == 2 && c.single_electrons == 1 && c.lone_pairs == 0 && c.bonded == 3) {
+            bool electronegative = false;
+            for (const Neighbor& nb : m.neighbors(i)) {
+                const int z = m.atoms[static_cast<size_t>(nb.atom)].z;
+                electronegative = electronegative || z == 8 || z == 9 || z == 17;
+            }
+            if (!electronegative) {
+                c.single_electrons = 0;
+                c.p_single_electrons = 1;
+            }
+        }
         c.steric_number = c.bonded + c.lone_pairs + c.single_electrons;
         c.axe = axe_class(c.bonded, c.lone_pairs, c.single_electrons);
         c.electron_geometry = electron_geometry_name(c.steric_number);
         c.shape = shape_name(c.bonded, c.lone_pairs + c.single_electrons);
-        out.unpaired_electrons += c.single_electrons;
+        out.unpaired_electrons += c.single_electrons + c.p_single_electrons;
 
         const std::vector<double> orders = effective_orders(m, i);
         for (size_t k = 0; k < m.neighbors(i).size(); ++k) {
@@ -363,9 +450,10 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalys
             std::vector<SphereDomain> sd, arrangement;
             sd.reserve(c.domains.size());
             arrangement.reserve(c.domains.size());
-            for (const Domain& d : c.domains) {
+            for (size_t k = 0; k < c.domains.size(); ++k) {
+                const Domain& d = c.domains[k];
                 sd.push_back({d.weight, d.radius, d.kind == DomainKind::bond ? model.bond_exponent : model.lone_pair_exponent});
-                arrangement.push_back(arrangement_domain(d.kind));
+                arrangement.push_back(arrangement_domain(d.kind, k < orders.size() ? orders[k] : 1.0));
             }
             c.directions = solve_sphere_staged(arrangement, sd);
             const int nbonds = m.degree(i) - hapto_bonds;
@@ -473,6 +561,33 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalys
             c.lone_pairs == 1 && m.bond_order_sum(i) == 2)
             out.warnings.push_back(fmt::format(
                 "atom {}: a carbene, written as a singlet; its ground state may be a triplet (CH2's is)", i + 1));
+    }
+    // Ground states of higher spin than the Lewis structure's, by default with a warning (common practice): a free
+    // atom follows Hund's rule (C, O: triplet; N: quartet), and a nitrene R-N or R-P (one single bond, two lone pairs,
+    // neutral) is a triplet (NH, PH, phenylnitrene, from memory). repel build --multiplicity overrides.
+    for (int i = 0; i < m.atom_count(); ++i) {
+        const Atom& a = m.atoms[static_cast<size_t>(i)];
+        const CentreDomains& c = out.atoms[static_cast<size_t>(i)];
+        if (is_transition_metal(a.z)) continue;
+        const int written = c.single_electrons + c.p_single_electrons;
+        if (c.bonded == 0) {
+            const int hund = free_atom_unpaired(a.z, a.charge);
+            if (hund > written && (hund - written) % 2 == 0) {
+                out.multiplicity += hund - written;
+                out.warnings.push_back(fmt::format(
+                    "atom {}: a free {} atom; its ground state has {} unpaired electrons (Hund's rule): multiplicity "
+                    "raised by {} (give the multiplicity to build another state)",
+                    i + 1, element(a.z).symbol, hund, hund - written));
+            }
+        } else if (element(a.z).group == 15 && a.charge == 0 && c.bonded == 1 && written == 0 &&
+                   m.bond_order_sum(i) + std::max(0, a.hydrogens) == 1 &&
+                   c.lone_pairs + c.delocalised_lone_pairs == 2) {
+            out.multiplicity += 2;
+            out.warnings.push_back(fmt::format(
+                "atom {}: a nitrene; its ground state is a triplet (NH, phenylnitrene): multiplicity raised by 2 (give "
+                "the multiplicity to build the singlet)",
+                i + 1));
+        }
     }
     int metal_unpaired = 0;
     for (const MetalCentre& mc : ma.centres) metal_unpaired += mc.unpaired_electrons;

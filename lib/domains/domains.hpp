@@ -35,6 +35,9 @@ struct CentreDomains {
     // part of the Lewis structure but no sigma domain (the N of an amide is AX3, the O of an ester AX2E).
     int delocalised_lone_pairs = 0;
     int single_electrons = 0;  // unpaired electron domains (0 or 1)
+    // A single electron in a p orbital rather than a domain of its own (0 or 1): the methyl radical's, on a period-2
+    // centre with three bonds and nothing else (planar, common practice). Unpaired, but not on the sphere.
+    int p_single_electrons = 0;
     int steric_number = 0;     // bonded + lone_pairs + single_electrons: the sigma domains (delocalised pairs not)
     std::string axe;           // "AX4E2"; see axe_class()
     std::string electron_geometry;  // "octahedral"

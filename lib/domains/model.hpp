@@ -39,6 +39,9 @@ SphereDomain single_electron_domain(const DomainModel& model, int centre_z);
 // and its sites. Measured before the model was designed (shared notes on the repulsion model): all weights 1,
 // exponent 2, lone pairs on an inner sphere of radius 0.7 make AX4E2 square planar, AX3E2 T-shaped, AX4E1 a seesaw,
 // where one sphere for all domains puts AX4E2's lone pairs cis for every exponent and weight tried.
-SphereDomain arrangement_domain(DomainKind kind);
+// A bond of order above 1 (a written multiple bond, aromatic 1.5, a resonance-shared order) is a kind of its own there,
+// larger than a single bond and smaller than a lone pair (Gillespie and Hargittai 1991): without it the fitted weights
+// alone chose its site, and a five-domain centre put its double bond at the apex of a square pyramid.
+SphereDomain arrangement_domain(DomainKind kind, double order = 1.0);
 
 }  // namespace repel

@@ -49,10 +49,13 @@ inline const OrganicElement* organic_element(int z) {
 }
 
 // Implicit hydrogens of a non-aromatic organic-subset atom whose explicit bond orders sum to bond_order_sum:
-// the lowest normal valence that is at least the sum, minus the sum; -1 when the sum exceeds every normal valence.
+// the lowest normal valence that is at least the sum, minus the sum; 0 when the sum exceeds every normal valence
+// (OpenSMILES specification v1.0, section "Atoms", "Organic Subset": "If that sum is equal to a known valence for the
+// element or is greater than any known valence then the implicit hydrogen count is 0": FCl(F)F is ClF3, not an
+// error). Whether such a valence is possible is the domain analysis's question (a period-2 atom over its octet).
 inline int organic_implicit_hydrogens(const OrganicElement& e, int bond_order_sum) {
     const int v = e.lowest_valence_at_least(bond_order_sum);
-    return v < 0 ? -1 : v - bond_order_sum;
+    return v < 0 ? 0 : v - bond_order_sum;
 }
 
 }  // namespace repel

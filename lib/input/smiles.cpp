@@ -727,8 +727,8 @@ void Reader::finish() {
     }
 }
 
-// Implicit hydrogens of the organic subset (OpenSMILES: the lowest normal valence at least the bond-order sum), the
-// valence check, and which aromatic atoms need a double bond. An aromatic atom whose bond-order sum (aromatic bonds
+// Implicit hydrogens of the organic subset (OpenSMILES: the lowest normal valence at least the bond-order sum, none
+// above every normal valence), and which aromatic atoms need a double bond. An aromatic atom whose bond-order sum (aromatic bonds
 // counting 1) already equals a normal valence gives its lone pair to the ring (pyrrole-type n, furan o, thiophene s,
 // a c with an exocyclic '=O'); otherwise one unit of the next valence is its double bond and the rest hydrogens.
 void Reader::hydrogens_and_valences() {
@@ -755,12 +755,10 @@ void Reader::hydrogens_and_valences() {
         const int sum = st.order_sum;
         const int valence = e.lowest_valence_at_least(sum);
         if (valence < 0) {
-            bool multiple = false;
-            for (const Neighbor& nb : mol_.neighbors(v))
-                multiple = multiple || mol_.bonds[static_cast<size_t>(nb.bond)].order > 1;
-            error(fmt::format("{} has {} bonds{}; its valence allows at most {}", atom_name(a), sum,
-                              multiple ? " (counting a double bond as 2)" : "", e.max_valence()),
-                  a.column);
+            // Above every normal valence: no implicit hydrogens and no ring double bond (OpenSMILES, "Organic
+            // Subset"; see organic_implicit_hydrogens). The domain analysis refuses what no Lewis structure allows.
+            a.hydrogens = 0;
+            continue;
         }
         if (!a.aromatic || st.pi_satisfied || e.is_valence(sum)) {
             a.hydrogens = valence - sum;

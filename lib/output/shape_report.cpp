@@ -37,6 +37,11 @@ std::string shape_table(const Molecule& m, const MoleculeDomains& d, const std::
             out += fmt::format("{}: {} lone pair delocalised into the neighbouring pi system (no sigma domain; not "
                                "counted in SN or E)\n",
                                atom_name(m, c.atom), c.delocalised_lone_pairs);
+    for (const CentreDomains& c : d.atoms)
+        if (c.p_single_electrons > 0)
+            out += fmt::format("{}: single electron in the p orbital of a planar radical centre (no domain; not counted "
+                               "in SN or e)\n",
+                               atom_name(m, c.atom));
     bool header = false;
     for (const CentreDomains& c : d.atoms) {
         if (c.angles.empty()) continue;
@@ -81,6 +86,7 @@ nlohmann::json shape_json(const Molecule& m, const MoleculeDomains& d, const std
         j["lone_pairs"] = c.lone_pairs;
         j["delocalised_lone_pairs"] = c.delocalised_lone_pairs;
         j["single_electrons"] = c.single_electrons;
+        j["p_single_electrons"] = c.p_single_electrons;
         j["axe"] = c.axe;
         j["electron_geometry"] = c.electron_geometry;
         j["shape"] = c.shape;

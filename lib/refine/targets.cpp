@@ -117,9 +117,12 @@ private:
         }
     }
 
-    // A centre with three domains and a double or aromatic bond: part of a pi system.
+    // A centre with three domains and a double or aromatic bond: part of a pi system. A neutral three-coordinate
+    // boron counts too: its empty p orbital takes a neighbour's lone pair (aminoboranes, borazine, boronic esters;
+    // delocalised_lone_pair in domains.cpp).
     bool pi_centre(int i) const {
         if (centre(i).steric_number != 3) return false;
+        if (atom_z(i) == 5 && centre(i).bonded == 3 && m_.atoms[static_cast<size_t>(i)].charge == 0) return true;
         for (const Neighbor& nb : m_.neighbors(i)) {
             const Bond& b = m_.bonds[static_cast<size_t>(nb.bond)];
             if (b.aromatic || b.order == 2) return true;

@@ -26,7 +26,8 @@ double sphere_energy(std::span<const SphereDomain> domains, std::span<const Eige
 // deterministically by seeding from the ideal polyhedra for that count with every distinct placement of the
 // domain kinds (and deterministic extra starts beyond 8 domains), each relaxed by gradient minimisation.
 // The frame is canonical: the first domain along +z, the next not collinear with it in the xz half-plane x > 0.
-// Results are cached per weight pattern (per thread), so repeated centres cost a look-up. Bit-identical for
+// The minimum is polished to round-off and the directions rounded to a 2^-30 grid, so the answer does not depend on
+// the seed that reached it. Results are cached per weight pattern (per thread), so repeated centres cost a look-up. Bit-identical for
 // identical input. Up to 12 domains.
 std::vector<Eigen::Vector3d> solve_sphere(std::span<const SphereDomain> domains);
 

@@ -365,6 +365,40 @@ def main():
                 f'{text}: axial ligands bent towards the equatorial ligand(s), away from the lone pair(s)')
         print(f'axial angle {text}: built {a[axial]:.2f}, experiment {expt} (CRC, from memory)')
 
+    # ---- multiple bonds take the sites VSEPR gives a larger domain (Gillespie and Hargittai 1991): equatorial in a
+    # trigonal bipyramid and its derivatives (seesaw, T), trans to the lone pair of a square pyramid, and a square
+    # pyramid's apex never for a five-domain centre without a lone pair. Judged from the written coordinates: the
+    # pairs of ligands at more than 150 deg (trans pairs) and who is in them. Structures (gas-phase electron
+    # diffraction / microwave, CRC 'Structure of free molecules in the gas phase', from memory): SOF4 C2v with O
+    # equatorial, Fax-S-Fax 164.6; H2C=SF4 C2v with CH2 equatorial; ClO2F3 and XeO3F2 with every O equatorial;
+    # XeO2F2 seesaw with O equatorial, F-Xe-F 174.7; ClOF3 seesaw with O equatorial; XeOF2 T-shaped with O in the
+    # stem; XeOF4 C4v with O trans to the lone pair; IOF5 C4v (O trans to one F).
+    # (input, centre index, ligand indices of multiple bonds, trans pairs expected, of which multiple-bond members)
+    multiple_cases = [
+        ('AX5 one double', 'O=[S](F)(F)(F)F', 1, [0], 1, 0),
+        ('AX5 one double (C)', 'C=[S](F)(F)(F)F', 1, [0], 1, 0),
+        ('AX5 two double', 'O=[Cl](=O)(F)(F)F', 1, [0, 2], 1, 0),
+        ('AX5 three double', 'O=[Xe](=O)(=O)(F)F', 1, [0, 2, 3], 1, 0),
+        ('AX4E two double', 'O=[Xe](=O)(F)F', 1, [0, 2], 1, 0),
+        ('AX4E one double', 'O=[Cl](F)(F)F', 1, [0], 1, 0),
+        ('AX3E2 one double', 'O=[Xe](F)F', 1, [0], 1, 0),
+        ('AX5E one double', 'O=[Xe](F)(F)(F)F', 1, [0], 2, 0),
+        ('AX6 one double', 'O=[I](F)(F)(F)(F)F', 1, [0], 3, 1),
+    ]
+    for cls, text, centre, multiple, n_trans, n_multiple_trans in multiple_cases:
+        got = build(text)
+        if not got:
+            continue
+        s, c, _ = got
+        ligs = [i for i in range(len(s)) if i != centre and s[i] != 'H']
+        a = ligand_angles(c, centre, ligs)
+        trans = [p for p, x in a.items() if x > 150.0]
+        in_trans = sum(1 for p in trans for i in p if i in multiple)
+        t.check(len(trans) == n_trans and in_trans == n_multiple_trans,
+                f'{cls} {text}: {n_trans} trans pair(s) above 150 deg with {n_multiple_trans} multiple-bond member(s), '
+                f'found {len(trans)} with {in_trans} ({fmt(sorted(a.values()))})')
+        print(f'{cls:18s} {text:24s} angles {fmt(sorted(a.values()))}')
+
     # ---- formaldehyde: H-C-H below 120 deg (the C=O double bond domain is larger; experiment 116.5 deg, CRC, from
     # memory).
     got = build('C=O')
@@ -391,6 +425,39 @@ def main():
         t.check(fields.get('charge') == str(charge) and fields.get('multiplicity') == str(mult),
                 f'{text}: comment has charge={charge} multiplicity={mult}, got charge={fields.get("charge")} '
                 f'multiplicity={fields.get("multiplicity")}')
+
+    # ---- radicals and spin: NO2 as databases write it ([O]N=O) is the delocalised radical (O-N-O 134.1 deg, CRC,
+    # from memory), the methyl radical planar (common practice); the ground states of free atoms (Hund's rule) and of
+    # nitrenes (NH, phenylnitrene: triplets, from memory) are written by default; --multiplicity and --charge.
+    got = build('[O]N=O')
+    if got:
+        _, c, fields = got
+        x = angle_deg(c[0], c[1], c[2])
+        t.check(abs(x - 134.1) <= 3.0 and fields.get('multiplicity') == '2',
+                f'[O]N=O: O-N-O {x:.2f} within 3 of 134.1 (CRC, from memory), multiplicity 2')
+    got = build('[CH3]')
+    if got:
+        _, c, _ = got
+        total = sum(angle_deg(c[i], c[0], c[j]) for i, j in ((1, 2), (1, 3), (2, 3)))
+        t.check(abs(total - 360.0) <= 0.5, f'[CH3]: planar, H-C-H angles sum to {total:.2f} (360, common practice)')
+    for text, mult in (('[C]', 3), ('[N]', 4), ('[NH]', 3), ('c1ccccc1[N]', 3)):
+        got = build(text)
+        if got:
+            t.check(got[2].get('multiplicity') == str(mult) and 'multiplicity raised' in got[2].get('warnings', ''),
+                    f'{text}: multiplicity {mult} by default, with a warning (got {got[2].get("multiplicity")})')
+    r = run_repel(exe, ['build', '[CH2]', '--multiplicity', '3', '--format', 'sdf'])
+    t.check(r.returncode == 0 and '> <multiplicity>\n3\n' in r.stdout, '[CH2] --multiplicity 3: SDF says 3')
+    r = run_repel(exe, ['build', 'C', '--multiplicity', '2'])
+    t.check(r.returncode == 2 and 'not possible' in r.stderr, f'C --multiplicity 2 refused (10 electrons): {r.stderr.strip()}')
+    r = run_repel(exe, ['build', '[NH4+]', '--charge', '0'])
+    t.check(r.returncode == 2 and 'formal charges add up to 1' in r.stderr, '[NH4+] --charge 0 refused with the sum')
+    r = run_repel(exe, ['build', '[NH4+]', '--charge', '1', '--format', 'json'])
+    t.check(r.returncode == 0 and '"charge": 1' in r.stdout, '[NH4+] --charge 1 builds')
+    smi = os.path.join(tmp, 'spin.smi')
+    with open(smi, 'w') as f:
+        f.write('[CH2] methylene\nO=O dioxygen\nC methane\n')
+    r = run_repel(exe, ['build', '-i', smi, '--multiplicity', '3', '--format', 'xyz', '-j', '1'])
+    t.check(r.returncode == 0 and r.stdout.count('multiplicity=3') == 3, 'batch with --multiplicity 3: three records at 3')
 
     t.finish(tmp)
 
