@@ -27,6 +27,8 @@ struct BuildArgs {
     bool resume = false;      // --resume
     bool progress = true;     // a progress line when standard error is a terminal (--no-progress turns it off)
     double time_limit = kDefaultTimeLimit;  // --time-limit: seconds per molecule (0: none)
+    std::string picture;      // --picture FILE.svg: a drawing of the one molecule built (refused with -i)
+    bool picture_hydrogens = true;  // --picture-without-hydrogens turns it off
 };
 
 struct ShapeArgs {
@@ -34,7 +36,18 @@ struct ShapeArgs {
     std::string input_file;
     Notation notation = Notation::automatic;
     bool json = false;
+    std::string picture;      // --picture FILE.svg: the built molecule with every centre's lone pairs (refused with -i)
+    bool picture_hydrogens = true;
 };
+
+// Writes text to path through a temporary file renamed at the end (never a half-written file). Throws
+// std::runtime_error naming the file when it cannot be written.
+void write_whole_file(const std::string& path, const std::string& text);
+
+// The refusal of --picture for a batch (-i), the same for every command.
+constexpr const char* kPictureBatchRefusal =
+    "--picture draws one molecule and cannot be used with -i; draw a record on its own (a SMILES or formula on the "
+    "command line with --picture FILE.svg)";
 
 int run_build(const BuildArgs& args);
 int run_shape(const ShapeArgs& args);

@@ -54,6 +54,10 @@ int run(int argc, char** argv) {
                           "seconds one molecule may take before it fails as a record (0: no limit)")
         ->check(CLI::NonNegativeNumber)
         ->capture_default_str();
+    bool build_no_h = false;
+    cmd_build->add_option("--picture", build.picture,
+                          "also draw the molecule as a standalone SVG picture (one molecule only, not with -i)");
+    cmd_build->add_flag("--picture-without-hydrogens", build_no_h, "leave hydrogen atoms out of --picture");
     auto* in_opt = cmd_build->get_option("INPUT");
     auto* file_opt = cmd_build->get_option("--input");
     in_opt->excludes(file_opt);
@@ -67,12 +71,18 @@ int run(int argc, char** argv) {
     cmd_shape->add_flag("--json", shape.json, "one JSON document instead of the table");
     cmd_shape->add_flag("--formula", shape_formula, "read INPUT as a formula only");
     cmd_shape->add_flag("--smiles", shape_smiles, "read INPUT as SMILES only");
+    bool shape_no_h = false;
+    cmd_shape->add_option("--picture", shape.picture,
+                          "also draw the built molecule as an SVG picture with every centre's lone pairs and single "
+                          "electrons, AXE class, shape and predicted angles (one molecule only, not with -i)");
+    cmd_shape->add_flag("--picture-without-hydrogens", shape_no_h, "leave hydrogen atoms out of --picture");
     cmd_shape->get_option("INPUT")->excludes(cmd_shape->get_option("--input"));
 
     CheckArgs check;
     int check_charge = 0, check_multiplicity = 0;
     CLI::App* cmd_check = app.add_subcommand("check", "audit a structure built elsewhere: what is wrong, where, how badly");
-    cmd_check->add_option("FILE", check.file, "a structure file: .xyz (one or several frames), .pdb, .sdf/.mol; - for standard input")
+    cmd_check->add_option("FILE", check.files,
+                          "structure files: .xyz (one or several frames), .pdb, .sdf/.mol; - for standard input")
         ->required();
     cmd_check->add_option("--format", check.format, "the file's format when the extension does not tell")
         ->check(CLI::IsMember({"xyz", "pdb", "sdf", "mol"}));
@@ -95,6 +105,9 @@ int run(int argc, char** argv) {
                           "the intended molecule (SMILES): compare atoms, connectivity, stereocentres and double bonds");
     cmd_check->add_flag("--fix", check.fix, "write a cleaned structure (with -o): same atoms and stereochemistry, relaxed");
     cmd_check->add_option("-o,--output", check.output_file, "where --fix writes (.xyz, .pdb, .sdf)");
+    cmd_check->add_option("--report", check.report,
+                          "also write one self-contained HTML page: a sortable, filterable table of every structure, "
+                          "and per structure its picture with the flagged atoms marked, its findings and a 3D view");
     cmd_check->add_option("--time-limit", check.time_limit,
                           "seconds one structure's audit (and again its --fix) may take before it is reported as not "
                           "audited (0: no limit)")
@@ -127,6 +140,7 @@ int run(int argc, char** argv) {
         }
         build.notation = notation(build_formula, build_smiles);
         build.refine = !no_refine;
+        build.picture_hydrogens = !build_no_h;
         return run_build(build);
     }
     if (cmd_shape->parsed()) {
@@ -135,6 +149,7 @@ int run(int argc, char** argv) {
             return 2;
         }
         shape.notation = notation(shape_formula, shape_smiles);
+        shape.picture_hydrogens = !shape_no_h;
         return run_shape(shape);
     }
     if (cmd_check->parsed()) {
