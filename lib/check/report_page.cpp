@@ -47,6 +47,12 @@ std::string script_json(const nlohmann::json& j) {
     return out;
 }
 
+// The table shows a file by its name (the whole path in its tooltip and in the structure's details).
+std::string base_name(const std::string& path) {
+    const size_t slash = path.find_last_of('/');
+    return slash == std::string::npos || slash + 1 == path.size() ? path : path.substr(slash + 1);
+}
+
 double round_to(double v, double step) { return std::round(v / step) * step; }
 
 // Verdict order for sorting: clean, warnings, errors, not audited.
@@ -368,11 +374,11 @@ void ReportPage::add(const Audit& a, int number, const std::string& file) {
     const std::string worst =
         a.findings.empty() ? std::string() : a.findings.front().kind + ": " + a.findings.front().message;
     rows_.push_back(fmt::format(
-        "<tr data-k=\"{0}\" tabindex=\"0\"><td class=\"num\" data-v=\"{0}\">{0}</td><td>{1}</td><td>{2}:{3}</td>"
+        "<tr data-k=\"{0}\" tabindex=\"0\"><td class=\"num\" data-v=\"{0}\">{0}</td><td>{1}</td><td title=\"{10}\">{2}:{3}</td>"
         "<td class=\"num\" data-v=\"{4}\">{4}</td><td data-v=\"{5}\"><span class=\"badge {6}\">{7}</span></td>"
         "<td class=\"num\" data-v=\"{8}\">{8}</td><td class=\"worst\" title=\"{9}\">{9}</td></tr>\n",
-        number, escape_html(title), escape_html(file), a.line, m.atom_count(), v.rank, v.css, v.name,
-        a.findings.size(), escape_html(worst)));
+        number, escape_html(title), escape_html(base_name(file)), a.line, m.atom_count(), v.rank, v.css, v.name,
+        a.findings.size(), escape_html(worst), escape_html(file)));
 
     nlohmann::json j;
     j["t"] = title;
@@ -422,9 +428,10 @@ void ReportPage::add(const Audit& a, int number, const std::string& file) {
 void ReportPage::add_failure(int number, const std::string& file, long line, const std::string& why) {
     rows_.push_back(fmt::format(
         "<tr data-k=\"{0}\" tabindex=\"0\"><td class=\"num\" data-v=\"{0}\">{0}</td><td>structure {0}</td>"
-        "<td>{1}:{2}</td><td class=\"num\" data-v=\"0\"></td><td data-v=\"{3}\"><span class=\"badge {4}\">{5}</span>"
+        "<td title=\"{7}\">{1}:{2}</td><td class=\"num\" data-v=\"0\"></td><td data-v=\"{3}\"><span class=\"badge {4}\">{5}</span>"
         "</td><td class=\"num\" data-v=\"0\">0</td><td class=\"worst\" title=\"{6}\">{6}</td></tr>\n",
-        number, escape_html(file), line, kNotAudited.rank, kNotAudited.css, kNotAudited.name, escape_html(why)));
+        number, escape_html(base_name(file)), line, kNotAudited.rank, kNotAudited.css, kNotAudited.name,
+        escape_html(why), escape_html(file)));
     nlohmann::json j;
     j["t"] = fmt::format("structure {}", number);
     j["info"] = fmt::format("{}, line {}", file, line);
