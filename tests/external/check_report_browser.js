@@ -79,6 +79,9 @@ for (let k = 0; k < 1000; ++k) {
 fs.writeFileSync(file('waters.xyz'), water.join('\n') + '\n');
 checkReport([file('waters.xyz')], file('waters.html'));
 execFileSync(repel, ['shape', 'XeF4', '--formula', '--picture', file('xef4.svg')]);
+// A 9,993-atom polyalanine: opening it and turning it must stay interactive.
+build('N[C@@H](C)C(=O)'.repeat(999) + 'O', file('polyalanine.xyz'));
+checkReport([file('polyalanine.xyz')], file('polyalanine.html'));
 
 function watch(page, url) {
   const problems = [];
@@ -229,6 +232,32 @@ const nextFrame = (page) => page.evaluate(() => new Promise((r) => requestAnimat
     const warned = await big.$$eval('#summary tbody tr', (r) => r.filter((x) => !x.hidden).length);
     check(warned === 143, `the filter "warnings" leaves the 143 squashed waters (${warned})`);
     await big.screenshot({path: path.join(artefacts, 'check-report-1000.png')});
+
+    // A 10,000-atom structure: opened (its JSON parsed, its picture inserted, its view drawn) and turned.
+    const large = await browser.newPage();
+    await large.setViewport({width: 1400, height: 1000});
+    const largeUrl = 'file://' + file('polyalanine.html');
+    const largeProblems = watch(large, largeUrl);
+    await large.goto(largeUrl, {waitUntil: 'load'});
+    const timing = await large.evaluate(async () => {
+      const t0 = performance.now();
+      window.repelOpen('1');
+      const open = performance.now() - t0;
+      const canvas = document.getElementById('view');
+      const r = canvas.getBoundingClientRect();
+      const ev = (type, x) => canvas.dispatchEvent(new PointerEvent(type, {clientX: r.left + x, clientY: r.top + 100, pointerId: 1, bubbles: true}));
+      ev('pointerdown', 100);
+      const t1 = performance.now();
+      ev('pointermove', 140);
+      await new Promise((res) => requestAnimationFrame(() => res()));
+      const frame = performance.now() - t1;
+      ev('pointerup', 140);
+      return {open, frame, atoms: window.repelView.atoms};
+    });
+    check(timing.atoms === 9993 && largeProblems.length === 0,
+          `the 9,993-atom structure opens (${timing.atoms} atoms; ${largeProblems.join('; ')})`);
+    check(timing.open < 3000 && timing.frame < 1000,
+          `open in ${timing.open.toFixed(0)} ms, one turned frame in ${timing.frame.toFixed(0)} ms (bounds 3,000 / 1,000)`);
 
     // The SVG picture renders in the same browser.
     const svgPage = await browser.newPage();
