@@ -488,8 +488,20 @@ std::string picture_svg(const Structure& s, const PictureOptions& o) {
             const std::string cb = hex(mix(fogged(colour_of(m.atoms[static_cast<size_t>(bond.b)].z), lv), kBlack, 0.12));
             append("<g class=\"bond\" data-bond=\"{}\" data-order=\"{}\"{}>", it.index + 1, bond.order,
                    bond.aromatic ? " data-aromatic=\"1\"" : "");
+            // An aromatic bond: the solid stick on the bond line (in line with the single bonds) and the dashed one
+            // on the side of its ring (where another aromatic neighbour of the first atom lies).
+            double ring_side = 0;
+            if (bond.aromatic) {
+                for (const Neighbor& nb : m.neighbors(bond.a)) {
+                    if (nb.atom == bond.b || !m.bonds[static_cast<size_t>(nb.bond)].aromatic) continue;
+                    const Eigen::Vector3d& pc = q[static_cast<size_t>(nb.atom)];
+                    ring_side = (sx(pc) - ax) * px + (sy(pc) - ay) * py >= 0 ? 1 : -1;
+                    break;
+                }
+            }
             for (int k = 0; k < sticks; ++k) {
-                const double off = (k - (sticks - 1) / 2.0) * kStickGap * scale * f;
+                const double off = ring_side != 0 ? k * ring_side * kStickGap * 1.15 * scale * f
+                                                  : (k - (sticks - 1) / 2.0) * kStickGap * scale * f;
                 const char* dash = (bond.aromatic && k == 1) ? " stroke-dasharray=\"3 3\"" : "";
                 append("<line x1=\"{:.1f}\" y1=\"{:.1f}\" x2=\"{:.1f}\" y2=\"{:.1f}\" stroke=\"{}\" stroke-width=\"{:.1f}\"{}/>",
                        ax + px * off, ay + py * off, mx + px * off, my + py * off, ca, w, dash);
