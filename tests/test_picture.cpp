@@ -367,3 +367,25 @@ TEST(ReportPage, IsSelfContainedAndEscapesTitles) {
         EXPECT_EQ(html.find(fetch), std::string::npos) << fetch;
     EXPECT_NE(html.find("not audited"), std::string::npos);
 }
+
+// Past 20,000 atoms a structure's entry carries no SVG picture (the 3D view still has its coordinates); below, it does.
+TEST(ReportPage, LargeStructuresGetTheViewOnly) {
+    auto entry = [](int atoms) {
+        Audit a;
+        a.title = "chain";
+        for (int i = 0; i < atoms; ++i) {
+            Atom atom;
+            atom.z = 6;
+            a.structure.molecule.add_atom(atom);
+            a.structure.positions.emplace_back(1.5 * i, 0.1 * (i % 3), 0);
+        }
+        ReportPage page("large");
+        page.add(a, 1, "chain.xyz");
+        return page.html();
+    };
+    const std::string small = entry(50), large = entry(20001);
+    EXPECT_NE(small.find("\\u003csvg"), std::string::npos);
+    EXPECT_EQ(small.find("No picture above"), std::string::npos);
+    EXPECT_EQ(large.find("\\u003csvg"), std::string::npos);
+    EXPECT_NE(large.find("No picture above 20000 atoms"), std::string::npos);
+}

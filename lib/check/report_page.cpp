@@ -53,6 +53,10 @@ std::string base_name(const std::string& path) {
     return slash == std::string::npos || slash + 1 == path.size() ? path : path.substr(slash + 1);
 }
 
+// Structures larger than this get the 3D view only in the page (a 10,000-atom picture is 3.4 MB of SVG; the page of
+// a structure file with a million atoms would otherwise carry a third of a gigabyte of it). Own choice.
+constexpr int kMaxPictureAtoms = 20000;
+
 double round_to(double v, double step) { return std::round(v / step) * step; }
 
 // Verdict order for sorting: clean, warnings, errors, not audited.
@@ -475,10 +479,16 @@ void ReportPage::add(const Audit& a, int number, const std::string& file) {
     PictureOptions po;
     po.marked.assign(flagged.begin(), flagged.end());
     po.width = 520;
-    try {
-        j["svg"] = picture_svg(a.structure, po);
-    } catch (const std::exception& e) {
-        j["svg"] = fmt::format("<p>no picture: {}</p>", escape_html(e.what()));
+    if (m.atom_count() > kMaxPictureAtoms) {
+        j["svg"] = fmt::format("<p class=\"empty\">No picture above {} atoms (it would weigh about 350 bytes an atom); "
+                               "the 3D view below shows the structure.</p>",
+                               kMaxPictureAtoms);
+    } else {
+        try {
+            j["svg"] = picture_svg(a.structure, po);
+        } catch (const std::exception& e) {
+            j["svg"] = fmt::format("<p>no picture: {}</p>", escape_html(e.what()));
+        }
     }
     data_.push_back(fmt::format("<script type=\"application/json\" id=\"s{}\">{}</script>\n", number, script_json(j)));
 }
