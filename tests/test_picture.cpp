@@ -389,3 +389,31 @@ TEST(ReportPage, LargeStructuresGetTheViewOnly) {
     EXPECT_EQ(large.find("\\u003csvg"), std::string::npos);
     EXPECT_NE(large.find("No picture above 20000 atoms"), std::string::npos);
 }
+
+// The same structure always gives the same bytes (no clock, no randomness), and a non-finite coordinate is refused
+// like the writers refuse it, naming the atom.
+TEST(Picture, DeterministicAndRefusesNonFiniteCoordinates) {
+    Molecule mol = read_species("CC(=O)Oc1ccccc1C(=O)O");
+    mol.make_hydrogens_explicit();
+    Structure s = build_structure(mol);
+    EXPECT_EQ(picture_svg(s), picture_svg(s));
+    s.positions[3].y() = std::nan("");
+    try {
+        (void)picture_svg(s);
+        ADD_FAILURE() << "a NaN coordinate was drawn";
+    } catch (const std::runtime_error& e) {
+        EXPECT_NE(std::string(e.what()).find("atom 4"), std::string::npos) << e.what();
+    }
+}
+
+// The legend names every element drawn and each bond kind present, and nothing absent.
+TEST(Picture, LegendListsWhatIsDrawn) {
+    const Drawn d = draw_shape("CC(=O)N");
+    std::string legend;
+    for (const Element& e : d.elements)
+        if (e.name == "text") legend += e.text + "|";
+    for (const char* item : {"C|", "H|", "N|", "O|", "single bond|", "double bond|", "farther away"})
+        EXPECT_NE(legend.find(item), std::string::npos) << item;
+    EXPECT_EQ(legend.find("triple bond"), std::string::npos);
+    EXPECT_EQ(legend.find("single electron"), std::string::npos);
+}

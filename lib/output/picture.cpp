@@ -136,6 +136,19 @@ std::string escape(std::string_view text) {
     return out;
 }
 
+// A line of text cut to the width it may take (an estimate: `advance` pixels a character), ending in "..." when cut;
+// never inside a UTF-8 sequence.
+std::string fit_line(const std::string& text, double width, double advance) {
+    const size_t fits = static_cast<size_t>(std::max(4.0, width / advance));
+    if (text.size() <= fits) return text;
+    size_t cut = fits - 3;
+    while (cut > 0 && (static_cast<unsigned char>(text[cut]) & 0xc0) == 0x80) --cut;
+    return text.substr(0, cut) + "...";
+}
+
+// Centres are numbered in shape pictures up to this many atoms; beyond, numbers would cover the drawing (own choice).
+constexpr int kMaxNumberedAtoms = 150;
+
 bool light_colour(const Rgb& c) { return 0.299 * c.r + 0.587 * c.g + 0.114 * c.b > 0.55; }
 
 struct Item {
@@ -431,7 +444,7 @@ std::string picture_svg(const Structure& s, const PictureOptions& o) {
     append("</defs>\n");
     if (!o.title.empty())
         append("<text x=\"{:.0f}\" y=\"{:.0f}\" font-size=\"16\" fill=\"{}\" class=\"title\">{}</text>\n", margin,
-               margin + 10, kInk, escape(o.title));
+               margin + 10, kInk, escape(fit_line(o.title, width - 2 * margin, 9.0)));
 
     // Everything in the drawing, far to near (painter's order). A bond sits at the depth of its farther atom and goes
     // before a ball at the same depth, so both of its balls cover its ends (a flat molecule has every bond under its
@@ -564,7 +577,7 @@ std::string picture_svg(const Structure& s, const PictureOptions& o) {
                                element(z).symbol, i + 1);
                 continue;
             }
-            const bool numbered = labelled[static_cast<size_t>(i)] != 0;
+            const bool numbered = labelled[static_cast<size_t>(i)] != 0 && n <= kMaxNumberedAtoms;
             const bool plain = label_heteroatoms && z != 6 && z != 1;
             if (numbered || plain) {
                 const std::string text = numbered ? fmt::format("{}{}", element(z).symbol, i + 1) : std::string(element(z).symbol);
@@ -590,7 +603,7 @@ std::string picture_svg(const Structure& s, const PictureOptions& o) {
     for (const std::string& line : o.captions) {
         cy += 18;
         append("<text class=\"caption\" x=\"{:.0f}\" y=\"{:.0f}\" font-size=\"13\" fill=\"{}\">{}</text>\n", margin,
-               cy - 4, kInk, escape(line));
+               cy - 4, kInk, escape(fit_line(line, width - 2 * margin, 7.3)));
     }
     if (!legend.empty()) {
         append("<g class=\"legend\" font-size=\"12\" fill=\"{}\">\n", kInk);
