@@ -495,7 +495,9 @@ std::string picture_svg(const Structure& s, const PictureOptions& o) {
             const double f = shrink(it.depth);
             const int lv = level(it.depth);
             const int sticks = bond.aromatic ? 2 : std::clamp(bond.order, 1, 3);
-            const double w = kStickWidth * scale * f * (sticks == 1 ? 1.0 : 0.72);
+            // Never thinner than half a pixel or smaller than a pixel across: a long structure drawn small stays
+            // visible as a trace of its atoms.
+            const double w = std::max(0.5, kStickWidth * scale * f * (sticks == 1 ? 1.0 : 0.72));
             const double mx = (ax + bx) / 2, my = (ay + by) / 2;
             const std::string ca = hex(mix(fogged(colour_of(m.atoms[static_cast<size_t>(bond.a)].z), lv), kBlack, 0.12));
             const std::string cb = hex(mix(fogged(colour_of(m.atoms[static_cast<size_t>(bond.b)].z), lv), kBlack, 0.12));
@@ -559,7 +561,7 @@ std::string picture_svg(const Structure& s, const PictureOptions& o) {
             const int i = it.index;
             const int z = m.atoms[static_cast<size_t>(i)].z;
             const Eigen::Vector3d& p = q[static_cast<size_t>(i)];
-            const double r = picture_ball_radius(z) * scale * shrink(p.z());
+            const double r = std::max(0.6, picture_ball_radius(z) * scale * shrink(p.z()));
             const int lv = level(p.z());
             const double x = sx(p), y = sy(p);
             append("<circle class=\"atom\" data-atom=\"{}\" data-element=\"{}\" cx=\"{:.1f}\" cy=\"{:.1f}\" r=\"{:.1f}\" "
