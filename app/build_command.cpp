@@ -20,6 +20,7 @@
 #include "input/records.hpp"
 #include "input/sd_molecule.hpp"
 #include "mpi_driver.hpp"
+#include "output/picture.hpp"
 
 namespace repel::app {
 
@@ -124,6 +125,12 @@ private:
 
 }  // namespace
 
+void write_whole_file(const std::string& path, const std::string& text) {
+    OutputFile out(path);
+    out.write(text);
+    if (!out.commit()) throw std::runtime_error("cannot write " + path);
+}
+
 int run_batch(const BuildArgs& args, const StructureWriter& writer, const BuildOptions& options);
 
 int run_build(const BuildArgs& args) {
@@ -149,24 +156,36 @@ int run_build(const BuildArgs& args) {
         return 2;
     }
 
+    Structure built;
     auto build_one = [&](const std::string& text, const std::string& name) {
         Molecule mol = read_species(text, args.notation);
         mol.name = name;
         mol.make_hydrogens_explicit();
-        Structure s = build_structure(mol, options);
-        return writer->record(s, name.empty() ? text : name);
+        built = build_structure(mol, options);
+        return writer->record(built, name.empty() ? text : name);
     };
 
+    if (!args.picture.empty() && !args.input_file.empty()) {
+        std::cerr << "repel build: " << kPictureBatchRefusal << "\n";
+        return 2;
+    }
     // A single species from the command line.
     if (args.input_file.empty()) {
-        std::string record;
+        std::string record, picture;
         try {
             record = build_one(args.input, args.name);
+            if (!args.picture.empty()) {
+                PictureOptions po;
+                po.title = args.name.empty() ? args.input : args.name;
+                po.hydrogens = args.picture_hydrogens;
+                picture = picture_svg(built, po);
+            }
         } catch (const std::exception& e) {
             std::cerr << describe_failure("repel build", args.input, e) << "\n";
             return 2;
         }
         try {
+            if (!args.picture.empty()) write_whole_file(args.picture, picture);
             OutputFile out(args.output_file);
             out.write(record);  // one molecule: the record alone (a JSON object, not an array)
             if (!out.commit()) throw std::runtime_error("cannot write " + args.output_file);

@@ -11,6 +11,7 @@
 #include "check/audit.hpp"
 #include "check/clean.hpp"
 #include "check/report.hpp"
+#include "check/report_page.hpp"
 #include "commands.hpp"
 #include "core/error.hpp"
 #include "core/limits.hpp"
@@ -25,7 +26,7 @@ int run_check(const CheckArgs& args) {
         std::cerr << "repel check: --fix needs -o FILE for the cleaned structure\n";
         return 2;
     }
-    if (args.file.empty()) {
+    if (args.files.empty()) {
         std::cerr << "repel check: give a structure file (.xyz, .pdb, .sdf, .mol)\n";
         return 2;
     }
@@ -37,30 +38,44 @@ int run_check(const CheckArgs& args) {
             return 2;
         }
     }
+    // Every structure of every file, in order, with the file it came from.
     std::vector<ReadStructure> structures;
-    try {
-        InputFormat format = InputFormat::xyz;
-        if (!args.format.empty()) {
-            format = args.format == "pdb" ? InputFormat::pdb
-                     : args.format == "sdf" || args.format == "mol" ? InputFormat::sdf
-                     : args.format == "xyz" ? InputFormat::xyz
-                     : throw InputError("--format: expected xyz, pdb or sdf, found '" + args.format + "'");
-        } else if (args.file == "-") {
-            throw InputError("reading standard input needs --format xyz|pdb|sdf");
-        } else {
-            format = input_format_from_path(args.file);
+    std::vector<size_t> file_of;
+    bool unreadable = false;
+    for (size_t fi = 0; fi < args.files.size(); ++fi) {
+        const std::string& path = args.files[fi];
+        try {
+            InputFormat format = InputFormat::xyz;
+            if (!args.format.empty()) {
+                format = args.format == "pdb" ? InputFormat::pdb
+                         : args.format == "sdf" || args.format == "mol" ? InputFormat::sdf
+                         : args.format == "xyz" ? InputFormat::xyz
+                         : throw InputError("--format: expected xyz, pdb or sdf, found '" + args.format + "'");
+            } else if (path == "-") {
+                throw InputError("reading standard input needs --format xyz|pdb|sdf");
+            } else {
+                format = input_format_from_path(path);
+            }
+            std::vector<ReadStructure> read;
+            if (path == "-") {
+                read = read_structures(std::cin, format);
+            } else {
+                std::ifstream in(path, std::ios::binary);
+                if (!in) throw InputError("cannot open " + path);
+                read = read_structures(in, format);
+            }
+            for (auto& r : read) {
+                structures.push_back(std::move(r));
+                file_of.push_back(fi);
+            }
+        } catch (const std::exception& e) {
+            std::cerr << describe_failure("repel check: " + path, "", e) << "\n";
+            if (args.files.size() == 1) return 2;
+            unreadable = true;
         }
-        if (args.file == "-") {
-            structures = read_structures(std::cin, format);
-        } else {
-            std::ifstream in(args.file, std::ios::binary);
-            if (!in) throw InputError("cannot open " + args.file);
-            structures = read_structures(in, format);
-        }
-    } catch (const std::exception& e) {
-        std::cerr << describe_failure("repel check: " + args.file, "", e) << "\n";
-        return 2;
     }
+    if (structures.empty() && unreadable) return 2;
+    const bool several = args.files.size() > 1;
 
     AuditOptions options;
     options.angle_rms = args.angle_rms;
@@ -73,7 +88,11 @@ int run_check(const CheckArgs& args) {
     options.time_limit = args.time_limit;
 
     nlohmann::json doc;
-    doc["file"] = args.file;
+    if (several) doc["files"] = args.files;
+    else doc["file"] = args.files.front();
+    std::unique_ptr<ReportPage> page;
+    if (!args.report.empty())
+        page = std::make_unique<ReportPage>(several ? fmt::format("{} files", args.files.size()) : args.files.front());
     doc["structures"] = nlohmann::json::array();
     size_t total = 0, written = 0, failed = 0;
     std::string text, cleaned;
@@ -91,13 +110,25 @@ int run_check(const CheckArgs& args) {
                 const std::string why = e.what();
                 std::cerr << fmt::format("repel check: structure {} (line {}) not audited: {}\n", k + 1,
                                          structures[k].line, why);
-                if (args.json) doc["structures"].push_back({{"line", structures[k].line}, {"error", why}});
+                if (page) page->add_failure(static_cast<int>(k + 1), args.files[file_of[k]], structures[k].line, why);
+                if (args.json) {
+                    nlohmann::json entry = {{"line", structures[k].line}, {"error", why}};
+                    if (several) entry["file"] = args.files[file_of[k]];
+                    doc["structures"].push_back(entry);
+                }
                 else text += fmt::format("structure {} (line {}): not audited: {}\n", k + 1, structures[k].line, why);
                 continue;
             }
             total += audit.findings.size();
-            if (args.json) doc["structures"].push_back(audit_json(audit));
-            else text += audit_text(audit, static_cast<int>(k + 1));
+            if (page) page->add(audit, static_cast<int>(k + 1), args.files[file_of[k]]);
+            if (args.json) {
+                nlohmann::json entry = audit_json(audit);
+                if (several) entry["file"] = args.files[file_of[k]];
+                doc["structures"].push_back(entry);
+            } else {
+                if (several && (k == 0 || file_of[k] != file_of[k - 1])) text += "file " + args.files[file_of[k]] + "\n";
+                text += audit_text(audit, static_cast<int>(k + 1));
+            }
             if (writer) {
                 // Only refined structures are written; the others are named on standard error.
                 CleanResult c;
@@ -132,6 +163,14 @@ int run_check(const CheckArgs& args) {
         std::cerr << "repel check: no structure could be cleaned; " << args.output_file << " not written\n";
         return 2;
     }
+    if (page) {
+        try {
+            write_whole_file(args.report, page->html());
+        } catch (const std::exception& e) {
+            std::cerr << "repel check: " << e.what() << "\n";
+            return 2;
+        }
+    }
     if (writer) {
         // Written whole or not at all: a temporary file renamed at the end.
         const std::string tmp = args.output_file + ".partial";
@@ -150,6 +189,7 @@ int run_check(const CheckArgs& args) {
             return 2;
         }
     }
+    if (unreadable) return 2;
     return total > 0 || failed > 0 ? 1 : 0;
 }
 

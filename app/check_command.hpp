@@ -3,11 +3,12 @@
 
 #include <optional>
 #include <string>
+#include <vector>
 
 namespace repel::app {
 
 struct CheckArgs {
-    std::string file;                 // FILE: .xyz, .pdb, .sdf/.mol, or - for standard input (then --format)
+    std::vector<std::string> files;   // FILE...: .xyz, .pdb, .sdf/.mol, or - for standard input (then --format)
     std::string format;               // --format xyz|pdb|sdf when the extension does not tell
     bool json = false;                // --json: one JSON document
     std::optional<int> charge;        // --charge (default: the file's, else 0)
@@ -20,9 +21,11 @@ struct CheckArgs {
     bool fix = false;                 // --fix: write a cleaned structure
     std::string output_file;          // -o with --fix (.xyz, .pdb, .sdf)
     double time_limit = 60;           // --time-limit: seconds per structure for the audit and again for --fix
+    std::string report;               // --report FILE.html: one self-contained page of every structure
 };
 
-// Exit status of the contract: 0 no finding, 1 findings, 2 the file cannot be read (or a usage error).
+// Exit status of the contract: 0 no finding, 1 findings, 2 a file cannot be read (or a usage error). With several
+// files, one that cannot be read is named and the others are still checked (status 2 at the end).
 int run_check(const CheckArgs& args);
 
 }  // namespace repel::app

@@ -33,6 +33,8 @@ struct BuildArgs {
     std::vector<std::string> polyhedra;     // --polyhedron ATOM=NAME, for metal centres
     std::optional<int> charge;        // --charge: must equal the written total charge
     std::optional<int> multiplicity;  // --multiplicity: written instead of the domain analysis's
+    std::string picture;      // --picture FILE.svg: a drawing of the one molecule built (refused with -i)
+    bool picture_hydrogens = true;  // --picture-without-hydrogens turns it off
 };
 
 struct ShapeArgs {
@@ -41,11 +43,22 @@ struct ShapeArgs {
     Notation notation = Notation::automatic;
     bool json = false;
     std::vector<std::string> polyhedra;  // --polyhedron ATOM=NAME
+    std::string picture;      // --picture FILE.svg: the built molecule with every centre's lone pairs (refused with -i)
+    bool picture_hydrogens = true;
 };
 
 // --polyhedron ATOM=NAME values (ATOM 1-based) as the library's per-centre choices. Throws InputError naming the
 // value that is not of that form or names no polyhedron the library knows.
 MetalOptions metal_options(const std::vector<std::string>& values);
+
+// Writes text to path through a temporary file renamed at the end (never a half-written file). Throws
+// std::runtime_error naming the file when it cannot be written.
+void write_whole_file(const std::string& path, const std::string& text);
+
+// The refusal of --picture for a batch (-i), the same for every command.
+constexpr const char* kPictureBatchRefusal =
+    "--picture draws one molecule and cannot be used with -i; draw a record on its own (a SMILES or formula on the "
+    "command line with --picture FILE.svg)";
 
 int run_build(const BuildArgs& args);
 int run_shape(const ShapeArgs& args);

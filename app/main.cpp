@@ -67,6 +67,10 @@ int run(int argc, char** argv) {
         "spin multiplicity 2S+1 to write for every record (default: the ground state where it is known, else the "
         "Lewis structure's unpaired electrons + 1); checked against the electron count")
         ->check(CLI::Range(1, 1000));
+    bool build_no_h = false;
+    cmd_build->add_option("--picture", build.picture,
+                          "also draw the molecule as a standalone SVG picture (one molecule only, not with -i)");
+    cmd_build->add_flag("--picture-without-hydrogens", build_no_h, "leave hydrogen atoms out of --picture");
     auto* in_opt = cmd_build->get_option("INPUT");
     auto* file_opt = cmd_build->get_option("--input");
     in_opt->excludes(file_opt);
@@ -82,12 +86,18 @@ int run(int argc, char** argv) {
         ->type_name("ATOM=NAME");
     cmd_shape->add_flag("--formula", shape_formula, "read INPUT as a formula only");
     cmd_shape->add_flag("--smiles", shape_smiles, "read INPUT as SMILES only");
+    bool shape_no_h = false;
+    cmd_shape->add_option("--picture", shape.picture,
+                          "also draw the built molecule as an SVG picture with every centre's lone pairs and single "
+                          "electrons, AXE class, shape and predicted angles (one molecule only, not with -i)");
+    cmd_shape->add_flag("--picture-without-hydrogens", shape_no_h, "leave hydrogen atoms out of --picture");
     cmd_shape->get_option("INPUT")->excludes(cmd_shape->get_option("--input"));
 
     CheckArgs check;
     int check_charge = 0, check_multiplicity = 0;
     CLI::App* cmd_check = app.add_subcommand("check", "audit a structure built elsewhere: what is wrong, where, how badly");
-    cmd_check->add_option("FILE", check.file, "a structure file: .xyz (one or several frames), .pdb, .sdf/.mol; - for standard input")
+    cmd_check->add_option("FILE", check.files,
+                          "structure files: .xyz (one or several frames), .pdb, .sdf/.mol; - for standard input")
         ->required();
     cmd_check->add_option("--format", check.format, "the file's format when the extension does not tell")
         ->check(CLI::IsMember({"xyz", "pdb", "sdf", "mol"}));
@@ -110,6 +120,9 @@ int run(int argc, char** argv) {
                           "the intended molecule (SMILES): compare atoms, connectivity, stereocentres and double bonds");
     cmd_check->add_flag("--fix", check.fix, "write a cleaned structure (with -o): same atoms and stereochemistry, relaxed");
     cmd_check->add_option("-o,--output", check.output_file, "where --fix writes (.xyz, .pdb, .sdf)");
+    cmd_check->add_option("--report", check.report,
+                          "also write one self-contained HTML page: a sortable, filterable table of every structure, "
+                          "and per structure its picture with the flagged atoms marked, its findings and a 3D view");
     cmd_check->add_option("--time-limit", check.time_limit,
                           "seconds one structure's audit (and again its --fix) may take before it is reported as not "
                           "audited (0: no limit)")
@@ -126,7 +139,7 @@ int run(int argc, char** argv) {
         return app.exit(e);
     } catch (const CLI::ParseError& e) {
         if (root) app.exit(e);
-        return 2;  // a usage error is exit status 2 (shared/docs/interface.md), whatever code the parser uses
+        return 2;  // a usage error is exit status 2 (docs/interface.md), whatever code the parser uses
     }
 
     auto notation = [](bool formula, bool smiles) {
@@ -144,6 +157,7 @@ int run(int argc, char** argv) {
         build.refine = !no_refine;
         if (build_charge_opt->count() > 0) build.charge = build_charge;
         if (build_mult_opt->count() > 0) build.multiplicity = build_multiplicity;
+        build.picture_hydrogens = !build_no_h;
         return run_build(build);
     }
     if (cmd_shape->parsed()) {
@@ -152,6 +166,7 @@ int run(int argc, char** argv) {
             return 2;
         }
         shape.notation = notation(shape_formula, shape_smiles);
+        shape.picture_hydrogens = !shape_no_h;
         return run_shape(shape);
     }
     if (cmd_check->parsed()) {

@@ -5,15 +5,22 @@
 #include <fstream>
 #include <iostream>
 
+#include "assemble/build.hpp"
 #include "commands.hpp"
 #include "core/error.hpp"
 #include "domains/domains.hpp"
 #include "input/records.hpp"
+#include "output/picture.hpp"
 #include "output/shape_report.hpp"
 
 namespace repel::app {
 
 int run_shape(const ShapeArgs& args) {
+    if (!args.picture.empty() && !args.input_file.empty()) {
+        std::cerr << "repel shape: " << kPictureBatchRefusal << "\n";
+        return 2;
+    }
+    std::string picture;
     auto analyse = [&](const std::string& text, const std::string& name, nlohmann::json* doc, std::string* table) {
         Molecule mol = read_species(text, args.notation);
         mol.name = name;
@@ -36,6 +43,11 @@ int run_shape(const ShapeArgs& args) {
         const std::string title = name.empty() ? text : name;
         if (doc) *doc = shape_json(mol, d, title);
         if (table) *table = shape_table(mol, d, title);
+        if (!args.picture.empty()) {
+            // The lobes need coordinates: the structure `repel build` would write, with this analysis's directions.
+            const Structure built = build_structure(mol);
+            picture = shape_picture_svg(built, d, title, args.picture_hydrogens);
+        }
     };
     if (args.input_file.empty()) {
         nlohmann::json doc;
@@ -45,6 +57,14 @@ int run_shape(const ShapeArgs& args) {
         } catch (const std::exception& e) {
             std::cerr << describe_failure("repel shape", args.input, e) << "\n";
             return 2;
+        }
+        if (!args.picture.empty()) {
+            try {
+                write_whole_file(args.picture, picture);
+            } catch (const std::exception& e) {
+                std::cerr << "repel shape: " << e.what() << "\n";
+                return 2;
+            }
         }
         std::cout << (args.json ? doc.dump(2) + "\n" : table);
         return 0;

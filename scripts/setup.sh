@@ -6,16 +6,29 @@ cd "$(dirname "$0")/.."
 
 packages=(build-essential cmake pkg-config libeigen3-dev libnlopt-cxx-dev libfmt-dev libspdlog-dev libcli11-dev
           nlohmann-json3-dev libgtest-dev libgmock-dev libbenchmark-dev libtbb-dev openmpi-bin libopenmpi-dev python3 python3-ase python3-numpy xtb
-          clang libclang-rt-14-dev)  # clang and its runtime libraries: the libFuzzer targets (scripts/fuzz.sh)
+          clang libclang-rt-14-dev  # clang and its runtime libraries: the libFuzzer targets (scripts/fuzz.sh)
+          chromium nodejs)  # the browser test of the check report (tests/external/check_report_browser.js)
 missing=()
 for p in "${packages[@]}"; do
   dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")
 done
+# npm installs puppeteer-core for the browser test. Debian's npm package only when no npm is there: a nodejs from
+# another source brings its own npm, and Debian's would conflict with it.
+command -v npm > /dev/null || missing+=(npm)
 if [ ${#missing[@]} -gt 0 ]; then
   echo "setup: installing ${missing[*]}"
   SUDO=""; [ "$(id -u)" -eq 0 ] || SUDO="sudo"
   $SUDO apt-get update -qq
   DEBIAN_FRONTEND=noninteractive $SUDO apt-get install -y -qq --no-install-recommends "${missing[@]}"
+fi
+
+# puppeteer-core for the browser test, from the npm registry at the version of package-lock.json; it drives Debian's
+# chromium and must never download a browser of its own (PUPPETEER_SKIP_DOWNLOAD). Skipped when it is up to date.
+browser_dir=tests/external/browser
+if [ ! -f "$browser_dir/node_modules/.package-lock.json" ] || \
+   [ "$browser_dir/package-lock.json" -nt "$browser_dir/node_modules/.package-lock.json" ]; then
+  echo "setup: installing puppeteer-core into $browser_dir/node_modules"
+  (cd "$browser_dir" && PUPPETEER_SKIP_DOWNLOAD=1 npm ci --no-audit --no-fund)
 fi
 
 cmake -S . -B build -DCMAKE_BUILD_TYPE=Release ${REPEL_CMAKE_ARGS:-}
