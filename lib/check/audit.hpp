@@ -33,11 +33,31 @@ struct AuditOptions {
     double planarity = 10.0;        // degrees: an AX3 centre (no lone pair) whose angles sum below 360 - this
     double bond_deviation = 0.25;   // Angstrom: |measured - expected| for a bond of the assigned order
     double contact_fraction = 0.6;  // non-bonded pairs (beyond 1-3) closer than this fraction of the vdW sum
+    // Metal centres (see kMetalShape and kMetalBond in audit.cpp for the data behind the defaults): the continuous
+    // shape measure of the coordination polyhedron against the model's, and |measured - expected| of a bond to a
+    // d-block metal (the model's metal-ligand length, domains/metal_lengths.cpp).
+    double metal_shape = 5.0;
+    double metal_bond_deviation = 0.3;
     PerceptionOptions perception;
     std::optional<int> charge;        // --charge (else the file's, else 0)
     std::optional<int> multiplicity;  // --multiplicity (else the file's, else none: unpaired electrons are findings)
     std::string reference_smiles;     // --smiles: the molecule the structure is meant to be (empty: none)
     double time_limit = kDefaultTimeLimit;  // seconds one structure may take (0: none); past it a LimitError
+};
+
+// A d-block centre as measured and as the model has it.
+struct MetalCentreAudit {
+    int atom = -1;                     // 0-based
+    int coordination_number = 0;       // ligand domains, a hapto ligand once (at the centroid of its atoms)
+    int oxidation_state = 0;           // ionic model (domains/metal.hpp)
+    int d_electrons = 0;
+    int unpaired_electrons = 0;
+    std::string model_polyhedron;      // the model's ("square planar", "sandwich", ...)
+    std::string model_reason;          // why (MetalCentre::polyhedron_reason)
+    std::string polyhedron;            // the ideal polyhedron of that coordination number nearest the measured one
+    std::string symbol;                // its IUPAC symbol ("SP-4"), or Alvarez's label
+    double shape_measure = -1;         // CShM against it (0 ideal .. 100); -1 when not measured (CN outside 2..9)
+    double model_shape_measure = -1;   // CShM against the model's own ligand directions; -1 when not measured
 };
 
 struct Audit {
@@ -50,6 +70,7 @@ struct Audit {
     int multiplicity = 1;           // the multiplicity implied (or given)
     std::vector<Finding> findings;  // worst first
     std::vector<std::string> notes; // facts for the user that are not findings (assigned charges, ground states)
+    std::vector<MetalCentreAudit> metals;  // one per d-block centre, in atom order (empty without metals)
 };
 
 // Throws InputError when options.reference_smiles does not read.
