@@ -249,3 +249,17 @@ TEST(CheckMetals, FixRestoresThePolyhedronOrRefuses) {
     EXPECT_FALSE(cf.refined);
     EXPECT_NE(cf.summary.find("hapto"), std::string::npos) << cf.summary;
 }
+
+TEST(CheckMetals, OwnSdfFilesGiveNoFinding) {
+    // SD files state orders and charges as the build writes them (NH3 with four bonds, neutral Cl bonded to Pt, C5H5
+    // rings bonded through all five atoms): no valence finding at the donors.
+    for (const char* smiles : {kCisplatin, kFerrocene, "[O+]#[C-][Ni]([C-]#[O+])([C-]#[O+])[C-]#[O+]"}) {
+        Molecule m = read_smiles(smiles);
+        m.make_hydrogens_explicit();
+        std::istringstream in(make_writer(Format::sdf)->record(build_structure(m), smiles));
+        const Audit a = audit_structure(read_sdf(in).at(0));
+        EXPECT_TRUE(a.findings.empty()) << smiles << "\n" << audit_text(a, 1);
+        ASSERT_EQ(a.metals.size(), 1u) << smiles;
+        EXPECT_LT(a.metals[0].model_shape_measure, 0.1) << smiles;
+    }
+}

@@ -579,6 +579,25 @@ std::vector<int> valence_shortfall(const Molecule& m) {
         const Atom& a = m.atoms[static_cast<size_t>(i)];
         if (valence_states(a.z).empty()) continue;
         if (first_state(a.z, 0, a.charge).valence < 0) continue;  // a charge the table does not know: no opinion
+        int to_metals = 0;
+        for (const Neighbor& nb : m.neighbors(i))
+            if (is_d_block_metal(m.atoms[static_cast<size_t>(nb.atom)].z)) to_metals += m.bonds[static_cast<size_t>(nb.bond)].order;
+        if (to_metals > 0) {
+            // A donor: its bonds to metals count as covalent for as many units as its valence needs, the rest as
+            // dative (a lone pair each), as domains/metal.cpp counts them: NH3-Pt, Cl-Pt and C5H5 rings on Fe are
+            // all satisfied as written.
+            const int own = m.bond_order_sum(i) - to_metals + std::max(0, a.radical_electrons);
+            bool satisfied = false;
+            for (int t = 0; t <= to_metals && !satisfied; ++t) satisfied = first_state(a.z, own + t, a.charge).valence == own + t;
+            if (satisfied) continue;
+            if (first_state(a.z, own, a.charge).valence < 0) {
+                out[static_cast<size_t>(i)] = -1;
+                continue;
+            }
+            const State s = first_state(a.z, own + to_metals, a.charge);
+            out[static_cast<size_t>(i)] = s.valence < 0 ? 0 : s.valence - own - to_metals;
+            continue;
+        }
         const int bonds = m.bond_order_sum(i) + std::max(0, a.radical_electrons);
         const State s = first_state(a.z, bonds, a.charge);
         out[static_cast<size_t>(i)] = s.valence < 0 ? -1 : s.valence - bonds;

@@ -70,7 +70,8 @@ ValenceResult assign_valences_ionic(Molecule& molecule, const std::vector<Eigen:
 
 // For a molecule with orders and charges given (SDF): per atom, the electrons by which it falls short of its
 // nearest normal valence for its charge (0 when satisfied or when the charge has no tabulated state), and -1 for an
-// atom with more bonds than any valence allows.
+// atom with more bonds than any valence allows. Bonds to d-block metals count as covalent as far as the donor's
+// valence needs, dative beyond (an NH3 or a C5H5 ring on a metal is satisfied as written).
 std::vector<int> valence_shortfall(const Molecule& molecule);
 
 }  // namespace repel
