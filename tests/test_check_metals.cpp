@@ -263,3 +263,35 @@ TEST(CheckMetals, OwnSdfFilesGiveNoFinding) {
         EXPECT_LT(a.metals[0].model_shape_measure, 0.1) << smiles;
     }
 }
+
+TEST(CheckMetals, CisLigandMovedTransIsFoundAgainstTheReference) {
+    // Cisplatin with Cl3 and the NH3 trans to Cl1 swapped (whole ligands, hydrogens along): transplatin. Without a
+    // reference that is a valid isomer; against the cis SMILES (its @SP1 mark) it is a stereocentre finding at Pt.
+    ReadStructure r = built(kCisplatin);
+    auto& p = positions(r);
+    int trans_to_cl1 = -1;  // the N opposite Cl1 (0-based 3 or 4)
+    for (int n : {3, 4})
+        if ((p[static_cast<size_t>(n)] - p[1]).normalized().dot((p[0] - p[1]).normalized()) < -0.9) trans_to_cl1 = n;
+    ASSERT_GE(trans_to_cl1, 0);
+    // Both groups taken before either moves (a moved NH3's hydrogens would otherwise count as the Cl's).
+    const std::vector<int> ammine = ligand_group(r, trans_to_cl1), chloride = ligand_group(r, 2);
+    const Eigen::Quaterniond to_cl = Eigen::Quaterniond::FromTwoVectors(p[static_cast<size_t>(trans_to_cl1)] - p[1], p[2] - p[1]);
+    const Eigen::Quaterniond to_n = Eigen::Quaterniond::FromTwoVectors(p[2] - p[1], p[static_cast<size_t>(trans_to_cl1)] - p[1]);
+    const Vector3d o = p[1];
+    for (int i : ammine) p[static_cast<size_t>(i)] = o + to_cl * (p[static_cast<size_t>(i)] - o);
+    for (int i : chloride) p[static_cast<size_t>(i)] = o + to_n * (p[static_cast<size_t>(i)] - o);
+    EXPECT_TRUE(audit_structure(r).findings.empty()) << all_findings(audit_structure(r));
+    AuditOptions cis;
+    cis.reference_smiles = kCisplatin;
+    const Audit a = audit_structure(r, cis);
+    ASSERT_EQ(a.findings.size(), 1u) << all_findings(a);
+    EXPECT_EQ(a.findings[0].kind, "stereocentre");
+    EXPECT_EQ(a.findings[0].atoms.at(0), 2);
+    AuditOptions trans;
+    trans.reference_smiles = "Cl[Pt@SP2](Cl)([NH3])[NH3]";
+    EXPECT_TRUE(audit_structure(r, trans).findings.empty()) << all_findings(audit_structure(r, trans));
+    // The sandwich written as separate ions is the reference of the built ferrocene.
+    AuditOptions fc;
+    fc.reference_smiles = kFerrocene;
+    EXPECT_TRUE(audit_structure(built(kFerrocene), fc).findings.empty());
+}
