@@ -319,6 +319,10 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
             valence = assign_valences_ionic(m, pos, out.charge, &excluded);
             out.notes.push_back("ionic model at the metal centres: the ligands are taken as the closed-shell species "
                                 "cut off the metal, which takes what is left of the total charge (its oxidation state)");
+            // The coordinates cannot tell a complex's charge: the metal absorbs whatever is assumed.
+            if (!opt.charge && !in.has_charge)
+                out.notes.push_back("no total charge given: the metal oxidation states assume a neutral structure "
+                                    "(give --charge for an ion)");
         } else {
             valence = in.has_orders
                           ? assign_valences(m, pos, out.charge, unpaired_allowed, &in.needs_orders, true, &excluded)
