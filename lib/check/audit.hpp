@@ -35,15 +35,17 @@ struct AuditOptions {
     double contact_fraction = 0.6;  // non-bonded pairs (beyond 1-3) closer than this fraction of the vdW sum
     // Metal centres. The continuous shape measure (0..100) of the polyhedron against the model's, past which a
     // centre whose nearest ideal polyhedron is not the model's is a finding. Measured (tests/test_check_metals.cpp,
-    // tests/external/check_audit_metals.py): repel's own builds of 14 complexes 0.00-0.03, their GFN2-xTB optima
-    // 0.00-0.28 (cisplatin the most); damaged: a Cl of cisplatin turned 45 deg out of the plane 4.96 (nearest SS-4),
-    // cisplatin made tetrahedral 33.3, an octahedron twisted into a trigonal prism 16.9. 3.0 is ten times the
-    // worst optimum and about the point where a ligand turned out of a square plane makes it a seesaw (a choice).
+    // tests/external/check_audit_metals.py): repel's own builds of 18 complexes 0.00-0.03 (but [Co(en)3]3+, built
+    // as a trigonal prism: 12.0, a true finding); GFN2-xTB optima of 19 complexes 0.00-0.30 (cisplatin 0.28,
+    // [Co(en)3]3+ 0.30); damaged: a Cl of cisplatin turned 45 deg out of the plane 4.96 (nearest SS-4), cisplatin
+    // made tetrahedral 33.3, an octahedron twisted into a trigonal prism 16.9. 3.0 is ten times the worst optimum and
+    // about the point where a ligand turned out of a square plane makes it a seesaw (a choice).
     double metal_shape = 3.0;
     // Angstrom, |measured - expected| of a bond to a d-block metal against the model's length
-    // (domains/metal_lengths.cpp). GFN2-xTB optima of the same 14 complexes: -0.095..+0.130 A (the longest the Pt-N
-    // bonds trans to Cl in cisplatin, a trans influence the model leaves out); 0.3 A keeps more than twice that
-    // spread, since crystal structures spread wider still (Jahn-Teller axes, trans influence; a choice).
+    // (domains/metal_lengths.cpp). GFN2-xTB optima of the same 19 complexes: -0.149..+0.184 A (the extremes the
+    // Jahn-Teller axis of [Cu(H2O)6]2+, which GFN2 places otherwise than the model, then the Pt-N bonds trans to Cl in
+    // cisplatin, +0.13, a trans influence the model leaves out); 0.3 A keeps more than that spread, since crystal
+    // structures spread wider still (a choice).
     double metal_bond_deviation = 0.3;
     PerceptionOptions perception;
     std::optional<int> charge;        // --charge (else the file's, else 0)

@@ -1,10 +1,11 @@
 """`repel check` passes metal complexes optimised by a quantum-chemistry program clean, and finds a damaged one.
 
 Client: xtb (Debian package `xtb`, GFN2-xTB, Bannwarth, Ehlert and Grimme, J. Chem. Theory Comput. 15 (2019) 1652).
-For six closed-shell complexes (cisplatin, hexaamminecobalt(III), ferrocene, tetracarbonylnickel, tetrachloro-
-platinate(II), cyclopentadienylmanganese tricarbonyl): `repel build SMILES -o start.xyz`, `xtb start.xyz --opt --chrg Q
---uhf 0` (OMP_NUM_THREADS=1), then `repel check xtbopt.xyz --charge Q --multiplicity 1 --json` must report no
-finding and name the expected polyhedron (IUPAC symbol) and oxidation state for the metal. The optimised cisplatin
+For ten complexes (cisplatin, hexaamminecobalt(III), tris(ethylenediamine)cobalt(III), ferrocene,
+tetracarbonylnickel, tetrachloroplatinate(II), tetracyanonickelate(II), molybdate, cyclopentadienylmanganese
+tricarbonyl, and hexaaquacopper(II), the one open shell): `repel build SMILES -o start.xyz`, `xtb start.xyz --opt
+--chrg Q --uhf U` (OMP_NUM_THREADS=1), then `repel check xtbopt.xyz --charge Q --multiplicity U+1 --json` must report
+no finding and name the expected polyhedron (IUPAC symbol) and oxidation state for the metal. The optimised cisplatin
 with its four ligands turned onto a tetrahedron must give one geometry finding, at platinum.
 Usage: check_audit_metals.py /path/to/repel
 """
@@ -16,14 +17,18 @@ import sys
 import tempfile
 
 XTB = "/usr/bin/xtb"
-# (SMILES, charge, metal atom 1-based, polyhedron symbol, oxidation state): the ionic model's counts (common practice).
+# (SMILES, charge, unpaired electrons, metal atom 1-based, polyhedron symbol, oxidation state): the ionic model's counts (common practice).
 COMPLEXES = [
-    ("Cl[Pt@SP1](Cl)([NH3])[NH3]", 0, 2, "SP-4", 2),
-    ("[NH3][Co+3]([NH3])([NH3])([NH3])([NH3])[NH3]", 3, 2, "OC-6", 3),
-    ("C1=CC=C[CH-]1.C1=CC=C[CH-]1.[Fe+2]", 0, 11, "L-2", 2),
-    ("[O+]#[C-][Ni]([C-]#[O+])([C-]#[O+])[C-]#[O+]", 0, 3, "T-4", 0),
-    ("Cl[Pt-2](Cl)(Cl)Cl", -2, 2, "SP-4", 2),
-    ("[cH-]1cccc1.[Mn+]([C-]#[O+])([C-]#[O+])[C-]#[O+]", 0, 6, None, 1),  # piano stool: no reference polyhedron
+    ("Cl[Pt@SP1](Cl)([NH3])[NH3]", 0, 0, 2, "SP-4", 2),
+    ("[NH3][Co+3]([NH3])([NH3])([NH3])([NH3])[NH3]", 3, 0, 2, "OC-6", 3),
+    ("C1C[NH2][Co+3]23([NH2]1)([NH2]CC[NH2]2)[NH2]CC[NH2]3", 3, 0, 4, "OC-6", 3),
+    ("C1=CC=C[CH-]1.C1=CC=C[CH-]1.[Fe+2]", 0, 0, 11, "L-2", 2),
+    ("[O+]#[C-][Ni]([C-]#[O+])([C-]#[O+])[C-]#[O+]", 0, 0, 3, "T-4", 0),
+    ("Cl[Pt-2](Cl)(Cl)Cl", -2, 0, 2, "SP-4", 2),
+    ("N#C[Ni-2](C#N)(C#N)C#N", -2, 0, 3, "SP-4", 2),
+    ("[O-][Mo](=O)(=O)[O-]", -2, 0, 2, "T-4", 6),
+    ("[cH-]1cccc1.[Mn+]([C-]#[O+])([C-]#[O+])[C-]#[O+]", 0, 0, 6, None, 1),  # piano stool: no reference polyhedron
+    ("[OH2][Cu+2]([OH2])([OH2])([OH2])([OH2])[OH2]", 2, 1, 2, "OC-6", 2),
 ]
 
 
@@ -71,8 +76,8 @@ def tetrahedral_cisplatin(symbols, coords):
     return out
 
 
-def check(repel, path, charge):
-    c = subprocess.run([repel, "check", path, "--json", "--charge", str(charge), "--multiplicity", "1"],
+def check(repel, path, charge, unpaired=0):
+    c = subprocess.run([repel, "check", path, "--json", "--charge", str(charge), "--multiplicity", str(unpaired + 1)],
                        capture_output=True, text=True, timeout=120)
     doc = json.loads(c.stdout) if c.stdout.strip() else {}
     return c.returncode, doc.get("structures", [{}])[0]
@@ -85,20 +90,20 @@ def main():
         return 77
     env = dict(os.environ, OMP_NUM_THREADS="1")
     failures = []
-    for smiles, charge, metal, symbol, ox in COMPLEXES:
+    for smiles, charge, unpaired, metal, symbol, ox in COMPLEXES:
         with tempfile.TemporaryDirectory() as tmp:
             r = subprocess.run([repel, "build", smiles, "-o", "start.xyz"], cwd=tmp, capture_output=True, text=True,
                                timeout=120)
             if r.returncode != 0:
                 failures.append(f"{smiles}: repel build failed: {r.stderr.strip()}")
                 continue
-            x = subprocess.run([XTB, "start.xyz", "--opt", "--chrg", str(charge), "--uhf", "0"], cwd=tmp,
+            x = subprocess.run([XTB, "start.xyz", "--opt", "--chrg", str(charge), "--uhf", str(unpaired)], cwd=tmp,
                                capture_output=True, text=True, timeout=300, env=env)
             opt = os.path.join(tmp, "xtbopt.xyz")
             if x.returncode != 0 or not os.path.exists(opt):
                 failures.append(f"{smiles}: xtb did not optimise (exit {x.returncode})")
                 continue
-            code, s = check(repel, opt, charge)
+            code, s = check(repel, opt, charge, unpaired)
             findings = [f["message"] for f in s.get("findings", [])]
             centre = (s.get("metal_centres") or [{}])[0]
             if code != 0 or findings:
@@ -108,7 +113,7 @@ def main():
                 failures.append(f"{smiles}: metal centre {centre}")
             print(f"{smiles}: {centre.get('polyhedron_symbol')} CShM {centre.get('shape_measure', -1):.2f}, "
                   f"model {centre.get('model_polyhedron')} CShM {centre.get('model_shape_measure', -1):.2f}")
-            if metal == 2 and symbol == "SP-4" and charge == 0:
+            if smiles.startswith("Cl[Pt@SP1]"):
                 symbols, coords = read_xyz(opt)
                 write_xyz(os.path.join(tmp, "tetrahedral.xyz"), symbols, tetrahedral_cisplatin(symbols, coords))
                 code, s = check(repel, os.path.join(tmp, "tetrahedral.xyz"), charge)
