@@ -3,7 +3,6 @@
 #include <fmt/format.h>
 
 #include <Eigen/Geometry>
-#include <algorithm>
 #include <cmath>
 
 #include "check/shape_measure.hpp"
@@ -30,27 +29,6 @@ double torsion(const std::vector<Eigen::Vector3d>& p, int a, int b, int c, int d
 
 // A signed volume below this (A^3) is too flat to say which hand the centre has; it is not kept.
 constexpr double kMinVolume = 0.1;
-
-// The skeleton's analysis with a target length for every bond of the whole molecule, the bonds of hapto ligands
-// included (the skeleton's bonds are the molecule's without those, in the same order): what the build refines with.
-MoleculeDomains with_hapto_lengths(const Molecule& molecule, const MoleculeDomains& skeleton_domains) {
-    MoleculeDomains d = skeleton_domains;
-    const MetalAnalysis& ma = skeleton_domains.metals;
-    d.bond_lengths.clear();
-    size_t k = 0;
-    for (const Bond& b : molecule.bonds) {
-        double hapto_length = 0;
-        for (int side = 0; side < 2 && hapto_length == 0; ++side) {
-            const int metal = side == 0 ? b.a : b.b, other = side == 0 ? b.b : b.a;
-            const int c = ma.centre_of_atom[static_cast<size_t>(metal)];
-            if (c < 0 || !ma.hapto_atom[static_cast<size_t>(other)]) continue;
-            for (const LigandDomain& l : ma.centres[static_cast<size_t>(c)].ligands)
-                if (l.hapto() && std::find(l.atoms.begin(), l.atoms.end(), other) != l.atoms.end()) hapto_length = l.length;
-        }
-        d.bond_lengths.push_back(hapto_length > 0 ? hapto_length : skeleton_domains.bond_lengths[k++]);
-    }
-    return d;
-}
 
 // CShM of a metal centre's ligand directions (a hapto ligand at its centroid) against the model's directions.
 double model_shape(const MetalCentre& c, const std::vector<Eigen::Vector3d>& pos) {
@@ -86,28 +64,25 @@ CleanResult clean_structure(const Audit& audit) {
     const Molecule& m = out.structure.molecule;
     auto& pos = out.structure.positions;
     try {
-        // A complex is refined as the build refines it: its metals analysed on the whole molecule, the domains and
-        // rings on the skeleton without the bonds of hapto ligands, every bond (those included) with its length.
+        // A complex is refined with its metals analysed as the build analyses them (metal.hpp); hapto ligands are
+        // refused below, so the skeleton is the whole molecule.
         bool any_metal = false;
         for (const Atom& a : m.atoms) any_metal = any_metal || is_d_block_metal(a.z);
         MetalAnalysis metals;
         if (any_metal) metals = analyse_metals(m, true);
-        const bool hapto = !metals.hapto_bonds.empty();
         // Measured: refining repel's own ferrocene and CpMn(CO)3 from their built coordinates bent every ring
         // hydrogen out of its ring plane (angle sums 345 deg; the refinement holds a centre planar only with three
-        // neighbours, and a ring atom has four with its metal). Refused until it keeps them planar.
-        if (hapto) {
+        // neighbours, and a ring atom has four with its metal). Refused until it keeps them planar; then refine as
+        // build_structure does (the skeleton without hapto bonds, ring_graph, lengths for the hapto bonds).
+        if (!metals.hapto_bonds.empty()) {
             out.summary = fmt::format("not refined: atom {} ({}) has a hapto ligand, and the refinement does not keep "
                                       "the ring atoms of hapto ligands planar yet; the structure is left as it was",
                                       metals.hapto_bonds.front().first + 1,
                                       element(m.atoms[static_cast<size_t>(metals.hapto_bonds.front().first)].z).symbol);
             return out;
         }
-        const Molecule skeleton = hapto ? without_hapto_bonds(m, metals) : m;
-        const MoleculeDomains skeleton_domains = analyse_domains(skeleton, true, any_metal ? &metals : nullptr);
-        const MoleculeDomains d = hapto ? with_hapto_lengths(m, skeleton_domains) : skeleton_domains;
-        RefineOptions refine_options;
-        refine_options.ring_graph = hapto ? &skeleton : nullptr;
+        const Molecule& skeleton = m;
+        const MoleculeDomains d = analyse_domains(m, true, any_metal ? &metals : nullptr);
         std::vector<ChiralTarget> chiral;
         for (int i = 0; i < m.atom_count(); ++i) {
             const auto& nb = skeleton.neighbors(i);
@@ -128,7 +103,7 @@ CleanResult clean_structure(const Audit& audit) {
             doubles.push_back({a, b.a, b.b, c, std::fabs(torsion(pos, a, b.a, b.b, c)) < 90});
         }
         const std::vector<Eigen::Vector3d> before = pos;
-        RefineResult r = refine_structure(m, d, chiral, doubles, pos, refine_options);
+        RefineResult r = refine_structure(m, d, chiral, doubles, pos);
         // The refinement must keep each metal's polyhedron: a centre that ends further from the model's polyhedron
         // than the audit's threshold, and further than it started, is left as it was (a refusal, said).
         for (const MetalCentre& c : metals.centres) {
