@@ -18,6 +18,7 @@
 #include "core/error.hpp"
 #include "core/neighbor_grid.hpp"
 #include "check/compare.hpp"
+#include "check/shape_measure.hpp"
 #include "domains/domains.hpp"
 #include "input/smiles.hpp"
 
@@ -171,6 +172,83 @@ AngleFit fit_angles(const Molecule& m, const std::vector<Eigen::Vector3d>& pos, 
     return fit;
 }
 
+// The IUPAC symbol of the reference polyhedron that is the model's polyhedron (domains/metal.cpp names), or "" where
+// the model's shape is not one of the reference polyhedra (a piano stool; a hapto ligand taking several sites).
+std::string_view model_symbol(const std::string& polyhedron, int coordination_number) {
+    static const std::pair<std::string_view, std::string_view> kNames[] = {
+        {"linear", "L-2"},          {"trigonal planar", "TP-3"},       {"T-shaped", "TS-3"},
+        {"tetrahedral", "T-4"},     {"square planar", "SP-4"},        {"seesaw", "SS-4"},
+        {"trigonal bipyramidal", "TBPY-5"}, {"square pyramidal", "SPY-5"}, {"octahedral", "OC-6"},
+        {"trigonal prismatic", "TPR-6"},    {"pentagonal bipyramidal", "PBPY-7"},
+        {"square antiprismatic", "SAPR-8"}, {"cubic", "CU-8"},           {"tricapped trigonal prismatic", "TCTPR-9"}};
+    if (polyhedron == "sandwich" && coordination_number == 2) return "L-2";
+    for (const auto& [name, symbol] : kNames)
+        if (name == polyhedron) {
+            // The name holds for the sites; with a hapto ligand on several sites the domains are fewer.
+            const int vertices = symbol.back() - '0';
+            return vertices == coordination_number ? symbol : std::string_view();
+        }
+    return {};
+}
+
+// Unit vectors from the metal to each ligand domain (a hapto ligand at the centroid of its atoms): the polyhedron's
+// shape by its directions alone, since the bond lengths are judged on their own and a hapto ligand's centroid sits
+// much closer than a sigma donor.
+std::vector<Eigen::Vector3d> ligand_directions(const MetalCentre& c, const std::vector<Eigen::Vector3d>& pos) {
+    std::vector<Eigen::Vector3d> out;
+    const Eigen::Vector3d& o = pos[static_cast<size_t>(c.atom)];
+    for (const LigandDomain& l : c.ligands) {
+        Eigen::Vector3d p = Eigen::Vector3d::Zero();
+        for (int a : l.atoms) p += pos[static_cast<size_t>(a)];
+        p /= static_cast<double>(l.atoms.size());
+        const Eigen::Vector3d v = p - o;
+        if (v.norm() < 1e-6) return {};
+        out.push_back(v.normalized());
+    }
+    return out;
+}
+
+void check_metal_centre(Audit& out, const MetalCentre& c, const std::vector<Eigen::Vector3d>& pos,
+                        const AuditOptions& opt) {
+    const Molecule& m = out.structure.molecule;
+    MetalCentreAudit a;
+    a.atom = c.atom;
+    a.coordination_number = c.coordination_number;
+    a.oxidation_state = c.oxidation_state;
+    a.d_electrons = c.d_electrons;
+    a.unpaired_electrons = c.unpaired_electrons;
+    a.model_polyhedron = c.polyhedron;
+    a.model_reason = c.polyhedron_reason;
+    const int cn = c.coordination_number;
+    const std::vector<Eigen::Vector3d> dirs = ligand_directions(c, pos);
+    if (cn >= 2 && cn <= 9 && static_cast<int>(dirs.size()) == cn) {
+        const Eigen::Vector3d origin = Eigen::Vector3d::Zero();
+        const std::vector<ShapeVerdict> verdicts = shape_measures(dirs, origin);
+        a.polyhedron = std::string(verdicts.front().name);
+        a.symbol = std::string(verdicts.front().symbol);
+        a.shape_measure = verdicts.front().measure;
+        if (static_cast<int>(c.directions.size()) == cn) {
+            ReferencePolyhedron model{c.polyhedron, model_symbol(c.polyhedron, cn), cn, {}};
+            for (const Eigen::Vector3d& d : c.directions) model.points.push_back(d.normalized());
+            a.model_shape_measure = continuous_shape_measure(dirs, origin, model);
+            const std::string_view own = model_symbol(c.polyhedron, cn);
+            if (a.model_shape_measure > opt.metal_shape && own != verdicts.front().symbol) {
+                const double ratio = a.model_shape_measure / opt.metal_shape;
+                out.findings.push_back(
+                    {"geometry", {c.atom + 1},
+                     fmt::format("{} ({}, {}{}): the coordination polyhedron is nearest a {} ({}, CShM {:.2f}); "
+                                 "CShM {:.2f} from the model's {}",
+                                 label(m, c.atom), fmt::format("d{}, oxidation state {:+d}", c.d_electrons,
+                                                               c.oxidation_state),
+                                 c.polyhedron, own.empty() ? "" : fmt::format(" {}", own), a.polyhedron, a.symbol,
+                                 a.shape_measure, a.model_shape_measure, c.polyhedron),
+                     a.model_shape_measure, 0.0, "", severity_of(ratio), ratio});
+            }
+        }
+    }
+    out.metals.push_back(std::move(a));
+}
+
 void check_valences(Audit& out, const ValenceResult& v, int unpaired_allowed, bool multiplicity_known) {
     const Molecule& m = out.structure.molecule;
     for (int i : v.overbonded) {
@@ -233,11 +311,23 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
     }
     check_deadline("perceiving bonds");
     ValenceResult valence;
+    bool any_metal = false;
+    for (const Atom& a : m.atoms) any_metal = any_metal || is_d_block_metal(a.z);
     if (!in.has_orders || !in.needs_orders.empty()) {
         out.orders_assigned = true;
-        valence = in.has_orders
-                      ? assign_valences(m, pos, out.charge, unpaired_allowed, &in.needs_orders, true, &excluded)
-                      : assign_valences(m, pos, out.charge, unpaired_allowed, nullptr, false, &excluded);
+        if (any_metal && !in.has_orders) {
+            valence = assign_valences_ionic(m, pos, out.charge, &excluded);
+            out.notes.push_back("ionic model at the metal centres: the ligands are taken as the closed-shell species "
+                                "cut off the metal, which takes what is left of the total charge (its oxidation state)");
+            // The coordinates cannot tell a complex's charge: the metal absorbs whatever is assumed.
+            if (!opt.charge && !in.has_charge)
+                out.notes.push_back("no total charge given: the metal oxidation states assume a neutral structure "
+                                    "(give --charge for an ion)");
+        } else {
+            valence = in.has_orders
+                          ? assign_valences(m, pos, out.charge, unpaired_allowed, &in.needs_orders, true, &excluded)
+                          : assign_valences(m, pos, out.charge, unpaired_allowed, nullptr, false, &excluded);
+        }
     } else {
         valence.unpaired.assign(static_cast<size_t>(n), 0);
         std::vector<int> shortfall = valence_shortfall(m);
@@ -314,8 +404,21 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
         for (Atom& a : analysed.atoms) a.hydrogens = 0;
     }
     std::vector<int> lone_pairs(static_cast<size_t>(n), 0);
+    // Per bond of m: the model's length of a bond to a d-block metal (0: not such a bond, or no analysis).
+    std::vector<double> metal_length(m.bonds.size(), 0.0);
     try {
         MoleculeDomains d = analyse_domains(analysed);
+        for (size_t e = 0; e < analysed.bonds.size(); ++e) {
+            const Bond& b = analysed.bonds[e];
+            if (!is_d_block_metal(analysed.atoms[static_cast<size_t>(b.a)].z) &&
+                !is_d_block_metal(analysed.atoms[static_cast<size_t>(b.b)].z))
+                continue;
+            const int k = m.bond_between(b.a, b.b);
+            if (k >= 0 && e < d.bond_lengths.size()) metal_length[static_cast<size_t>(k)] = d.bond_lengths[e];
+        }
+        // The angles at ligand atoms are judged without the bonds of hapto ligands (a ring carbon of a
+        // cyclopentadienyl has its three sigma domains; the metal is not one of them).
+        const Molecule skeleton = without_hapto_bonds(analysed, d.metals);
         for (int i = 0; i < n; ++i)
             lone_pairs[static_cast<size_t>(i)] =
                 d.atoms[static_cast<size_t>(i)].lone_pairs + d.atoms[static_cast<size_t>(i)].delocalised_lone_pairs;
@@ -326,16 +429,21 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
             if (skip[static_cast<size_t>(i)]) continue;
             const CentreDomains& c = d.atoms[static_cast<size_t>(i)];
             lone_pairs[static_cast<size_t>(i)] = c.lone_pairs + c.delocalised_lone_pairs;
-            if (c.bonded < 2 || c.angles.empty() || in_small_ring(analysed, i)) continue;
+            if (!d.metals.empty() && d.metals.centre_of_atom[static_cast<size_t>(i)] >= 0) {
+                check_metal_centre(out, d.metals.centres[static_cast<size_t>(d.metals.centre_of_atom[static_cast<size_t>(i)])],
+                                   pos, opt);
+                continue;
+            }
+            if (c.bonded < 2 || c.angles.empty() || in_small_ring(skeleton, i)) continue;
             // Two unpaired electrons (a triplet carbene) count as a lone pair in the Lewis structure: no prediction.
             if (valence.unpaired[static_cast<size_t>(i)] >= 2) continue;
-            AngleFit fit = fit_angles(analysed, pos, c, conjugated_nitrogen(analysed, i, c));
+            AngleFit fit = fit_angles(skeleton, pos, c, conjugated_nitrogen(skeleton, i, c));
             // A single-electron domain is the model's least certain size (NO2 opens to 134 degrees, CH3 is flat):
             // twice the tolerance at a radical centre.
             // The same next to an atom left with an unpaired electron: where the electron sits in the Lewis
             // structure is a choice (NO2's O=N-O. has it on O; the molecule has most of it on N).
             bool radical_near = c.single_electrons > 0 || valence.unpaired[static_cast<size_t>(i)] > 0;
-            for (const Neighbor& nb : analysed.neighbors(i))
+            for (const Neighbor& nb : skeleton.neighbors(i))
                 radical_near = radical_near || valence.unpaired[static_cast<size_t>(nb.atom)] > 0;
             const double threshold = radical_near ? 2 * opt.angle_rms : opt.angle_rms;
             if (fit.pairs > 0 && fit.rms > threshold) {
@@ -354,7 +462,7 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
             // drawn flat against its C-X bond) can keep its RMS under the threshold (90 and 120 against 109.5):
             // the triple product of three bond directions is 0.770 in a regular tetrahedron, 0 when flat.
             if (c.bonded == 4 && c.steric_number == 4) {
-                const auto& nbs = analysed.neighbors(i);
+                const auto& nbs = skeleton.neighbors(i);
                 const Eigen::Vector3d& o = pos[static_cast<size_t>(i)];
                 double flattest = 1;
                 int fa = -1, fb = -1, fc = -1;
@@ -389,7 +497,7 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
             // centre with its electron in the p orbital is left out: it is reported as a radical, and a pyramid there
             // is more often a missing hydrogen than a wrong shape.
             if (c.bonded == 3 && c.steric_number == 3 && c.p_single_electrons == 0) {
-                const auto& nbs = analysed.neighbors(i);
+                const auto& nbs = skeleton.neighbors(i);
                 const Eigen::Vector3d& o = pos[static_cast<size_t>(i)];
                 double sum = 0;
                 bool ring = false;
@@ -397,7 +505,7 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
                     for (int b = a + 1; b < 3; ++b) {
                         sum += angle_deg(pos[static_cast<size_t>(nbs[static_cast<size_t>(a)].atom)] - o,
                                          pos[static_cast<size_t>(nbs[static_cast<size_t>(b)].atom)] - o);
-                        ring = ring || small_ring_pair(analysed, i, nbs[static_cast<size_t>(a)].atom,
+                        ring = ring || small_ring_pair(skeleton, i, nbs[static_cast<size_t>(a)].atom,
                                                        nbs[static_cast<size_t>(b)].atom);
                     }
                 if (!ring && sum < 360.0 - opt.planarity) {
@@ -418,9 +526,26 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
     }
 
     // 3. Bond lengths.
-    for (const Bond& b : m.bonds) {
+    for (size_t e = 0; e < m.bonds.size(); ++e) {
+        const Bond& b = m.bonds[e];
         if (excluded[static_cast<size_t>(b.a)] || excluded[static_cast<size_t>(b.b)]) continue;
         const int za = m.atoms[static_cast<size_t>(b.a)].z, zb = m.atoms[static_cast<size_t>(b.b)].z;
+        if (is_d_block_metal(za) || is_d_block_metal(zb)) {
+            // Against the model's metal-ligand (or metal-metal) length; none without the metal analysis.
+            const double target = metal_length[e];
+            if (target <= 0) continue;
+            const double measured = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm();
+            const double dev = measured - target;
+            if (std::fabs(dev) <= opt.metal_bond_deviation) continue;
+            const double ratio = std::fabs(dev) / opt.metal_bond_deviation;
+            const bool both = is_d_block_metal(za) && is_d_block_metal(zb);
+            out.findings.push_back({"bond length", {b.a + 1, b.b + 1},
+                                    fmt::format("{}-{} {} bond is {:.3f} A, {:.2f} A too {} (expected {:.3f} A)",
+                                                label(m, b.a), label(m, b.b), both ? "metal-metal" : "metal-ligand",
+                                                measured, std::fabs(dev), dev > 0 ? "long" : "short", target),
+                                    measured, target, "angstrom", severity_of(ratio), ratio});
+            continue;
+        }
         const double expected = bond_length(za, zb, std::clamp(b.order, 1, 3));
         const double measured = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm();
         const double dev = measured - expected;

@@ -59,9 +59,19 @@ ValenceResult assign_valences(Molecule& molecule, const std::vector<Eigen::Vecto
                               int unpaired_allowed, const std::vector<int>* free_bonds = nullptr,
                               bool fixed_charges = false, const std::vector<char>* ignore = nullptr);
 
+// The same for a structure with d-block metals, by the ionic model: the ligands are the closed-shell species cut off
+// the metals (every bond to a metal left out; NH3, H2O, CO neutral; Cl-, CN-, CH3-, C5H5-, oxo O2-, nitrido N3- ...:
+// unsatisfied atoms take anionic states until none is left, least charge first), and the metals take what is left
+// of total_charge as their formal charges, which are then their oxidation states (shared evenly among several
+// metals). Bonds to metals are single. Radical ligands cannot come out of it (an atom with no anionic state left
+// keeps its unpaired electron); the charge always adds up (ValenceResult::charge == total_charge).
+ValenceResult assign_valences_ionic(Molecule& molecule, const std::vector<Eigen::Vector3d>& positions,
+                                    int total_charge, const std::vector<char>* ignore = nullptr);
+
 // For a molecule with orders and charges given (SDF): per atom, the electrons by which it falls short of its
 // nearest normal valence for its charge (0 when satisfied or when the charge has no tabulated state), and -1 for an
-// atom with more bonds than any valence allows.
+// atom with more bonds than any valence allows. Bonds to d-block metals count as covalent as far as the donor's
+// valence needs, dative beyond (an NH3 or a C5H5 ring on a metal is satisfied as written).
 std::vector<int> valence_shortfall(const Molecule& molecule);
 
 }  // namespace repel
