@@ -2,6 +2,8 @@
 // domain analysis, the bond-length table and the van der Waals radii expect.
 #include "check/audit.hpp"
 
+#include "domains/metal.hpp"
+
 #include <fmt/format.h>
 
 #include <Eigen/Geometry>
@@ -118,8 +120,13 @@ AngleFit fit_angles(const Molecule& m, const std::vector<Eigen::Vector3d>& pos, 
         for (int j = i + 1; j < k; ++j) {
             const int a = nbs[static_cast<size_t>(i)].atom, b = nbs[static_cast<size_t>(j)].atom;
             M[static_cast<size_t>(i * k + j)] = angle_deg(pos[static_cast<size_t>(a)] - o, pos[static_cast<size_t>(b)] - o);
-            // The angle inside a ring of five or fewer atoms is the ring's, not the domains'.
-            use[static_cast<size_t>(i * k + j)] = !joined_within(m, c.atom, a, b, 3);
+            // The angle inside a ring of five or fewer atoms is the ring's, not the domains'. At a donor, the angles
+            // towards its metal are not judged: the bond is largely ionic and the donor's geometry towards it soft
+            // (coordinated water runs from pyramidal to planar in crystals and in xtb optima; common practice).
+            const bool to_metal = !is_d_block_metal(m.atoms[static_cast<size_t>(c.atom)].z) &&
+                                  (is_d_block_metal(m.atoms[static_cast<size_t>(a)].z) ||
+                                   is_d_block_metal(m.atoms[static_cast<size_t>(b)].z));
+            use[static_cast<size_t>(i * k + j)] = !joined_within(m, c.atom, a, b, 3) && !to_metal;
         }
     auto cls = [&](int i) {
         const Neighbor& nb = nbs[static_cast<size_t>(i)];
