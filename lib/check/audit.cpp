@@ -228,7 +228,9 @@ void check_metal_centre(Audit& out, const MetalCentre& c, const std::vector<Eige
     a.model_reason = c.polyhedron_reason;
     const int cn = c.coordination_number;
     const std::vector<Eigen::Vector3d> dirs = ligand_directions(c, pos);
-    if (cn >= 2 && cn <= 9 && static_cast<int>(dirs.size()) == cn) {
+    bool finite = true;
+    for (const Eigen::Vector3d& d : dirs) finite = finite && d.allFinite() && d.norm() > 0.5;
+    if (cn >= 2 && cn <= 9 && static_cast<int>(dirs.size()) == cn && finite) {
         const Eigen::Vector3d origin = Eigen::Vector3d::Zero();
         const std::vector<ShapeVerdict> verdicts = shape_measures(dirs, origin);
         a.polyhedron = std::string(verdicts.front().name);
