@@ -476,7 +476,9 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalys
         if (c.steric_number > 12)
             throw UnsupportedError(fmt::format("{} has {} electron domains; at most 12 are supported",
                                                atom_label(m, i), c.steric_number));
-        if (solve && c.bonded >= 2) {
+        // Five- and six-domain centres are solved even when only counting: their bond lengths depend on which bonds
+        // are axial (below), and a length must not depend on the flag. Cleared again at the end.
+        if ((solve || c.steric_number == 5 || c.steric_number == 6) && c.bonded >= 2) {
             std::vector<SphereDomain> sd, arrangement;
             sd.reserve(c.domains.size());
             arrangement.reserve(c.domains.size());
@@ -566,6 +568,11 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalys
                                                            std::clamp(orders[e], 1.0, 3.0), ends));
         }
     }
+    if (!solve)
+        for (CentreDomains& c : out.atoms) {
+            c.directions.clear();
+            c.angles.clear();
+        }
     // The halogen-nitrogen bond of a nitrosyl halide (X-N=O) or a nitryl halide (X-[N+](=O)[O-]) is far longer than
     // the radii give: the molecule is partly X- with NO+ (NO2+). Lengthened by the mean excess of the measured
     // gas-phase structures over the radii (CRC Handbook, "Structure of free molecules in the gas phase", from memory):
