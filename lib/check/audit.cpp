@@ -22,6 +22,7 @@
 #include "check/compare.hpp"
 #include "check/shape_measure.hpp"
 #include "domains/domains.hpp"
+#include "input/sd_molecule.hpp"
 #include "input/smiles.hpp"
 
 namespace repel {
@@ -87,6 +88,21 @@ bool conjugated_nitrogen(const Molecule& m, int centre, const CentreDomains& c) 
     for (const Neighbor& nb : m.neighbors(centre))
         for (const Neighbor& nn : m.neighbors(nb.atom))
             if (m.bonds[static_cast<size_t>(nn.bond)].order >= 2) return true;
+    return false;
+}
+
+// An O or N with lone pairs bonded to Si, P, B, Al, Ge, As or a sulfonyl S: its angle opens far beyond what the
+// isolated centre's domains give (Si-O-Si 140-180 degrees, the P-O-P of a diphosphate 130-140, trisilylamine
+// planar; the lone pairs are drawn into the acceptor's sigma* or empty orbitals and the bond turns ionic, common
+// practice), so the model has no angle to hold it to and the centre is not judged.
+bool angle_opened_by_neighbours(const Molecule& m, int centre, const CentreDomains& c) {
+    const int z = m.atoms[static_cast<size_t>(centre)].z;
+    if ((z != 7 && z != 8) || c.lone_pairs + c.delocalised_lone_pairs == 0) return false;
+    for (const Neighbor& nb : m.neighbors(centre)) {
+        const int zn = m.atoms[static_cast<size_t>(nb.atom)].z;
+        if (zn == 5 || zn == 13 || zn == 14 || zn == 15 || zn == 32 || zn == 33) return true;
+        if (zn == 16 && m.degree(nb.atom) >= 3) return true;
+    }
     return false;
 }
 
@@ -307,12 +323,40 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
 
     // 1. What the file does not state.
     std::vector<char> excluded(static_cast<size_t>(n), 0);
+    std::set<std::pair<int, int>> overlapping;  // pairs reported as overlaps (0-based, a < b): not contacts again
     if (!in.has_bonds) {
         out.bonds_from_coordinates = true;
         for (const Overlap& o : perceive_bonds(m, pos, opt.perception)) {
+            overlapping.emplace(std::min(o.a, o.b), std::max(o.a, o.b));
+            for (int x : o.also) overlapping.emplace(std::min(x, o.b), std::max(x, o.b));
+            if (!o.left_out) {
+                out.findings.push_back({"overlap", {std::min(o.a, o.b) + 1, std::max(o.a, o.b) + 1},
+                                        fmt::format("{} and {} overlap: {:.2f} A apart, within bonding distance, but "
+                                                    "each hydrogen has a bond of its own (one is misplaced or "
+                                                    "duplicated); they are not bonded to each other",
+                                                    label(m, o.a), label(m, o.b), o.distance),
+                                        o.distance, std::nullopt, "angstrom", Severity::error, 200});
+                continue;
+            }
             excluded[static_cast<size_t>(o.b)] = 1;
+            if (!o.also.empty()) {
+                std::string others;
+                std::vector<int> atoms{o.b + 1, o.a + 1};
+                for (int x : o.also) {
+                    others += ", " + label(m, x);
+                    atoms.push_back(x + 1);
+                }
+                out.findings.push_back({"overlap", atoms,
+                                        fmt::format("{} overlaps {}{}: within bonding distance of {} atoms (nearest "
+                                                    "{:.2f} A), but a hydrogen bonds to one (it is misplaced); {} is "
+                                                    "left out of the bond perception",
+                                                    label(m, o.b), label(m, o.a), others, o.also.size() + 1,
+                                                    o.distance, label(m, o.b)),
+                                        o.distance, std::nullopt, "angstrom", Severity::error, 200});
+                continue;
+            }
             out.findings.push_back({"overlap", {std::min(o.a, o.b) + 1, std::max(o.a, o.b) + 1},
-                                    fmt::format("{} and {} are {:.2f} A apart: overlapping atoms (one is misplaced or "
+                                    fmt::format("{} and {} overlap: {:.2f} A apart (one is misplaced or "
                                                 "duplicated); {} is left out of the bond perception",
                                                 label(m, o.a), label(m, o.b), o.distance, label(m, o.b)),
                                     o.distance, std::nullopt, "angstrom", Severity::error, 200});
@@ -355,6 +399,26 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
             m.atoms[static_cast<size_t>(i)].radical_electrons = -1;
         }
     for (int i : valence.overbonded) excluded[static_cast<size_t>(i)] = 1;
+    // Aromatic rings (and so their bonds' order 1.5) from the assigned Kekule orders: one Kekule structure draws a
+    // benzene ring's equal bonds alternately single and double, and judging or cleaning the ring by it would call
+    // every bond 0.06 A wrong (and --fix would make it so). Found on a copy without the atoms left out, so that a
+    // broken part (a dense cloud of overbonded atoms) cannot make the ring search costly.
+    {
+        Molecule rings = m;
+        std::vector<Bond> kept;
+        for (const Bond& b : rings.bonds)
+            if (!excluded[static_cast<size_t>(b.a)] && !excluded[static_cast<size_t>(b.b)]) kept.push_back(b);
+        rings.bonds = kept;
+        rings.rebuild_adjacency();
+        perceive_aromatic_rings(rings);
+        for (const Bond& b : rings.bonds)
+            if (b.aromatic) {
+                const int k = m.bond_between(b.a, b.b);
+                m.bonds[static_cast<size_t>(k)].aromatic = true;
+                m.atoms[static_cast<size_t>(b.a)].aromatic = m.atoms[static_cast<size_t>(b.b)].aromatic = true;
+            }
+    }
+    check_deadline("perceiving aromatic rings");
     if (!multiplicity) {
         // Without a multiplicity, two electrons short on a divalent centre (a carbene, a silylene) or on a bare
         // group-2 atom are read as the lone pair of a singlet, as the Lewis structure writes them (the domain
@@ -412,38 +476,39 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
         analysed.rebuild_adjacency();
         for (Atom& a : analysed.atoms) a.hydrogens = 0;
     }
-    std::vector<int> lone_pairs(static_cast<size_t>(n), 0);
     // Per bond of m: the model's length of a bond to a d-block metal (0: not such a bond, or no analysis).
     std::vector<double> metal_length(m.bonds.size(), 0.0);
+    // Per bond of m: the analysis' length (the one the build and --fix aim at: aromatic and resonance-shared orders,
+    // the hybridisation at each end); 0 where there is no analysis.
+    std::vector<double> model_length(m.bonds.size(), 0.0);
     try {
         MoleculeDomains d = analyse_domains(analysed);
         for (size_t e = 0; e < analysed.bonds.size(); ++e) {
             const Bond& b = analysed.bonds[e];
+            const int k = m.bond_between(b.a, b.b);
+            if (k < 0 || e >= d.bond_lengths.size()) continue;
+            model_length[static_cast<size_t>(k)] = d.bond_lengths[e];
             if (!is_d_block_metal(analysed.atoms[static_cast<size_t>(b.a)].z) &&
                 !is_d_block_metal(analysed.atoms[static_cast<size_t>(b.b)].z))
                 continue;
-            const int k = m.bond_between(b.a, b.b);
-            if (k >= 0 && e < d.bond_lengths.size()) metal_length[static_cast<size_t>(k)] = d.bond_lengths[e];
+            metal_length[static_cast<size_t>(k)] = d.bond_lengths[e];
         }
         // The angles at ligand atoms are judged without the bonds of hapto ligands (a ring carbon of a
         // cyclopentadienyl has its three sigma domains; the metal is not one of them).
         const Molecule skeleton = without_hapto_bonds(analysed, d.metals);
-        for (int i = 0; i < n; ++i)
-            lone_pairs[static_cast<size_t>(i)] =
-                d.atoms[static_cast<size_t>(i)].lone_pairs + d.atoms[static_cast<size_t>(i)].delocalised_lone_pairs;
         const bool any_excluded = std::find(excluded.begin(), excluded.end(), 1) != excluded.end();
         if (!multiplicity && !any_excluded) out.multiplicity = std::max(out.multiplicity, d.multiplicity);
         for (const std::string& w : d.warnings) out.notes.push_back(w);
         for (int i = 0; i < n; ++i) {
             if (skip[static_cast<size_t>(i)]) continue;
             const CentreDomains& c = d.atoms[static_cast<size_t>(i)];
-            lone_pairs[static_cast<size_t>(i)] = c.lone_pairs + c.delocalised_lone_pairs;
             if (!d.metals.empty() && d.metals.centre_of_atom[static_cast<size_t>(i)] >= 0) {
                 check_metal_centre(out, d.metals.centres[static_cast<size_t>(d.metals.centre_of_atom[static_cast<size_t>(i)])],
                                    pos, opt);
                 continue;
             }
             if (c.bonded < 2 || c.angles.empty() || in_small_ring(skeleton, i)) continue;
+            if (angle_opened_by_neighbours(skeleton, i, c)) continue;
             // Two unpaired electrons (a triplet carbene) count as a lone pair in the Lewis structure: no prediction.
             if (valence.unpaired[static_cast<size_t>(i)] >= 2) continue;
             AngleFit fit = fit_angles(skeleton, pos, c, conjugated_nitrogen(skeleton, i, c));
@@ -555,19 +620,23 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
                                     measured, target, "angstrom", severity_of(ratio), ratio});
             continue;
         }
-        const double expected = bond_length(za, zb, std::clamp(b.order, 1, 3));
+        const double expected = model_length[e] > 0 ? model_length[e]
+                                                    : bond_length(za, zb, std::clamp(b.order, 1, 3), b.aromatic);
         const double measured = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm();
         const double dev = measured - expected;
-        // Bonds between two atoms that both hold lone pairs are long and variable beyond what additive radii
-        // give (N-Cl of ClNO 0.33 A, F-F 0.14 A longer; see core/bond_length.cpp): twice the tolerance to lengthen.
-        const bool lone_pair_rich = lone_pairs[static_cast<size_t>(b.a)] > 0 && lone_pairs[static_cast<size_t>(b.b)] > 0;
-        const double threshold = dev > 0 && lone_pair_rich ? 2 * opt.bond_deviation : opt.bond_deviation;
+        // Bonds between atoms of the first two periods (H to Ne, the alkali and alkaline-earth metals aside) against
+        // the model's length: opt.bond_deviation. Others (heavier atoms, ionic Li/Be bonds, or no model length but
+        // the table's) spread twice as far (audit.hpp has the measured spreads).
+        auto light = [](int z) { return z == 1 || (z <= 10 && element(z).group != 1 && element(z).group != 2); };
+        const bool tight = model_length[e] > 0 && light(za) && light(zb);
+        const double threshold = tight ? opt.bond_deviation : kHeavyBondFactor * opt.bond_deviation;
         if (std::fabs(dev) <= threshold) continue;
         const double ratio = std::fabs(dev) / threshold;
         static const char* kOrder[] = {"", "single", "double", "triple"};
         out.findings.push_back({"bond length", {b.a + 1, b.b + 1},
                                 fmt::format("{}-{} {} bond is {:.3f} A, {:.2f} A too {} (expected {:.3f} A)",
-                                            label(m, b.a), label(m, b.b), kOrder[std::clamp(b.order, 1, 3)], measured,
+                                            label(m, b.a), label(m, b.b),
+                                            b.aromatic ? "aromatic" : kOrder[std::clamp(b.order, 1, 3)], measured,
                                             std::fabs(dev), dev > 0 ? "long" : "short", expected),
                                 measured, expected, "angstrom", severity_of(ratio), ratio});
     }
@@ -592,7 +661,7 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
                     if (m.bond_between(i, j) >= 0) return;
                     for (const Neighbor& nb : m.neighbors(i))
                         if (m.bond_between(nb.atom, j) >= 0) return;  // 1-3 pairs are angles, not contacts
-                    if (!seen.emplace(i, j).second) return;
+                    if (overlapping.count({i, j}) || !seen.emplace(i, j).second) return;
                     const double ratio = (opt.contact_fraction * rv - d) / (0.1 * rv) + 1;
                     out.findings.push_back(
                         {"contact", {i + 1, j + 1},

@@ -332,6 +332,51 @@ std::vector<Overlap> perceive_bonds(Molecule& m, const std::vector<Eigen::Vector
                                [](const Overlap& x, const Overlap& y) { return x.a == y.a && x.b == y.b; }),
                    overlaps.end());
     for (const Overlap& o : overlaps) excluded[static_cast<size_t>(o.b)] = 1;
+    // Hydrogens within bonding distance of more atoms than they can bond to.
+    {
+        auto z = [&](int i) { return m.atoms[static_cast<size_t>(i)].z; };
+        auto dist = [&](int i, int j) { return (pos[static_cast<size_t>(i)] - pos[static_cast<size_t>(j)]).norm(); };
+        std::vector<std::vector<int>> partners(static_cast<size_t>(n));
+        for (auto [i, j] : pairs) {
+            if (excluded[static_cast<size_t>(i)] || excluded[static_cast<size_t>(j)]) continue;
+            if (z(i) == 1) partners[static_cast<size_t>(i)].push_back(j);
+            if (z(j) == 1) partners[static_cast<size_t>(j)].push_back(i);
+        }
+        auto heavy_partners = [&](int h) {
+            std::vector<int> out;
+            for (int p : partners[static_cast<size_t>(h)])
+                if (z(p) != 1 && !excluded[static_cast<size_t>(p)]) out.push_back(p);
+            return out;
+        };
+        std::vector<std::pair<int, int>> dropped;  // H-H pairs not bonded
+        for (auto [i, j] : pairs)
+            if (z(i) == 1 && z(j) == 1 && !excluded[static_cast<size_t>(i)] && !excluded[static_cast<size_t>(j)] &&
+                (!heavy_partners(i).empty() || !heavy_partners(j).empty())) {
+                dropped.emplace_back(i, j);
+                Overlap o{i, j, dist(i, j)};
+                o.left_out = false;
+                overlaps.push_back(o);
+            }
+        for (int h = 0; h < n; ++h) {
+            if (z(h) != 1 || excluded[static_cast<size_t>(h)]) continue;
+            std::vector<int> heavy = heavy_partners(h);
+            if (heavy.size() < 2) continue;
+            const bool bridging = heavy.size() == 2 && std::all_of(heavy.begin(), heavy.end(), [&](int p) {
+                return z(p) == 5 || is_d_block_metal(z(p));
+            });
+            if (bridging) continue;
+            std::sort(heavy.begin(), heavy.end(), [&](int x, int y) { return dist(h, x) < dist(h, y) || (dist(h, x) == dist(h, y) && x < y); });
+            Overlap o{heavy.front(), h, dist(h, heavy.front())};
+            o.also.assign(heavy.begin() + 1, heavy.end());
+            overlaps.push_back(o);
+            excluded[static_cast<size_t>(h)] = 1;
+        }
+        std::sort(dropped.begin(), dropped.end());
+        std::vector<std::pair<int, int>> kept;
+        for (auto pr : pairs)
+            if (!std::binary_search(dropped.begin(), dropped.end(), pr)) kept.push_back(pr);
+        pairs.swap(kept);
+    }
     for (auto [i, j] : pairs) {
         if (excluded[static_cast<size_t>(i)] || excluded[static_cast<size_t>(j)]) continue;
         if (m.bond_between(i, j) < 0) m.add_bond(i, j, 1);

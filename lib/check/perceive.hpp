@@ -19,14 +19,22 @@ struct PerceptionOptions {
 };
 
 struct Overlap {
-    int a = -1, b = -1;  // 0-based, a < b
+    int a = -1, b = -1;  // 0-based
     double distance = 0;
+    // false: neither atom is left out (two hydrogens within bonding distance of each other, each with a bond of its
+    // own: the pair is not bonded and both keep their bonds).
+    bool left_out = true;
+    std::vector<int> also;  // further atoms within bonding distance of b that b cannot bond to (a hydrogen's)
 };
 
 // Adds a single bond for every bonded pair not yet bonded, found through a cell grid (linear in the atom count).
 // Returns the overlapping pairs. Of two overlapping atoms the later one (in file order) is left out of perception
 // altogether (it is where it should not be), so that its presence does not invent bonds for its neighbours; of a
 // hydrogen and a heavier atom, the hydrogen is left out. Overlap::b is the atom left out.
+// A hydrogen bonds to one atom: within bonding distance of two hydrogens that have heavier partners, the H-H pair is
+// an overlap (not bonded, nobody left out); within bonding distance of two or more heavier atoms (an H placed at a
+// ring centre), the hydrogen is an overlap and left out, unless they are two boron or metal atoms (a bridging
+// hydride, B2H6).
 std::vector<Overlap> perceive_bonds(Molecule& molecule, const std::vector<Eigen::Vector3d>& positions,
                                     const PerceptionOptions& options = {});
 
