@@ -105,6 +105,27 @@ TEST(MetalElectronCount, UnbracketedDonorIsSaidToBeAnionic) {
     EXPECT_NE(a.warnings.front().find("[NH2]"), std::string::npos);
 }
 
+TEST(MetalElectronCount, WarningOnlyWhereTheMetalBondChangedTheHydrogens) {
+    auto warned = [](const std::string& smiles) {
+        const MetalAnalysis a = analyse_metals(molecule(smiles));
+        std::string all;
+        for (const std::string& w : a.warnings) all += w + "\n";
+        return all;
+    };
+    // Oxo ligands written on a double bond are O2- as written ([CrO2Cl2], permanganate): nothing to say.
+    EXPECT_EQ(warned("[Cr](=O)(=O)(Cl)Cl"), "");
+    EXPECT_EQ(warned("O=[Mn](=O)(=O)[O-]"), "");
+    // Alkoxides and carboxylates are the anions meant.
+    EXPECT_EQ(warned("CO[Ti](OC)(OC)OC"), "");
+    EXPECT_EQ(warned("CC(=O)O[Cu]OC(C)=O"), "");
+    // A phosphine written without brackets gets one hydrogen from OpenSMILES' valence 5; the free ligand PMe3 is [P].
+    const std::string p = warned("CP(C)(C)[Pd](Cl)(Cl)P(C)(C)C");
+    EXPECT_NE(p.find("write [P]"), std::string::npos) << p;
+    EXPECT_EQ(p.find("[PH"), std::string::npos) << p;
+    // Bare O: water or hydroxide, said.
+    EXPECT_NE(warned("O[Fe](O)(O)(O)(O)O").find("[OH2]"), std::string::npos);
+}
+
 TEST(MetalPolyhedron, RulesOfTheDCount) {
     // Common practice (reference-data.md, ligand field and d-count rules).
     EXPECT_EQ(centre("Cl[Pt](Cl)([NH3])[NH3]").polyhedron, "square planar");         // d8 Pt(II)
@@ -145,6 +166,8 @@ TEST(MetalSpin, LigandFieldRule) {
         {"[OH2][Cu+2]([OH2])([OH2])([OH2])([OH2])[OH2]", 2},          // d9
         {"Cl[Pt](Cl)([NH3])[NH3]", 1},                                // square-planar d8
         {"[OH2][Mn+2]([OH2])([OH2])([OH2])([OH2])[OH2]", 6},          // high-spin d5
+        {"Cl[Pd-2](Cl)(Cl)(Cl)(Cl)Cl", 1},                            // [PdCl6]2-, d6 Pd(IV): low spin (4d)
+        {"C[Pt](C)(C)C", 1},                                          // four-coordinate 5d d6: low spin, paired
         {"[O+]#[C-][Mn]([C-]#[O+])([C-]#[O+])([C-]#[O+])([C-]#[O+])[Mn]([C-]#[O+])([C-]#[O+])([C-]#[O+])([C-]#[O+])[C-]#[O+]",
          1},  // Mn2(CO)10: the odd electrons pair in the Mn-Mn bond
     };

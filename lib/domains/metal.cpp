@@ -364,13 +364,36 @@ private:
             // An organic-subset N, O, P or S written without brackets gets its hydrogens by OpenSMILES' valence rule,
             // which counts the bond to the metal: `N1CC[NH2][Pt]1` makes the first N an amido (NH-) ligand. Said,
             // since the neutral donor ([NH2], [OH2]) is the commoner intent.
-            if (!a.bracket && a.charge == 0 && t > 0 && (a.z == 7 || a.z == 8 || a.z == 15 || a.z == 16)) {
-                int h = std::max(0, a.hydrogens);
-                for (const Neighbor& nb : m_.neighbors(i)) h += m_.atoms[at(nb.atom)].z == 1 ? 1 : 0;
-                out_.warnings.push_back(fmt::format(
-                    "atom {} ({}) is written without brackets, so its bond to the metal counts in its hydrogen count "
-                    "(OpenSMILES) and it is read as an anionic ligand; for the neutral donor write [{}H{}]",
-                    i + 1, el.symbol, el.symbol, h + 1 > 1 ? std::to_string(h + 1) : std::string()));
+            // Only where the metal bond changed the count: a multiple bond to the metal (oxo, imido) is an X2 ligand
+            // as written; and the suggestion names the hydrogens the free ligand has (PMe3: [P], not [PH2]).
+            bool single_to_metal = true;
+            for (const Neighbor& nb : metal_bonds) single_to_metal = single_to_metal && m_.bonds[at(nb.bond)].order == 1;
+            if (!a.bracket && a.charge == 0 && t > 0 && single_to_metal &&
+                (a.z == 7 || a.z == 8 || a.z == 15 || a.z == 16)) {
+                int given = std::max(0, a.hydrogens), heavy = 0;
+                for (const Neighbor& nb : m_.neighbors(i)) {
+                    if (m_.atoms[at(nb.atom)].z == 1) ++given;
+                    else if (!is_metal(nb.atom)) heavy += m_.bonds[at(nb.bond)].order;
+                }
+                // OpenSMILES normal valences: N, P 3 (5); O 2; S 2 (4, 6).
+                const std::vector<int> valences = a.z == 8 ? std::vector<int>{2}
+                                                  : a.z == 16 ? std::vector<int>{2, 4, 6}
+                                                              : std::vector<int>{3, 5};
+                int free_h = -1;
+                for (int v : valences)
+                    if (v >= heavy) {
+                        free_h = v - heavy;
+                        break;
+                    }
+                // O and S with a heavy neighbour (alkoxide, carboxylate, thiolate) are read as the anion meant;
+                // N and P (amine, phosphine) and bare O/S (water or hydroxide) are said.
+                const bool chalcogen = a.z == 8 || a.z == 16;
+                if (free_h >= 0 && free_h != given && !(chalcogen && heavy > 0))
+                    out_.warnings.push_back(fmt::format(
+                        "atom {} ({}) is written without brackets, so its bond to the metal counts in its hydrogen "
+                        "count (OpenSMILES) and it is read as an anionic ligand; for the neutral donor write [{}{}]",
+                        i + 1, el.symbol, el.symbol,
+                        free_h == 0 ? std::string() : free_h == 1 ? std::string("H") : fmt::format("H{}", free_h)));
             }
             // Electrons the ligand takes in the ionic model. A carbonyl written in the cumulated form, M=C=O, is the
             // neutral ligand CO (the same molecule as [M]-[C-]#[O+]): its two covalent units are counted for the
@@ -573,6 +596,13 @@ private:
             c.unpaired_electrons = d == 8 ? 0 : d % 2;
             c.spin_reason = fmt::format("square-planar d{}: {}", d, d == 8 ? "low spin (singlet)" : "one unpaired electron");
             c.spin_state = d == 8 ? "low spin" : "";
+        } else if (c.sites <= 4 && el.period >= 5 && d >= 2 && d <= 8) {
+            // Second- and third-row metals are low spin in every polyhedron (large ligand-field splitting; common
+            // practice): the electrons pair in the lowest orbitals, the distortion lifting any degeneracy.
+            c.unpaired_electrons = d % 2;
+            c.spin_state = "low spin";
+            c.spin_reason = fmt::format("{}-coordinate d{}: {} unpaired (second- and third-row metals are low spin)",
+                                        c.sites, d, c.unpaired_electrons);
         } else if (c.sites <= 4) {
             // Tetrahedral (and lower) fields are weak: high spin (common practice).
             c.unpaired_electrons = high_spin(d);
