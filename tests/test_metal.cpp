@@ -288,6 +288,24 @@ TEST(MetalGeometry, ZeiseAnionHasItsAlkenePerpendicularToTheSquare) {
         if (cl != trans) EXPECT_GT(distance(s, 1, trans), distance(s, 1, cl) + 0.03);
 }
 
+TEST(MetalGeometry, ChelatingDienesReachTheirSites) {
+    // Ni(cod)2: each ring carries two alkenes of the same metal; moved as one piece, all eight Ni-C distances come
+    // out near the ligand length (the crystal's are about 2.1 A, from memory) and no ring hydrogen points at Ni.
+    const Structure s = build("C1C[CH]2=[CH]3CC[CH]4=[CH]5CC1.C1C[CH]6=[CH]7CC[CH]8=[CH]9CC1.[Ni]23456789");
+    int ni = -1;
+    for (int i = 0; i < s.molecule.atom_count(); ++i)
+        if (s.molecule.atoms[static_cast<size_t>(i)].z == 28) ni = i;
+    ASSERT_GE(ni, 0);
+    int bonded = 0;
+    for (const Neighbor& nb : s.molecule.neighbors(ni)) {
+        ++bonded;
+        EXPECT_NEAR(distance(s, ni, nb.atom), 2.05, 0.15) << "Ni-C" << nb.atom + 1;
+    }
+    EXPECT_EQ(bonded, 8);
+    for (int i = 0; i < s.molecule.atom_count(); ++i)
+        if (s.molecule.atoms[static_cast<size_t>(i)].z == 1) EXPECT_GT(distance(s, ni, i), 2.3) << "H" << i + 1;
+}
+
 TEST(MetalGeometry, PianoStoolHasItsCarbonylsOnAFace) {
     // CpMn(CO)3 written with the ions apart: OC-Mn-CO about 92 degrees (crystal, from memory), the ring on the
     // opposite face.

@@ -133,7 +133,12 @@ MoleculeDomains with_bond_lengths_of(const Molecule& molecule, const MoleculeDom
 // The frame of a metal centre with hapto ligands as assembled, held in the refinement: distances from each hapto
 // atom to the other ligands' atoms of the same metal (a hapto domain has no angle terms; without these the rings
 // and the other ligands would drift round the metal, held only by their bonds to it and the contacts).
-std::vector<DistanceRestraint> hapto_frame_restraints(const MetalAnalysis& metals, const std::vector<Vector3d>& pos) {
+std::vector<DistanceRestraint> hapto_frame_restraints(const Molecule& skeleton, const MetalAnalysis& metals,
+                                                      const std::vector<Vector3d>& placed,
+                                                      const std::vector<Vector3d>& site_shift) {
+    // Measured as if every hapto ligand sat on its site (chelating dienes are moved whole and may sit off theirs).
+    std::vector<Vector3d> pos = placed;
+    for (size_t i = 0; i < pos.size() && i < site_shift.size(); ++i) pos[i] += site_shift[i];
     constexpr double kWeight = 0.5;  // half a bond's stiffness: the frame is a target, not a bond (common practice)
     std::vector<DistanceRestraint> out;
     for (const MetalCentre& c : metals.centres) {
@@ -145,6 +150,25 @@ std::vector<DistanceRestraint> hapto_frame_restraints(const MetalAnalysis& metal
                     for (int b : c.ligands[o].atoms)
                         out.push_back({a, b, (pos[static_cast<size_t>(a)] - pos[static_cast<size_t>(b)]).norm(), kWeight});
             }
+            // A ligand moved with its piece (a chelating diene) is not laid flat towards the metal: its hydrogens
+            // are held bent away, at a metal-carbon-hydrogen angle of 110 degrees (coordinated alkenes' substituents
+            // bend back from the metal; common practice).
+            bool shifted = false;
+            for (int a : c.ligands[l].atoms)
+                shifted = shifted || (static_cast<size_t>(a) < site_shift.size() && site_shift[static_cast<size_t>(a)].squaredNorm() > 0);
+            if (!shifted) continue;
+            constexpr double kBentAway = 0.1;  // soft: a stiffer hold tears the ring as it turns (tried: 0.5)
+            // cos 110 degrees: a flat alkene facing the metal has M-C-H near 100; its hydrogens bend back about 10
+            // degrees more (common practice)
+            const double kCosMetalCarbonHydrogen = std::cos(110.0 * M_PI / 180.0);
+            for (int a : c.ligands[l].atoms)
+                for (const Neighbor& nb : skeleton.neighbors(a)) {
+                    // Hydrogens only: the ring's own atoms are placed by the ring (a chelate's bite bends them in).
+                    if (skeleton.atoms[static_cast<size_t>(nb.atom)].z != 1) continue;
+                    const double l1 = c.ligands[l].length;
+                    const double l2 = (placed[static_cast<size_t>(nb.atom)] - placed[static_cast<size_t>(a)]).norm();
+                    out.push_back({c.atom, nb.atom, std::sqrt(l1 * l1 + l2 * l2 - 2 * l1 * l2 * kCosMetalCarbonHydrogen), kBentAway});
+                }
         }
     }
     return out;
@@ -273,7 +297,8 @@ Structure build_structure(const Molecule& written, const BuildOptions& options) 
     }
 
     s.positions = assemble_positions(skeleton, domains, rings, ring_xyz, chiral);
-    if (hapto) place_hapto_ligands(skeleton, domains, s.positions, s.warnings);
+    std::vector<Vector3d> site_shift;
+    if (hapto) place_hapto_ligands(skeleton, domains, s.positions, s.warnings, &site_shift);
     check_deadline("assembling the frames");
     pack_components(molecule, s.positions);
     check_deadline("packing the components");
@@ -284,7 +309,7 @@ Structure build_structure(const Molecule& written, const BuildOptions& options) 
         refine_options.bond_outlier = options.bond_outlier;
         refine_options.angle_outlier = options.angle_outlier;
         refine_options.ring_graph = hapto ? &skeleton : nullptr;
-        if (hapto) refine_options.restraints = hapto_frame_restraints(domains.metals, s.positions);
+        if (hapto) refine_options.restraints = hapto_frame_restraints(skeleton, domains.metals, s.positions, site_shift);
         const RefineResult r = refine_structure(molecule, hapto ? with_bond_lengths_of(molecule, domains) : domains,
                                                 chiral, double_bonds, s.positions, refine_options);
         if (!r.converged && r.iterations > 0)

@@ -36,10 +36,93 @@ Vector3d plane_normal(const std::vector<Vector3d>& points) {
     return n.norm() > 1e-9 ? n.normalized() : Vector3d::UnitZ();
 }
 
+// Moves a piece holding several hapto ligands of the metal `c` rigidly: the ligands' centroids (as the walk built
+// them) onto their sites (the metal's solved directions in the frame `rotation`/`mirror`, each at the height that
+// puts its atoms at the ligand's length), then the turn about the best-fit axis that keeps the rest of the piece
+// farthest from the metal. The refinement then settles the ring onto the sites.
+void place_chelating_piece(const Molecule& skeleton, const MetalCentre& c, const std::vector<size_t>& group,
+                           const std::vector<int>& members, const Matrix3d& rotation, bool mirror,
+                           std::vector<Vector3d>& pos, std::vector<Vector3d>* site_shift) {
+    const Vector3d pm = pos[at(c.atom)];
+    std::vector<Vector3d> from, to;
+    std::vector<char> in_group(pos.size(), 0);
+    for (size_t l : group) {
+        const LigandDomain& lig = c.ligands[l];
+        Vector3d g = Vector3d::Zero();
+        for (int a : lig.atoms) g += pos[at(a)];
+        g /= static_cast<double>(lig.atoms.size());
+        double radius = 0;
+        for (int a : lig.atoms) {
+            radius += (pos[at(a)] - g).norm();
+            in_group[at(a)] = 1;
+        }
+        radius /= static_cast<double>(lig.atoms.size());
+        Vector3d dir = c.directions[l];
+        if (mirror) dir.x() = -dir.x();
+        const double h = std::sqrt(std::max(lig.length * lig.length - radius * radius, 0.25));
+        from.push_back(g);
+        to.push_back(pm + (rotation * dir).normalized() * h);
+    }
+    Vector3d cf = Vector3d::Zero(), ct = Vector3d::Zero();
+    for (size_t k = 0; k < from.size(); ++k) {
+        cf += from[k];
+        ct += to[k];
+    }
+    cf /= static_cast<double>(from.size());
+    ct /= static_cast<double>(to.size());
+    std::vector<Vector3d> a, b;
+    for (size_t k = 0; k < from.size(); ++k) {
+        a.push_back(from[k] - cf);
+        b.push_back(to[k] - ct);
+    }
+    const Matrix3d r0 = kabsch_rotation(a, b);
+    // Two sites leave the turn about the line through them free (three or more fix it, but are tried the same way).
+    const Vector3d axis = b.front().norm() > 1e-9 ? b.front().normalized() : Vector3d::UnitZ();
+    double best_score = 0;
+    std::vector<Vector3d> best;
+    for (int k = 0; k < kTurns; ++k) {
+        const Matrix3d q = Eigen::AngleAxisd(2 * M_PI * k / kTurns, axis).toRotationMatrix() * r0;
+        std::vector<Vector3d> xs;
+        xs.reserve(members.size());
+        double score = 0;
+        for (int m : members) {
+            xs.push_back(ct + q * (pos[at(m)] - cf));
+            if (in_group[at(m)]) continue;
+            // Atoms outside the ligands kept beyond the bonding sphere of the metal.
+            const double limit = kClashFraction * (element(skeleton.atoms[at(m)].z).r_vdw +
+                                                   element(skeleton.atoms[at(c.atom)].z).r_vdw);
+            const double d = (xs.back() - pm).norm();
+            if (d < limit) score += (limit - d) * (limit - d);
+        }
+        // The sites themselves as the first measure (a turn that moves the centroids off them is worse).
+        for (size_t g = 0; g < from.size(); ++g) score += 10 * (ct + q * (from[g] - cf) - to[g]).squaredNorm();
+        if (best.empty() || score < best_score - 1e-9) {
+            best_score = score;
+            best = std::move(xs);
+        }
+    }
+    for (size_t i = 0; i < members.size(); ++i) pos[at(members[i])] = best[i];
+    // How far each ligand's centroid still is from its site: the refinement's frame is measured as if it were there.
+    if (site_shift) {
+        site_shift->resize(pos.size(), Vector3d::Zero());
+        for (size_t k = 0; k < group.size(); ++k) {
+            const LigandDomain& lig = c.ligands[group[k]];
+            Vector3d g = Vector3d::Zero();
+            for (int a : lig.atoms) g += pos[at(a)];
+            g /= static_cast<double>(lig.atoms.size());
+            for (int a : lig.atoms) {
+                // Marked even when on its site (a zero shift means "not moved with a piece").
+                const Vector3d shift = to[k] - g;
+                (*site_shift)[at(a)] = shift.squaredNorm() > 1e-12 ? shift : Vector3d(1e-6, 0, 0);
+            }
+        }
+    }
+}
+
 }  // namespace
 
 void place_hapto_ligands(const Molecule& skeleton, const MoleculeDomains& domains, std::vector<Vector3d>& pos,
-                         std::vector<std::string>& warnings) {
+                         std::vector<std::string>& warnings, std::vector<Vector3d>* site_shift) {
     const MetalAnalysis& ma = domains.metals;
     if (ma.hapto_bonds.empty()) return;
     int count = 0;
@@ -87,6 +170,16 @@ void place_hapto_ligands(const Molecule& skeleton, const MoleculeDomains& domain
                 continue;
             }
             if (moved[at(piece)]) continue;
+            // Several hapto ligands of this metal in one piece (a chelating diene: cycloocta-1,5-diene,
+            // norbornadiene): the piece is moved whole so that each ligand's centroid sits on its own site.
+            std::vector<size_t> group;
+            for (size_t o = 0; o < c.ligands.size(); ++o)
+                if (c.ligands[o].hapto() && comp[at(c.ligands[o].atoms[0])] == piece) group.push_back(o);
+            if (group.size() >= 2) {
+                place_chelating_piece(skeleton, c, group, members_of[at(piece)], rotation, mirror, pos, site_shift);
+                moved[at(piece)] = 1;
+                continue;
+            }
             Vector3d dir = c.directions[l];
             if (mirror) dir.x() = -dir.x();
             const Vector3d u = (rotation * dir).normalized();

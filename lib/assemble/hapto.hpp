@@ -15,7 +15,9 @@ namespace repel {
 // `skeleton` is the molecule without the bonds of hapto ligands (without_hapto_bonds), `domains` its analysis (the
 // metal centres' directions in their own frames). Positions are changed in place. A hapto ligand joined to its metal
 // through other bonds too (a tethered ring) is left where the walk put it, with a warning.
+// `site_shift` (optional, per atom) receives, for the atoms of several hapto ligands moved together in one piece (a
+// chelating diene), how far their ligand's centroid is from its site; zero elsewhere.
 void place_hapto_ligands(const Molecule& skeleton, const MoleculeDomains& domains, std::vector<Eigen::Vector3d>& positions,
-                         std::vector<std::string>& warnings);
+                         std::vector<std::string>& warnings, std::vector<Eigen::Vector3d>* site_shift = nullptr);
 
 }  // namespace repel

@@ -81,6 +81,9 @@ SUBSET = [
     'cis-tetraamminedichlorocobalt(III)', 'trans-tetraamminedichlorocobalt(III)', 'decacarbonyldimanganese',
     'tris(ethylenediamine)cobalt(III)', 'tris(oxalato)ferrate(III)', 'nonahydridorhenate(VII)',
 ]
+# Left out: bis(cycloocta-1,5-diene)nickel(0). From repel's start GFN2 moves two of the four alkenes off the metal
+# (ring centroid 1.9 -> 2.4 A, 48 cycles) where the crystal keeps all four at about 2.0 A (from memory); whether that
+# is GFN2's gas-phase minimum or the start's strained rings is not settled, so it is not asserted either way.
 
 
 def graph_problems(symbols, coords, graph, metals, hapto_pairs, reference_centroids):
