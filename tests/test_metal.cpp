@@ -306,6 +306,28 @@ TEST(MetalGeometry, ChelatingDienesReachTheirSites) {
         if (s.molecule.atoms[static_cast<size_t>(i)].z == 1) EXPECT_GT(distance(s, ni, i), 2.3) << "H" << i + 1;
 }
 
+TEST(MetalGeometry, BentMetallocenesOpenTheirRingsAsTheCrystalsDo) {
+    // Ring centroid-M-ring centroid and Cl-M-Cl of Cp2TiCl2 (131.0, 94.4) and Cp2ZrCl2 (128.8, 97.1): crystal
+    // structures, Prout et al., Acta Cryst. B30 (1974) 2290, from memory. The three-site model gave 147 and 111.
+    const struct {
+        const char* smiles;
+        double rings, chlorines;
+    } cases[] = {{"[CH-]1C=CC=C1.[CH-]1C=CC=C1.Cl[Ti+2]Cl", 131.0, 94.4},
+                 {"[CH-]1C=CC=C1.[CH-]1C=CC=C1.Cl[Zr+2]Cl", 128.8, 97.1}};
+    for (const auto& c : cases) {
+        const Structure s = build(c.smiles);
+        Eigen::Vector3d g1 = Eigen::Vector3d::Zero(), g2 = Eigen::Vector3d::Zero();
+        for (int i = 0; i < 5; ++i) {
+            g1 += s.positions[static_cast<size_t>(i)] / 5;
+            g2 += s.positions[static_cast<size_t>(i + 5)] / 5;
+        }
+        const Eigen::Vector3d m = s.positions[11];
+        const double rings = std::acos((g1 - m).normalized().dot((g2 - m).normalized())) * 180 / M_PI;
+        EXPECT_NEAR(rings, c.rings, 5.0) << c.smiles;
+        EXPECT_NEAR(angle(s, 10, 11, 12), c.chlorines, 5.0) << c.smiles;
+    }
+}
+
 TEST(MetalGeometry, PianoStoolHasItsCarbonylsOnAFace) {
     // CpMn(CO)3 written with the ions apart: OC-Mn-CO about 92 degrees (crystal, from memory), the ring on the
     // opposite face.
