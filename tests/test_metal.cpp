@@ -9,6 +9,7 @@
 #include <cmath>
 #include <sstream>
 #include <string>
+#include <vector>
 
 #include "assemble/build.hpp"
 #include "core/error.hpp"
@@ -326,6 +327,18 @@ TEST(MetalGeometry, BentMetallocenesOpenTheirRingsAsTheCrystalsDo) {
         EXPECT_NEAR(rings, c.rings, 5.0) << c.smiles;
         EXPECT_NEAR(angle(s, 10, 11, 12), c.chlorines, 5.0) << c.smiles;
     }
+}
+
+TEST(MetalGeometry, CyclometalatedTrisChelateIsFac) {
+    // Ir(ppy)3 without marks: fac, the isomer made and used (each C trans to N; strong trans-influence donors avoid
+    // one another; common practice).
+    const Structure s = build("[Ir]123(c4ccccc4-c4cccc[n]41)(c1ccccc1-c1cccc[n]12)c1ccccc1-c1cccc[n]13");
+    std::vector<int> carbons;
+    for (const Neighbor& nb : s.molecule.neighbors(0))
+        if (s.molecule.atoms[static_cast<size_t>(nb.atom)].z == 6) carbons.push_back(nb.atom);
+    ASSERT_EQ(carbons.size(), 3u);
+    for (size_t i = 0; i < 3; ++i)
+        for (size_t j = i + 1; j < 3; ++j) EXPECT_LT(angle(s, carbons[i], 0, carbons[j]), 110.0);
 }
 
 TEST(MetalGeometry, PianoStoolHasItsCarbonylsOnAFace) {

@@ -934,9 +934,21 @@ private:
         // price per donor moved off its solved site; the solve's own assignment bounds the search from the start.
         constexpr double kMovePrice = 1e-3;
         auto angle = [&](size_t s, size_t t) { return std::acos(std::clamp(sites[s].dot(sites[t]), -1.0, 1.0)); };
+        // Two donors of strong trans influence (sigma carbon, hydride, P, As) avoid being trans to each other: among
+        // assignments of equal chelate angles, the one with fewer such pairs (fac-Ir(ppy)3, the isomer made and
+        // used, has each C trans to N; mer puts two C trans; common practice).
+        constexpr double kTransPairPrice = 0.05;
+        std::vector<char> strong(n, 0);
+        for (size_t k = 0; k < n; ++k) strong[k] = strong_trans(c.ligands[at(sigma[k])]) ? 1 : 0;
+        auto trans_price = [&](size_t p, size_t sp, size_t q, size_t sq) {
+            return strong[p] && strong[q] && sites[sp].dot(sites[sq]) < -0.8 ? kTransPairPrice : 0.0;
+        };
         std::vector<size_t> current(n), best = plain;
         double best_cost = 0;
         for (const auto& [p, q] : pairs) best_cost += angle(plain[p], plain[q]);
+        for (size_t p = 0; p < n; ++p)
+            for (size_t q = p + 1; q < n; ++q)
+                if (plain[p] < sites.size() && plain[q] < sites.size()) best_cost += trans_price(p, plain[p], q, plain[q]);
         for (size_t k = 0; k < n; ++k) best_cost += plain[k] != own_site[k] ? kMovePrice : 0;
         std::vector<char> used(sites.size(), 0);
         // Explicit stack: (donor index, next free-site index to try, cost so far).
@@ -963,6 +975,7 @@ private:
             double cost = f.cost + (s != own_site[f.donor] ? kMovePrice : 0);
             for (const auto& [p, q] : pairs)
                 if (q == f.donor) cost += angle(current[p], s);
+            for (size_t p = 0; p < f.donor; ++p) cost += trans_price(p, current[p], f.donor, s);
             if (cost >= best_cost - 1e-12) continue;
             current[f.donor] = s;
             used[s] = 1;
