@@ -563,9 +563,22 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalys
                     continue;
                 }
             }
+            // A nitroxide (R2N-O with the odd electron on O: TEMPO) shares it in a two-centre three-electron pi bond:
+            // N-O of order 1.5 (TEMPO 1.28 A, di-tert-butyl nitroxide 1.28 A; from memory).
+            double order = orders[e];
+            for (int side = 0; side < 2; ++side) {
+                const int o = side == 0 ? b.a : b.b, n = side == 0 ? b.b : b.a;
+                const CentreDomains& co = out.atoms[static_cast<size_t>(o)];
+                if (b.order == 1 && m.atoms[static_cast<size_t>(o)].z == 8 && m.atoms[static_cast<size_t>(n)].z == 7 &&
+                    m.atoms[static_cast<size_t>(o)].charge == 0 && m.atoms[static_cast<size_t>(n)].charge == 0 &&
+                    m.degree(o) + std::max(0, m.atoms[static_cast<size_t>(o)].hydrogens) == 1 &&
+                    co.single_electrons + co.p_single_electrons == 1 &&
+                    m.degree(n) + std::max(0, m.atoms[static_cast<size_t>(n)].hydrogens) == 3)
+                    order = 1.5;
+            }
             out.bond_lengths.push_back(bond_length_between(m.atoms[static_cast<size_t>(b.a)].z,
                                                            m.atoms[static_cast<size_t>(b.b)].z,
-                                                           std::clamp(orders[e], 1.0, 3.0), ends));
+                                                           std::clamp(order, 1.0, 3.0), ends));
         }
     }
     if (!solve)
