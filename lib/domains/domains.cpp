@@ -407,12 +407,20 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalys
                          2 * (metal_units - covalent_units);
         // An atom of a hapto ligand with an odd electron as written takes one from the metal (ionic model).
         if (hapto_atom && nonbonding % 2 != 0) ++nonbonding;
-        if (nonbonding < 0)
-            throw InputError(fmt::format("{} has bonds of total order {}, more than its {} valence electrons allow{}{}",
+        if (nonbonding < 0) {
+            // Four bonds at a neutral B, Al, Ga, In: an anion or a dative bridge written without its charges.
+            const bool acceptor = el.group == 13 && atom.charge == 0 && order_sum == 4;
+            throw InputError(fmt::format("{} has bonds of total order {}, more than its {} valence electrons allow{}{}{}",
                                          atom_label(m, i), order_sum, el.valence_electrons,
                                          atom.charge != 0 ? fmt::format(" with charge {:+d}", atom.charge) : "",
-                                         as_read(m, i)),
+                                         as_read(m, i),
+                                         acceptor ? "; a four-coordinate group-13 atom is an anion ([BH4-], [Al-]) or "
+                                                    "the acceptor of a dative bridge, written with its charges "
+                                                    "(Al2Cl6: Cl[Al-]1(Cl)[Cl+][Al-](Cl)(Cl)[Cl+]1); three-centre "
+                                                    "two-electron bonds (B2H6) are not modelled"
+                                                  : ""),
                              {}, atom.column);
+        }
         // First-row atoms keep a duet, second-row atoms an octet (octet expansion only from period 3 on).
         const int electrons = 2 * order_sum + nonbonding;
         const int limit = el.period == 1 ? 2 : el.period == 2 ? 8 : 1000;
