@@ -175,7 +175,7 @@ TEST(SmilesErrors, AboveNormalValenceIsReadAndRefusedByTheDomainAnalysis) {
         {"CF(C)", 2, "would hold 9 electrons"},
         {"CS(C)(C)(C)(C)(C)C", 2, "bonds of total order 7, more than its 6 valence electrons allow"},
         {"B(C)(C)(C)C", 1, "more than its 3 valence electrons allow"},
-        {"Cl[Al]1(Cl)Cl[Al](Cl)(Cl)Cl1", 2, "written with its charges (Al2Cl6: Cl[Al-]1(Cl)[Cl+][Al-](Cl)(Cl)[Cl+]1)"},
+        {"Cl[Al]1(Cl)Cl[Al](Cl)(Cl)Cl1", 3, "written with its charges (Al2Cl6: Cl[Al-]1(Cl)[Cl+][Al-](Cl)(Cl)[Cl+]1)"},
         {"CN(C)(C)(C)(C)C", 2, "read as a neutral nitrogen"},
         {"Co1cccc1C", 2, "would hold 9 electrons"},
     };
