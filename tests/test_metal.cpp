@@ -341,6 +341,32 @@ TEST(MetalGeometry, CyclometalatedTrisChelateIsFac) {
         for (size_t j = i + 1; j < 3; ++j) EXPECT_LT(angle(s, carbons[i], 0, carbons[j]), 110.0);
 }
 
+TEST(MetalGeometry, CarbenesDonateAndAlkylidenesTakeTheApex) {
+    // An N-heterocyclic carbene is a dative (L-type) donor however it is written (single bond from a bracketed [C],
+    // or M=C): the same Au(I), Au-C near 1.99 A and C-N near 1.35 A (NHC gold chlorides: Au-C 1.94-2.00, C-N
+    // 1.35-1.36 A, from memory), no radical.
+    for (const char* smiles : {"Cl[Au][C]1N(C)C=CN1C", "Cl[Au]=C1N(C)C=CN1C"}) {
+        const Structure s = build(smiles);
+        EXPECT_EQ(s.multiplicity, 1) << smiles;
+        EXPECT_NEAR(distance(s, 1, 2), 1.99, 0.05) << smiles;
+        EXPECT_NEAR(distance(s, 2, 3), 1.35, 0.03) << smiles;
+        EXPECT_NEAR(distance(s, 2, 7), 1.35, 0.03) << smiles;
+        EXPECT_EQ(centre(smiles).oxidation_state, 1) << smiles;
+    }
+    // The second-generation benzylidene catalyst: Ru(IV) d4 (the benzylidene CHPh2-, the NHC neutral), a square
+    // pyramid with the benzylidene at the apex and the chlorides trans (crystal: Cl-Ru-Cl 168, C-Ru-P 163 deg, from
+    // memory; the ideal pyramid here gives about 150).
+    const std::string grubbs = "CC1=CC(C)=C(N2CCN(C3=C(C)C=C(C)C=C3C)C2=[Ru](=Cc2ccccc2)(Cl)(Cl)"
+                               "[P](C2CCCCC2)(C2CCCCC2)C2CCCCC2)C(C)=C1";
+    const MetalCentre ru = centre(grubbs);
+    EXPECT_EQ(ru.oxidation_state, 4);
+    EXPECT_EQ(ru.polyhedron, "square pyramidal");
+    const Structure g = build(grubbs);
+    EXPECT_GT(angle(g, 28, 20, 29), 140.0);  // Cl-Ru-Cl
+    EXPECT_GT(angle(g, 19, 20, 30), 140.0);  // C(NHC)-Ru-P
+    EXPECT_NEAR(angle(g, 21, 20, 28), 100.0, 8.0);  // apex C-Ru-Cl
+}
+
 TEST(MetalGeometry, PianoStoolHasItsCarbonylsOnAFace) {
     // CpMn(CO)3 written with the ions apart: OC-Mn-CO about 92 degrees (crystal, from memory), the ring on the
     // opposite face.

@@ -153,11 +153,44 @@ std::vector<double> length_orders(const Molecule& m) {
 // - or bonded to a three-coordinate neutral boron with single bonds only (an empty p orbital: aminoboranes, borazine,
 //   boronic esters and acids are planar at N and O, common practice); next to boron a hydroxyl O counts too (the
 //   B-O-H of boronic acids opens to about 113 deg, from memory).
+// - or bonded to a carbene carbon that donates its lone pair to a metal by a single bond (its p orbital is empty
+//   as boron's: the N of an N-heterocyclic carbene is planar and its C-N short, common practice).
 // At most one pair per atom is delocalised.
+bool carbene_on_metal(const Molecule& m, int j) {
+    const Atom& c = m.atoms[static_cast<size_t>(j)];
+    if (c.z != 6 || c.charge != 0 || std::max(0, c.hydrogens) != 0 || m.degree(j) != 3) return false;
+    int metal = 0, hetero = 0;
+    for (const Neighbor& nb : m.neighbors(j)) {
+        const Atom& o = m.atoms[static_cast<size_t>(nb.atom)];
+        if (m.bonds[static_cast<size_t>(nb.bond)].order != 1) return false;
+        if (is_d_block_metal(o.z)) ++metal;
+        else if ((o.z == 7 || o.z == 8 || o.z == 16) && o.charge == 0) ++hetero;
+    }
+    return metal == 1 && hetero >= 1;
+}
+
+// A carbene carbon on a metal, written with a single bond (carbene_on_metal) or a double one (M=C(NR)2).
+bool carbene_donor_carbon(const Molecule& m, int j) {
+    if (carbene_on_metal(m, j)) return true;
+    const Atom& c = m.atoms[static_cast<size_t>(j)];
+    if (c.z != 6 || c.charge != 0 || std::max(0, c.hydrogens) != 0 || m.degree(j) != 3) return false;
+    int metal = 0, hetero = 0;
+    for (const Neighbor& nb : m.neighbors(j)) {
+        const Atom& o = m.atoms[static_cast<size_t>(nb.atom)];
+        const int order = m.bonds[static_cast<size_t>(nb.bond)].order;
+        if (is_d_block_metal(o.z)) metal += order == 2 ? 1 : 10;
+        else if (order != 1) return false;
+        else if ((o.z == 7 || o.z == 8 || o.z == 16) && o.charge == 0) ++hetero;
+    }
+    return metal == 1 && hetero >= 1;
+}
+
 bool empty_p_boron(const Molecule& m, int j) {
     const Atom& b = m.atoms[static_cast<size_t>(j)];
-    return b.z == 5 && b.charge == 0 && m.degree(j) + std::max(0, b.hydrogens) == 3 &&
-           m.bond_order_sum(j) + std::max(0, b.hydrogens) == 3;
+    if (b.z == 5)
+        return b.charge == 0 && m.degree(j) + std::max(0, b.hydrogens) == 3 &&
+               m.bond_order_sum(j) + std::max(0, b.hydrogens) == 3;
+    return carbene_on_metal(m, j);
 }
 
 bool delocalised_lone_pair(const Molecule& m, int i, int lone_pairs, int single_electrons) {
@@ -571,9 +604,19 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalys
                     continue;
                 }
             }
+            double orders_override = 0;
+            // The heteroatom of a carbene on a metal (NHC, Fischer) shares its lone pair with the carbene's empty p:
+            // order 1.5 (C-N 1.35-1.37 A in NHC complexes, Fischer C-OMe 1.33; from memory).
+            if (b.order == 1 && !b.aromatic)
+                for (int side = 0; side < 2; ++side) {
+                    const int c = side == 0 ? b.a : b.b, x = side == 0 ? b.b : b.a;
+                    const Atom& ax = m.atoms[static_cast<size_t>(x)];
+                    if ((ax.z == 7 || ax.z == 8 || ax.z == 16) && ax.charge == 0 && carbene_donor_carbon(m, c))
+                        orders_override = 1.5;
+                }
             // A nitroxide (R2N-O with the odd electron on O: TEMPO) shares it in a two-centre three-electron pi bond:
             // N-O of order 1.5 (TEMPO 1.28 A, di-tert-butyl nitroxide 1.28 A; from memory).
-            double order = orders[e];
+            double order = orders_override > 0 ? orders_override : orders[e];
             for (int side = 0; side < 2; ++side) {
                 const int o = side == 0 ? b.a : b.b, n = side == 0 ? b.b : b.a;
                 const CentreDomains& co = out.atoms[static_cast<size_t>(o)];

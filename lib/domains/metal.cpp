@@ -295,6 +295,28 @@ private:
         return s;
     }
 
+    // A heteroatom-stabilised carbene on one metal (an N-heterocyclic carbene, a Fischer carbene): a neutral carbon
+    // with two single bonds to non-metals, at least one of them N, O or S, and one bond to a metal. Cut off the metal
+    // it is the closed-shell singlet carbene, a lone-pair (L-type) donor, whether the bond is written single or
+    // double (common practice: the M-C bond of NHC complexes is a dative single bond, Au-C 1.99-2.03 A in (NHC)AuCl,
+    // from memory).
+    bool heteroatom_carbene(int i) const {
+        const Atom& a = m_.atoms[at(i)];
+        if (a.z != 6 || a.charge != 0 || std::max(0, a.hydrogens) != 0) return false;
+        int nonmetal = 0, metal = 0, hetero = 0;
+        for (const Neighbor& nb : m_.neighbors(i)) {
+            const Atom& o = m_.atoms[at(nb.atom)];
+            if (is_metal(nb.atom)) {
+                ++metal;
+                continue;
+            }
+            if (m_.bonds[at(nb.bond)].order != 1 || m_.bonds[at(nb.bond)].aromatic) return false;
+            ++nonmetal;
+            if ((o.z == 7 || o.z == 8 || o.z == 16) && o.charge == 0) ++hetero;
+        }
+        return metal == 1 && nonmetal == 2 && hetero >= 1;
+    }
+
     // The ionic model (reference-data.md: the ligands cut off the metal as closed-shell species): each donor takes
     // from the metal the electrons that make its ligand closed-shell (an octet, a duet for hydrogen; period-3 and
     // heavier donors may keep an expanded octet), at most one per bond-order unit to metals. Those units are the
@@ -354,6 +376,10 @@ private:
                                           : std::string("; write its charge (the ligand as the free species)")),
                     {}, a.column);
             }
+            // A heteroatom-stabilised carbene donates its lone pair: nothing covalent on a single bond; on a written
+            // double bond the two units are counted for the carbon's own domains but take nothing from the metal.
+            const bool carbene = heteroatom_carbene(i);
+            if (carbene && k == 1) t = 0;
             if (t > k) {
                 out_.warnings.push_back(fmt::format(
                     "atom {} ({}): its ligand is not closed-shell even with every bond to the metal counted as "
@@ -398,7 +424,7 @@ private:
             // Electrons the ligand takes in the ionic model. A carbonyl written in the cumulated form, M=C=O, is the
             // neutral ligand CO (the same molecule as [M]-[C-]#[O+]): its two covalent units are counted for the
             // carbon's own domains but take nothing from the metal.
-            int taken = t;
+            int taken = carbene ? 0 : t;
             if (a.z == 6 && a.charge == 0 && metal_bonds.size() == 1 && k == 2 && m_.degree(i) == 2) {
                 for (const Neighbor& nb : m_.neighbors(i)) {
                     const Atom& o = m_.atoms[at(nb.atom)];
@@ -536,10 +562,10 @@ private:
                 return;
             }
             case 5:
-                // One multiply bonded ligand (a vanadyl or molybdenyl oxo, a multiple metal-metal bond) leaves the
-                // site trans to it empty: a square pyramid with that ligand at the apex (common practice:
-                // VO(acac)2, MoOCl4, Re2Cl8 2-).
-                if ((terminal_multiple_count(c) == 1 || multiple_metal_bond(c)) && !hapto) {
+                // One multiply bonded ligand (a vanadyl or molybdenyl oxo, an alkylidene, a multiple metal-metal
+                // bond) leaves the site trans to it empty: a square pyramid with that ligand at the apex (common
+                // practice: VO(acac)2, MoOCl4, Re2Cl8 2-, the ruthenium benzylidene metathesis catalysts).
+                if ((multiple_ligand_count(c) == 1 || multiple_metal_bond(c)) && !hapto) {
                     c.polyhedron = "square pyramidal";
                     c.polyhedron_reason = fmt::format("d{} {}, five coordination sites with one multiple bond: square "
                                                       "pyramidal (the site trans to it left empty)",
@@ -662,6 +688,23 @@ private:
         return n;
     }
 
+    // A true multiple bond to a ligand: a terminal oxo or nitrido, or an alkylidene (a carbon double-bonded to the
+    // metal that is neither a heteroatom-stabilised carbene nor the cumulated form of a carbonyl).
+    bool multiple_ligand(const LigandDomain& l) const {
+        if (l.hapto() || l.bond_order < 2 || is_metal(l.atoms[0])) return false;
+        const int donor = l.atoms[0];
+        if (m_.degree(donor) == 1) return true;
+        if (m_.atoms[at(donor)].z != 6 || heteroatom_carbene(donor)) return false;
+        for (const Neighbor& nb : m_.neighbors(donor))
+            if (!is_metal(nb.atom) && m_.bonds[at(nb.bond)].order >= 2) return false;  // M=C=O, M=C=C
+        return true;
+    }
+    int multiple_ligand_count(const MetalCentre& c) const {
+        int n = 0;
+        for (const LigandDomain& l : c.ligands) n += multiple_ligand(l) ? 1 : 0;
+        return n;
+    }
+
     // A multiple bond to another metal (the quadruple bond of Re2Cl8 2-).
     bool multiple_metal_bond(const MetalCentre& c) const {
         for (const LigandDomain& l : c.ligands)
@@ -683,6 +726,7 @@ private:
             b.order = l.bond_order;
             b.hapto = l.hapto() ? static_cast<int>(l.atoms.size()) : 0;
             b.donor_charge = m_.atoms[at(l.atoms[0])].charge;
+            b.carbene_donor = !l.hapto() && heteroatom_carbene(l.atoms[0]);
             b.valence_electrons = c.d_electrons + 2 * c.sites;
             b.yl = !l.hapto() && l.bond_order >= 2 && terminal_multiple_count(c) == 1 && c.coordination_number >= 5 &&
                    m_.degree(l.atoms[0]) == 1;
@@ -743,13 +787,35 @@ private:
             // VO(acac)2's O=V-O and Re2Cl8 2-'s Re-Re-Cl, from memory), the others round the base.
             size_t apex_owner = 0;
             for (size_t s = 0; s < site_owner.size(); ++s)
-                if (c.ligands[at(site_owner[s])].bond_order >= 2) {
+                if (multiple_ligand(c.ligands[at(site_owner[s])]) ||
+                    (is_metal(c.ligands[at(site_owner[s])].atoms[0]) && c.ligands[at(site_owner[s])].bond_order >= 2)) {
                     apex_owner = s;
                     break;
                 }
             sites.assign(site_owner.size(), Vector3d::Zero());
-            size_t base = 1;
-            for (size_t s = 0; s < site_owner.size(); ++s) sites[s] = s == apex_owner ? named[0] : named[base++];
+            // Round the base, like donors trans to each other where the order allows (the two chlorides and the two
+            // neutral donors of the benzylidene catalysts are trans; chelates are put cis afterwards).
+            std::vector<size_t> basal;
+            for (size_t s = 0; s < site_owner.size(); ++s)
+                if (s != apex_owner) basal.push_back(s);
+            std::vector<size_t> perm = {1, 2, 3, 4}, best_perm = perm;
+            auto like = [&](size_t a, size_t b) {
+                const LigandDomain& la = c.ligands[at(site_owner[a])];
+                const LigandDomain& lb = c.ligands[at(site_owner[b])];
+                return m_.atoms[at(la.atoms[0])].z == m_.atoms[at(lb.atoms[0])].z && la.bond_order == lb.bond_order;
+            };
+            auto score = [&](const std::vector<size_t>& p) {
+                int n = 0;
+                for (size_t i = 0; i < basal.size() && i < p.size(); ++i)
+                    for (size_t j = i + 1; j < basal.size() && j < p.size(); ++j)
+                        if (named[p[i]].dot(named[p[j]]) < -0.5 && like(basal[i], basal[j])) ++n;
+                return n;
+            };
+            int best_score = score(perm);
+            while (basal.size() == 4 && std::next_permutation(perm.begin(), perm.end()))
+                if (const int sc = score(perm); sc > best_score) best_score = sc, best_perm = perm;
+            size_t k = 0;
+            for (size_t s = 0; s < site_owner.size(); ++s) sites[s] = s == apex_owner ? named[0] : named[best_perm[k++]];
         } else if (c.sites == 1) {
             sites = {Vector3d::UnitZ()};
         } else {

@@ -210,7 +210,8 @@ double metal_ligand_length(const MetalLigandBond& b) {
                                        : 0;
         if (ionic > 0) return ionic + donor;
     }
-    const int order = carbonyl(b) ? 1 : b.order;  // M=C=O, the cumulated form of a carbonyl, is the same bond
+    // M=C=O, the cumulated form of a carbonyl, is the same bond; so is a carbene written M=C(NR)2.
+    const int order = carbonyl(b) || b.carbene_donor ? 1 : b.order;
     double length = covalent_radius(b.metal_z, order) + covalent_radius(b.donor_z, order);
     if (carbonyl(b)) length -= kCarbonylShortening;
     return length;

@@ -21,6 +21,7 @@ struct MetalLigandBond {
     int donor_partner_z = 0;    // the element of the donor's one non-metal neighbour, when it has one (O in CO)
     int covalent = 0;           // electrons its ligand takes from the metal (X-type units)
     bool yl = false;            // the one terminal oxo (or nitrido) of a centre whose other ligands are sigma donors
+    bool carbene_donor = false; // a heteroatom-stabilised carbene (NHC, Fischer): a dative single bond however written
     int valence_electrons = 0;  // the centre's electron count (d electrons + 2 per coordination site), for hapto
 };
 
