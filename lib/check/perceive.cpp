@@ -491,14 +491,16 @@ ValenceResult assign_impl(Molecule& m, const std::vector<Eigen::Vector3d>& pos, 
         // Rule 1 is kept only when the atoms it leaves unsatisfied (those to take the -1) are the host's
         // neighbours or theirs: a charge pair across the molecule (C=Cl+ here, C- there) is no Lewis structure
         // anyone means.
+        // One such atom is enough: the other unsatisfied atoms may belong to another group of the same kind
+        // (p-dinitrobenzene's second nitro group: requiring all of them near left its four O as radicals).
         auto local = [&](int host) {
             for (int i = 0; i < n; ++i) {
                 if (left[static_cast<size_t>(i)] <= 0 || i == host) continue;
                 bool near = m.bond_between(i, host) >= 0;
                 for (const Neighbor& nb : m.neighbors(host)) near = near || m.bond_between(i, nb.atom) >= 0;
-                if (!near) return false;
+                if (near) return true;
             }
-            return true;
+            return false;
         };
         // Rule 1: a neighbour takes +1 and one more bond (N+ of a nitro group, O+ of CO), when the charge is to go up
         // or another atom is left to take the compensating -1.
@@ -538,6 +540,31 @@ ValenceResult assign_impl(Molecule& m, const std::vector<Eigen::Vector3d>& pos, 
             }
         }
         if (!changed) break;
+    }
+    // Still short of the total charge with every atom satisfied (NH3 read with charge +1: an ammonium that lost a
+    // hydrogen): the atom with the fewest neighbours that can hold the charge with one bond more takes it, and the
+    // bond it lacks is reported at it as an unpaired electron (a missing hydrogen), not as a charge without a place.
+    if (!fixed_charges && !free_charge && charge() != target && tries <= kMaxTries) {
+        const int dq = charge() < target ? 1 : -1;
+        int best = -1;
+        State best_state{};
+        for (int i = 0; i < n; ++i) {
+            if (left[static_cast<size_t>(i)] > 0 || (ignore && (*ignore)[static_cast<size_t>(i)])) continue;
+            const State cur = state[static_cast<size_t>(i)];
+            for (const State& s : valence_states(m.atoms[static_cast<size_t>(i)].z))
+                if (s.charge == cur.charge + dq && s.valence == cur.valence + 1) {
+                    if (best < 0 || m.degree(i) < m.degree(best) ||
+                        (m.degree(i) == m.degree(best) && dq * electronegativity(i) < dq * electronegativity(best))) {
+                        best = i;
+                        best_state = s;
+                    }
+                    break;
+                }
+        }
+        if (best >= 0) {
+            state[static_cast<size_t>(best)] = best_state;
+            residual = solve();
+        }
     }
 
     for (int b = 0; b < m.bond_count(); ++b)
