@@ -79,8 +79,7 @@ int run_check(const CheckArgs& args) {
 
     AuditOptions options;
     options.angle_rms = args.angle_rms;
-    // The single-angle limit follows --angle-threshold in proportion (16 degrees at the default 15 RMS).
-    options.angle_worst = args.angle_rms * AuditOptions{}.angle_worst / AuditOptions{}.angle_rms;
+    options.angle_worst = args.angle_rms;  // the same limit for the worst single angle (audit.hpp)
     options.bond_deviation = args.bond_deviation;
     options.contact_fraction = args.contact_fraction;
     options.perception.tolerance = args.tolerance;

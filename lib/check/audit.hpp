@@ -33,9 +33,11 @@ inline constexpr double kHeavyBondFactor = 2.0;  // see AuditOptions::bond_devia
 struct AuditOptions {
     double angle_rms = 15.0;        // degrees: RMS deviation of a centre's angles from the predicted ones
     // Degrees: the largest deviation of one angle at a centre. The RMS misses one neighbour bent 20 degrees at a
-    // four-coordinate centre (the other angles share it). Measured (tests/external/check_audit_damage.py): the worst
-    // single angle of the sound structures there (G2 and GFN2-xTB optima) lies within MEASURED_WORST.
-    double angle_worst = 16.0;
+    // four-coordinate centre (the other angles share it). Measured (tests/external/check_audit_damage.py): over the
+    // 1,170 judged centres of its 224 sound structures (G2 and GFN2-xTB optima) the worst single angle is 13.8 degrees
+    // off (an exocyclic C-C-H of G2 furan, opened by the five-membered ring); 15 keeps a margin (a choice).
+    // --angle-threshold sets both.
+    double angle_worst = 15.0;
     double planarity = 10.0;        // degrees: an AX3 centre (no lone pair) whose angles sum below 360 - this
     // Angstrom: |measured - expected| for a bond between atoms of the first two periods (H, B to F), the expected
     // length the domain analysis' (the one the build aims at: aromatic and resonance-shared orders, hybridisation).
