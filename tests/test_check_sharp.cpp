@@ -281,3 +281,69 @@ TEST(CheckDelocalisedCations, AmidiniumAndGuanidiniumOptimaAreCleanAndFixKeepsTh
         EXPECT_TRUE(a.findings.empty()) << smiles << "\n" << describe(a);
     }
 }
+
+TEST(CheckPerception, TwoNitroGroupsAndPyridiniumTakeTheirChargesOnNitrogen) {
+    // Before: p-dinitrobenzene's four O were radicals (the second N+ was refused as not local), and pyridinium's
+    // charge went to the ring carbon para to N, which left the ring non-aromatic.
+    const Audit dinitro = audit_structure(built("O=[N+]([O-])c1ccc(cc1)[N+](=O)[O-]"));
+    EXPECT_TRUE(dinitro.findings.empty()) << describe(dinitro);
+    AuditOptions cation;
+    cation.charge = 1;
+    const Audit pyridinium = audit_structure(built("c1cc[nH+]cc1"), cation);
+    EXPECT_TRUE(pyridinium.findings.empty()) << describe(pyridinium);
+    const Molecule& m = pyridinium.structure.molecule;
+    for (int i = 0; i < m.atom_count(); ++i)
+        EXPECT_EQ(m.atoms[static_cast<size_t>(i)].charge, m.atoms[static_cast<size_t>(i)].z == 7 ? 1 : 0) << i + 1;
+    int aromatic = 0;
+    for (const Bond& b : m.bonds) aromatic += b.aromatic;
+    EXPECT_EQ(aromatic, 6);
+}
+
+TEST(CheckDamage, CationMissingAHydrogenIsFoundAtItsAtom) {
+    // Ammonium without one hydrogen, read with charge +1: before, a "charge" finding naming no atom.
+    ReadStructure r = built("[NH4+]");
+    r.structure.molecule.atoms.pop_back();
+    r.structure.positions.pop_back();
+    std::ostringstream text;
+    text << "4\nNH3+\n";
+    for (int i = 0; i < 4; ++i)
+        text << (i == 0 ? "N " : "H ") << r.structure.positions[static_cast<size_t>(i)].x() << ' '
+             << r.structure.positions[static_cast<size_t>(i)].y() << ' ' << r.structure.positions[static_cast<size_t>(i)].z()
+             << '\n';
+    AuditOptions cation;
+    cation.charge = 1;
+    const Audit a = audit_structure(xyz(text.str()), cation);
+    bool at_n = false;
+    for (const Finding& f : a.findings) at_n = at_n || (f.kind == "radical" && f.atoms == std::vector<int>{1});
+    EXPECT_TRUE(at_n) << describe(a);
+}
+
+TEST(CheckDamage, OneAngleBent20DegreesAndAFlatAmineAreFound) {
+    // Ethanol (G2) with one methyl H turned 20 degrees about C1 in the plane H7-C1-C2: the RMS over C1's six angles
+    // stays under 15 degrees; the worst angle does not.
+    ReadStructure r = xyz(kG2Ethanol);
+    auto& p = r.structure.positions;
+    const Vector3d axis = (p[6] - p[0]).cross(p[1] - p[0]).normalized();
+    p[6] = p[0] + Eigen::AngleAxisd(-20.0 * M_PI / 180, axis) * (p[6] - p[0]);
+    const Audit a = audit_structure(r);
+    ASSERT_FALSE(a.findings.empty()) << describe(a);
+    EXPECT_EQ(a.findings.front().atoms, std::vector<int>{1}) << describe(a);
+    // Methylamine built by repel, its N moved into the plane of its three neighbours.
+    ReadStructure amine = built("CN");
+    auto& q = amine.structure.positions;
+    const Molecule& m = amine.structure.molecule;
+    std::vector<int> nbs;
+    for (int i = 0; i < m.atom_count(); ++i)
+        if (i != 1 && (q[static_cast<size_t>(i)] - q[1]).norm() < 1.6) nbs.push_back(i);
+    ASSERT_EQ(nbs.size(), 3u);
+    const Vector3d normal = (q[static_cast<size_t>(nbs[1])] - q[static_cast<size_t>(nbs[0])])
+                                .cross(q[static_cast<size_t>(nbs[2])] - q[static_cast<size_t>(nbs[0])])
+                                .normalized();
+    q[1] -= normal.dot(q[1] - q[static_cast<size_t>(nbs[0])]) * normal;
+    const Audit flat = audit_structure(amine);
+    bool at_n = false;
+    for (const Finding& f : flat.findings) at_n = at_n || (f.kind == "geometry" && f.atoms == std::vector<int>{2});
+    EXPECT_TRUE(at_n) << describe(flat);
+    // Unflattened, clean.
+    EXPECT_TRUE(audit_structure(built("CN")).findings.empty());
+}

@@ -307,7 +307,10 @@ void check_metal_centre(Audit& out, const MetalCentre& c, const std::vector<Eige
     out.metals.push_back(std::move(a));
 }
 
-void check_valences(Audit& out, const ValenceResult& v, int unpaired_allowed, bool multiplicity_known) {
+// `overlapped`: the overlaps found; with one, a radical most likely comes from the misplaced atom, so
+// --multiplicity, which cannot fix it, is not suggested.
+void check_valences(Audit& out, const ValenceResult& v, int unpaired_allowed, bool multiplicity_known,
+                    const std::set<std::pair<int, int>>& overlapped) {
     const Molecule& m = out.structure.molecule;
     for (int i : v.overbonded) {
         out.findings.push_back({"neighbours", {i + 1},
@@ -327,12 +330,15 @@ void check_valences(Audit& out, const ValenceResult& v, int unpaired_allowed, bo
         for (int i = 0; i < m.atom_count(); ++i) {
             const int u = v.unpaired[static_cast<size_t>(i)];
             if (u <= 0) continue;
+            const char* advice = !overlapped.empty() ? "; an overlap was found: the atom misplaced there is probably "
+                                                       "the one it lacks"
+                                 : multiplicity_known ? ""
+                                                      : "; give --multiplicity if the structure is open-shell";
             out.findings.push_back(
                 {"radical", {i + 1},
                  fmt::format("{} is {} short of a normal valence: {} (a radical), or a missing hydrogen or neighbour{}",
                              label(m, i), u == 1 ? "one bond" : fmt::format("{} bonds", u),
-                             u == 1 ? "an unpaired electron" : fmt::format("{} unpaired electrons", u),
-                             multiplicity_known ? "" : "; give --multiplicity if the structure is open-shell"),
+                             u == 1 ? "an unpaired electron" : fmt::format("{} unpaired electrons", u), advice),
                  m.bond_order_sum(i), m.bond_order_sum(i) + u, "", Severity::error, 50});
         }
     }
@@ -469,7 +475,7 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
             }
         }
     }
-    check_valences(out, valence, unpaired_allowed, multiplicity.has_value());
+    check_valences(out, valence, unpaired_allowed, multiplicity.has_value(), overlapping);
     if (valence.charge != out.charge)
         out.findings.push_back({"charge", {},
                                 fmt::format("the formal charges add up to {:+d}, but the total charge is {:+d}{}",

@@ -520,6 +520,30 @@ ValenceResult assign_impl(Molecule& m, const std::vector<Eigen::Vector3d>& pos, 
                     }
                 if (changed) break;
             }
+        // Rule 1 again for a cation, with any atom of the structure as the host: the matching is global, so an N+
+        // anywhere in a conjugated ring serves (pyridinium: the carbon left over sits para to the N, which is no
+        // neighbour of it; rule 2 then made that carbon the cation and the ring lost its aromaticity).
+        if (!changed && !fixed_charges && !free_charge && residual > unpaired_allowed && q < target) {
+            std::vector<int> others;
+            for (int i = 0; i < n; ++i)
+                if (left[static_cast<size_t>(i)] == 0 && std::find(hosts.begin(), hosts.end(), i) == hosts.end() &&
+                    !(ignore && (*ignore)[static_cast<size_t>(i)]))
+                    others.push_back(i);
+            std::stable_sort(others.begin(), others.end(),
+                             [&](int a, int b) { return electronegativity(a) < electronegativity(b); });
+            for (int h : others) {
+                const State cur = state[static_cast<size_t>(h)];
+                bool free_bond = false;
+                for (const Neighbor& nb : m.neighbors(h)) free_bond = free_bond || is_free[static_cast<size_t>(nb.bond)];
+                if (!free_bond) continue;
+                for (const State& s : valence_states(m.atoms[static_cast<size_t>(h)].z))
+                    if (s.charge == cur.charge + 1 && s.valence == cur.valence + 1) {
+                        changed = try_state(h, s);
+                        break;
+                    }
+                if (changed) break;
+            }
+        }
         // Rule 2: an unsatisfied atom takes a charge and one bond less: an anion on the most electronegative atom
         // when the charge is to go down, a cation on the least electronegative when it is to go up.
         if (!changed && !fixed_charges && (free_charge ? residual > unpaired_allowed : q != target) && !unsat.empty()) {
