@@ -613,8 +613,15 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
             // drawn flat: the RMS against the pyramid's angles (107 against 120 degrees) stays under the threshold.
             // Sound pyramids sum to 300-345 degrees (NH3 about 320, trimethylamine about 333; conjugated N, which may
             // be flat, are left out); a sum above kFlatPyramid is a finding.
+            // A donor on a metal is left out: its geometry towards the metal is soft (coordinated water runs from
+            // pyramidal to flat; GFN2-xTB's [Fe(H2O)6]2+ has it flat).
+            bool on_metal = false;
+            for (const Neighbor& nb : skeleton.neighbors(i)) {
+                const int zn = m.atoms[static_cast<size_t>(nb.atom)].z;
+                on_metal = on_metal || is_d_block_metal(zn) || (zn != 1 && element(zn).group <= 2);
+            }
             if (c.bonded == 3 && c.steric_number == 4 && c.lone_pairs == 1 && c.delocalised_lone_pairs == 0 &&
-                !conjugated_nitrogen(skeleton, i, c)) {
+                !on_metal && !conjugated_nitrogen(skeleton, i, c)) {
                 const auto& nbs = skeleton.neighbors(i);
                 const Eigen::Vector3d& o = pos[static_cast<size_t>(i)];
                 double sum = 0;
