@@ -223,3 +223,127 @@ TEST(CheckFalseAlarms, BridgingOxygenBetweenPhosphorusAtomsIsNotJudged) {
     const Audit a = audit_structure(r);
     for (const Finding& f : a.findings) EXPECT_NE(f.atoms.at(0), bridge + 1) << describe(a);
 }
+
+namespace {
+
+// GFN2-xTB optima (xtb 6.5.1, `--opt --gfn 2 --chrg 1`, from repel's builds) of acetamidinium (C-N 1.312 and 1.313 A)
+// and guanidinium (C-N 1.328, 1.331, 1.333 A), rounded to 0.1 pm.
+const char* kXtbAcetamidinium =
+    "11\nacetamidinium\n"
+    "C 0.0076 0.0000 0.0151\nC -0.0750 0.0000 1.4943\nN -1.2580 0.0000 2.0654\nN 1.0234 0.0000 2.2119\n"
+    "H 1.0358 -0.0000 -0.3336\nH -0.4975 -0.8766 -0.3898\nH -0.4975 0.8766 -0.3898\nH -1.3722 -0.0000 3.0696\n"
+    "H -2.0998 -0.0000 1.5083\nH 1.0043 -0.0000 3.2230\nH 1.9323 -0.0000 1.7728\n";
+const char* kXtbGuanidinium =
+    "10\nguanidinium\n"
+    "N 0.0000 -0.0000 0.0621\nC -0.0791 -0.0000 1.3878\nN -1.2667 -0.0000 1.9823\nN 1.0296 -0.0000 2.1191\n"
+    "H 0.8893 0.0000 -0.4102\nH -0.8261 -0.0000 -0.5133\nH -1.3508 0.0000 2.9857\nH -2.1209 -0.0000 1.4494\n"
+    "H 0.9943 0.0000 3.1254\nH 1.9408 0.0000 1.6908\n";
+
+double distance(const std::vector<Vector3d>& p, int a, int b) {
+    return (p[static_cast<size_t>(a)] - p[static_cast<size_t>(b)]).norm();
+}
+
+}  // namespace
+
+TEST(CheckDelocalisedCations, AmidiniumAndGuanidiniumOptimaAreCleanAndFixKeepsTheirBondsEqual) {
+    // Before: one C-N judged a double bond and the other a single one, 0.13 A too short, whichever N took the charge.
+    struct Case {
+        const char* text;
+        int carbon;
+        std::vector<int> nitrogens;
+    };
+    for (const Case& k : {Case{kXtbAcetamidinium, 1, {2, 3}}, Case{kXtbGuanidinium, 1, {0, 2, 3}}}) {
+        AuditOptions o;
+        o.charge = 1;
+        const Audit a = audit_structure(xyz(k.text), o);
+        EXPECT_TRUE(a.findings.empty()) << describe(a);
+        // Nothing to fix: written unchanged. With every bond set as wrong, --fix must still give equal C-N.
+        const CleanResult c = clean_structure(a);
+        EXPECT_LT(largest_bond_change(a.structure.molecule, a.structure.positions, c.structure.positions), 0.03);
+        ReadStructure damaged = xyz(k.text);
+        stretch(damaged, k.carbon, k.nitrogens[0], 0.3);
+        const Audit d = audit_structure(damaged, o);
+        EXPECT_TRUE(names_bond(d, k.carbon + 1, k.nitrogens[0] + 1)) << describe(d);
+        const CleanResult f = clean_structure(d);
+        ASSERT_TRUE(f.refined) << f.summary;
+        double lo = 9, hi = 0;
+        for (int nn : k.nitrogens) {
+            lo = std::min(lo, distance(f.structure.positions, k.carbon, nn));
+            hi = std::max(hi, distance(f.structure.positions, k.carbon, nn));
+        }
+        EXPECT_LT(hi - lo, 0.03) << "C-N after --fix from " << lo << " to " << hi;
+    }
+    // repel's own builds: clean (before: both C-N found, the charge perceived on the other N).
+    for (const char* smiles : {"CC(N)=[NH2+]", "NC(N)=[NH2+]", "NC(=[NH2+])c1ccccc1"}) {
+        AuditOptions o;
+        o.charge = 1;
+        const Audit a = audit_structure(built(smiles), o);
+        EXPECT_TRUE(a.findings.empty()) << smiles << "\n" << describe(a);
+    }
+}
+
+TEST(CheckPerception, TwoNitroGroupsAndPyridiniumTakeTheirChargesOnNitrogen) {
+    // Before: p-dinitrobenzene's four O were radicals (the second N+ was refused as not local), and pyridinium's
+    // charge went to the ring carbon para to N, which left the ring non-aromatic.
+    const Audit dinitro = audit_structure(built("O=[N+]([O-])c1ccc(cc1)[N+](=O)[O-]"));
+    EXPECT_TRUE(dinitro.findings.empty()) << describe(dinitro);
+    AuditOptions cation;
+    cation.charge = 1;
+    const Audit pyridinium = audit_structure(built("c1cc[nH+]cc1"), cation);
+    EXPECT_TRUE(pyridinium.findings.empty()) << describe(pyridinium);
+    const Molecule& m = pyridinium.structure.molecule;
+    for (int i = 0; i < m.atom_count(); ++i)
+        EXPECT_EQ(m.atoms[static_cast<size_t>(i)].charge, m.atoms[static_cast<size_t>(i)].z == 7 ? 1 : 0) << i + 1;
+    int aromatic = 0;
+    for (const Bond& b : m.bonds) aromatic += b.aromatic;
+    EXPECT_EQ(aromatic, 6);
+}
+
+TEST(CheckDamage, CationMissingAHydrogenIsFoundAtItsAtom) {
+    // Ammonium without one hydrogen, read with charge +1: before, a "charge" finding naming no atom.
+    ReadStructure r = built("[NH4+]");
+    r.structure.molecule.atoms.pop_back();
+    r.structure.positions.pop_back();
+    std::ostringstream text;
+    text << "4\nNH3+\n";
+    for (int i = 0; i < 4; ++i)
+        text << (i == 0 ? "N " : "H ") << r.structure.positions[static_cast<size_t>(i)].x() << ' '
+             << r.structure.positions[static_cast<size_t>(i)].y() << ' ' << r.structure.positions[static_cast<size_t>(i)].z()
+             << '\n';
+    AuditOptions cation;
+    cation.charge = 1;
+    const Audit a = audit_structure(xyz(text.str()), cation);
+    bool at_n = false;
+    for (const Finding& f : a.findings) at_n = at_n || (f.kind == "radical" && f.atoms == std::vector<int>{1});
+    EXPECT_TRUE(at_n) << describe(a);
+}
+
+TEST(CheckDamage, OneAngleBent20DegreesAndAFlatAmineAreFound) {
+    // Ethanol (G2) with one methyl H turned 20 degrees about C1 in the plane H7-C1-C2: the RMS over C1's six angles
+    // stays under 15 degrees; the worst angle does not.
+    ReadStructure r = xyz(kG2Ethanol);
+    auto& p = r.structure.positions;
+    const Vector3d axis = (p[6] - p[0]).cross(p[1] - p[0]).normalized();
+    p[6] = p[0] + Eigen::AngleAxisd(-20.0 * M_PI / 180, axis) * (p[6] - p[0]);
+    const Audit a = audit_structure(r);
+    ASSERT_FALSE(a.findings.empty()) << describe(a);
+    EXPECT_EQ(a.findings.front().atoms, std::vector<int>{1}) << describe(a);
+    // Methylamine built by repel, its N moved into the plane of its three neighbours.
+    ReadStructure amine = built("CN");
+    auto& q = amine.structure.positions;
+    const Molecule& m = amine.structure.molecule;
+    std::vector<int> nbs;
+    for (int i = 0; i < m.atom_count(); ++i)
+        if (i != 1 && (q[static_cast<size_t>(i)] - q[1]).norm() < 1.6) nbs.push_back(i);
+    ASSERT_EQ(nbs.size(), 3u);
+    const Vector3d normal = (q[static_cast<size_t>(nbs[1])] - q[static_cast<size_t>(nbs[0])])
+                                .cross(q[static_cast<size_t>(nbs[2])] - q[static_cast<size_t>(nbs[0])])
+                                .normalized();
+    q[1] -= normal.dot(q[1] - q[static_cast<size_t>(nbs[0])]) * normal;
+    const Audit flat = audit_structure(amine);
+    bool at_n = false;
+    for (const Finding& f : flat.findings) at_n = at_n || (f.kind == "geometry" && f.atoms == std::vector<int>{2});
+    EXPECT_TRUE(at_n) << describe(flat);
+    // Unflattened, clean.
+    EXPECT_TRUE(audit_structure(built("CN")).findings.empty());
+}

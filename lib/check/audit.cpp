@@ -106,11 +106,33 @@ bool angle_opened_by_neighbours(const Molecule& m, int centre, const CentreDomai
     return false;
 }
 
+// A hydrogen on N, O or F and an N, O or F of another group at 1.4 A or more: a hydrogen bond, not a clash (the
+// O-H...N of neutral arginine's acid and guanidine is 1.65 A in its GFN2-xTB optimum; H...O of strong hydrogen bonds
+// runs from about 1.5 A, from memory). Closer than 1.4 A it is still a contact.
+bool hydrogen_bond(const Molecule& m, int i, int j, double distance) {
+    auto acceptor = [&](int a) {
+        const int z = m.atoms[static_cast<size_t>(a)].z;
+        return z == 7 || z == 8 || z == 9;
+    };
+    auto polar_h = [&](int h) {
+        if (m.atoms[static_cast<size_t>(h)].z != 1) return false;
+        for (const Neighbor& nb : m.neighbors(h))
+            if (acceptor(nb.atom)) return true;
+        return false;
+    };
+    return distance >= 1.4 && ((polar_h(i) && acceptor(j)) || (polar_h(j) && acceptor(i)));
+}
+
+// Degrees: the angle sum above which a three-bonded centre with a lone pair of its own is drawn flat (a choice:
+// the flattest sound pyramid among the G2 geometries and the GFN2-xTB optima of check_optima.xyz is under it).
+constexpr double kFlatPyramid = 355.0;
+
 struct AngleFit {
     double rms = 0;
     int pairs = 0;
     int worst_a = -1, worst_b = -1;
     double worst_measured = 0, worst_predicted = 0;
+    double worst = 0;  // the largest |measured - predicted| of the fit kept (the planar one where it is kept)
 };
 
 // Compares the measured angles at a centre with the predicted ones, under the best assignment of the predicted
@@ -142,7 +164,11 @@ AngleFit fit_angles(const Molecule& m, const std::vector<Eigen::Vector3d>& pos, 
             const bool to_metal = !is_d_block_metal(m.atoms[static_cast<size_t>(c.atom)].z) &&
                                   (is_d_block_metal(m.atoms[static_cast<size_t>(a)].z) ||
                                    is_d_block_metal(m.atoms[static_cast<size_t>(b)].z));
-            use[static_cast<size_t>(i * k + j)] = !joined_within(m, c.atom, a, b, 3) && !to_metal;
+            // The same inside a ring of seven to nine atoms when no smaller ring holds the angle: closing it opens
+            // the angles (the imine C-N=C of diazepam's seven-membered ring is 130 degrees in its GFN2-xTB optimum,
+            // the isolated centre gives 114; a regular heptagon has 128.6).
+            const bool medium_ring = !joined_within(m, c.atom, a, b, 4) && joined_within(m, c.atom, a, b, 7);
+            use[static_cast<size_t>(i * k + j)] = !joined_within(m, c.atom, a, b, 3) && !medium_ring && !to_metal;
         }
     auto cls = [&](int i) {
         const Neighbor& nb = nbs[static_cast<size_t>(i)];
@@ -185,12 +211,19 @@ AngleFit fit_angles(const Molecule& m, const std::vector<Eigen::Vector3d>& pos, 
             }
         }
     fit.rms = fit.pairs > 0 ? std::sqrt(best_cost / fit.pairs) : 0;
+    fit.worst = std::max(0.0, worst);
     if (planar_ok && fit.pairs > 0) {
-        double planar = 0;
+        double planar = 0, planar_worst = 0;
         for (int i = 0; i < k; ++i)
             for (int j = i + 1; j < k; ++j)
-                if (use[static_cast<size_t>(i * k + j)]) planar += std::pow(M[static_cast<size_t>(i * k + j)] - 120.0, 2);
-        fit.rms = std::min(fit.rms, std::sqrt(planar / fit.pairs));
+                if (use[static_cast<size_t>(i * k + j)]) {
+                    planar += std::pow(M[static_cast<size_t>(i * k + j)] - 120.0, 2);
+                    planar_worst = std::max(planar_worst, std::fabs(M[static_cast<size_t>(i * k + j)] - 120.0));
+                }
+        if (std::sqrt(planar / fit.pairs) < fit.rms) {
+            fit.rms = std::sqrt(planar / fit.pairs);
+            fit.worst = planar_worst;
+        }
     }
     return fit;
 }
@@ -274,7 +307,10 @@ void check_metal_centre(Audit& out, const MetalCentre& c, const std::vector<Eige
     out.metals.push_back(std::move(a));
 }
 
-void check_valences(Audit& out, const ValenceResult& v, int unpaired_allowed, bool multiplicity_known) {
+// `overlapped`: the overlaps found; with one, a radical most likely comes from the misplaced atom, so
+// --multiplicity, which cannot fix it, is not suggested.
+void check_valences(Audit& out, const ValenceResult& v, int unpaired_allowed, bool multiplicity_known,
+                    const std::set<std::pair<int, int>>& overlapped) {
     const Molecule& m = out.structure.molecule;
     for (int i : v.overbonded) {
         out.findings.push_back({"neighbours", {i + 1},
@@ -294,12 +330,15 @@ void check_valences(Audit& out, const ValenceResult& v, int unpaired_allowed, bo
         for (int i = 0; i < m.atom_count(); ++i) {
             const int u = v.unpaired[static_cast<size_t>(i)];
             if (u <= 0) continue;
+            const char* advice = !overlapped.empty() ? "; an overlap was found: the atom misplaced there is probably "
+                                                       "the one it lacks"
+                                 : multiplicity_known ? ""
+                                                      : "; give --multiplicity if the structure is open-shell";
             out.findings.push_back(
                 {"radical", {i + 1},
                  fmt::format("{} is {} short of a normal valence: {} (a radical), or a missing hydrogen or neighbour{}",
                              label(m, i), u == 1 ? "one bond" : fmt::format("{} bonds", u),
-                             u == 1 ? "an unpaired electron" : fmt::format("{} unpaired electrons", u),
-                             multiplicity_known ? "" : "; give --multiplicity if the structure is open-shell"),
+                             u == 1 ? "an unpaired electron" : fmt::format("{} unpaired electrons", u), advice),
                  m.bond_order_sum(i), m.bond_order_sum(i) + u, "", Severity::error, 50});
         }
     }
@@ -319,6 +358,8 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
     out.charge = opt.charge ? *opt.charge : in.has_charge ? in.structure.charge : 0;
     std::optional<int> multiplicity = opt.multiplicity;
     if (!multiplicity && in.has_multiplicity) multiplicity = in.structure.multiplicity;
+    out.charge_given = opt.charge.has_value() || in.has_charge;
+    out.multiplicity_given = multiplicity.has_value();
     const int unpaired_allowed = multiplicity ? *multiplicity - 1 : 0;
 
     // 1. What the file does not state.
@@ -434,7 +475,7 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
             }
         }
     }
-    check_valences(out, valence, unpaired_allowed, multiplicity.has_value());
+    check_valences(out, valence, unpaired_allowed, multiplicity.has_value(), overlapping);
     if (valence.charge != out.charge)
         out.findings.push_back({"charge", {},
                                 fmt::format("the formal charges add up to {:+d}, but the total charge is {:+d}{}",
@@ -520,8 +561,9 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
             for (const Neighbor& nb : skeleton.neighbors(i))
                 radical_near = radical_near || valence.unpaired[static_cast<size_t>(nb.atom)] > 0;
             const double threshold = radical_near ? 2 * opt.angle_rms : opt.angle_rms;
-            if (fit.pairs > 0 && fit.rms > threshold) {
-                const double ratio = fit.rms / threshold;
+            const double worst_threshold = radical_near ? 2 * opt.angle_worst : opt.angle_worst;
+            if (fit.pairs > 0 && (fit.rms > threshold || fit.worst > worst_threshold)) {
+                const double ratio = std::max(fit.rms / threshold, fit.worst / worst_threshold);
                 out.findings.push_back(
                     {"geometry", {i + 1},
                      fmt::format("{} ({}, {}{}): its angles deviate from the predicted ones by {:.1f} degrees RMS; "
@@ -567,6 +609,37 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
                     continue;
                 }
             }
+            // A pyramidal centre (three bonds and a lone pair of its own: an amine N, a phosphine, a sulfoxide S)
+            // drawn flat: the RMS against the pyramid's angles (107 against 120 degrees) stays under the threshold.
+            // Sound pyramids sum to 300-345 degrees (NH3 about 320, trimethylamine about 333; conjugated N, which may
+            // be flat, are left out); a sum above kFlatPyramid is a finding.
+            // A donor on a metal is left out: its geometry towards the metal is soft (coordinated water runs from
+            // pyramidal to flat; GFN2-xTB's [Fe(H2O)6]2+ has it flat).
+            bool on_metal = false;
+            for (const Neighbor& nb : skeleton.neighbors(i)) {
+                const int zn = m.atoms[static_cast<size_t>(nb.atom)].z;
+                on_metal = on_metal || is_d_block_metal(zn) || (zn != 1 && element(zn).group <= 2);
+            }
+            if (c.bonded == 3 && c.steric_number == 4 && c.lone_pairs == 1 && c.delocalised_lone_pairs == 0 &&
+                !on_metal && !conjugated_nitrogen(skeleton, i, c)) {
+                const auto& nbs = skeleton.neighbors(i);
+                const Eigen::Vector3d& o = pos[static_cast<size_t>(i)];
+                double sum = 0;
+                for (int a = 0; a < 3; ++a)
+                    for (int b = a + 1; b < 3; ++b)
+                        sum += angle_deg(pos[static_cast<size_t>(nbs[static_cast<size_t>(a)].atom)] - o,
+                                         pos[static_cast<size_t>(nbs[static_cast<size_t>(b)].atom)] - o);
+                if (sum > kFlatPyramid) {
+                    const double ratio = 1.0 + (sum - kFlatPyramid) / (360.0 - kFlatPyramid);
+                    out.findings.push_back(
+                        {"geometry", {i + 1},
+                         fmt::format("{} ({}, {}) is drawn flat: its three angles sum to {:.1f} degrees, a pyramid's "
+                                     "to well under 360",
+                                     label(m, i), c.axe, c.shape, sum),
+                         sum, kFlatPyramid, "degrees", severity_of(ratio), ratio});
+                    continue;
+                }
+            }
             // An sp2-like centre (three bonds, no lone pair) must be flat; the RMS alone misses a mild pyramid. A radical
             // centre with its electron in the p orbital is left out: it is reported as a radical, and a pyramid there
             // is more often a missing hydrogen than a wrong shape.
@@ -582,8 +655,25 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
                         ring = ring || small_ring_pair(skeleton, i, nbs[static_cast<size_t>(a)].atom,
                                                        nbs[static_cast<size_t>(b)].atom);
                     }
-                if (!ring && sum < 360.0 - opt.planarity) {
-                    const double ratio = (360.0 - sum) / opt.planarity;
+                // An amino N whose pair is shared with a C=C, C=N or an aromatic ring (aniline, enamine, the NH2 of
+                // a neutral guanidine or amidine) is only partly flattened: aniline's NH2 is pyramidal, its angles
+                // summing to about 343 degrees in the gas phase (from memory); amides stay flat. Twice the tolerance.
+                double tolerance = opt.planarity;
+                if (m.atoms[static_cast<size_t>(i)].z == 7 && c.delocalised_lone_pairs > 0) {
+                    bool amide = false, has_h = false;
+                    for (const Neighbor& nb : skeleton.neighbors(i)) {
+                        has_h = has_h || m.atoms[static_cast<size_t>(nb.atom)].z == 1;
+                        for (const Neighbor& nn : skeleton.neighbors(nb.atom)) {
+                            const int zz = m.atoms[static_cast<size_t>(nn.atom)].z;
+                            if (nn.atom != i && skeleton.bonds[static_cast<size_t>(nn.bond)].order >= 2 &&
+                                (zz == 8 || zz == 16))
+                                amide = true;
+                        }
+                    }
+                    if (has_h && !amide) tolerance = 2 * opt.planarity;
+                }
+                if (!ring && sum < 360.0 - tolerance) {
+                    const double ratio = (360.0 - sum) / tolerance;
                     out.findings.push_back(
                         {"planarity", {i + 1},
                          fmt::format("{} ({}, trigonal planar) is pyramidal: its three angles sum to {:.1f} degrees, "
@@ -662,6 +752,7 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
                     for (const Neighbor& nb : m.neighbors(i))
                         if (m.bond_between(nb.atom, j) >= 0) return;  // 1-3 pairs are angles, not contacts
                     if (overlapping.count({i, j}) || !seen.emplace(i, j).second) return;
+                    if (hydrogen_bond(m, i, j, d)) return;
                     const double ratio = (opt.contact_fraction * rv - d) / (0.1 * rv) + 1;
                     out.findings.push_back(
                         {"contact", {i + 1, j + 1},

@@ -54,14 +54,27 @@ CleanResult clean_structure(const Audit& audit) {
     CleanResult out;
     out.structure = audit.structure;
     // Findings about the atoms or their connections, which relaxing the coordinates cannot fix, and what can.
-    static const std::pair<const char*, const char*> kRefusals[] = {
+    // The advice names only what applies: no --multiplicity or --charge when one was given (by option or file).
+    const std::pair<const char*, const char*> kRefusals[] = {
         {"overlap", "atoms overlap: move or delete the misplaced atom by hand"},
         {"neighbours", "an atom has more neighbours than its valence allows: move or delete the extra atom by hand"},
-        {"radical", "an atom is short of a normal valence: add the missing atom by hand, or give --multiplicity if "
-                    "the structure is open-shell"},
-        {"charge", "the formal charges do not add up to the total charge: give --charge, or add or remove the "
-                   "hydrogens by hand"},
+        {"radical", audit.multiplicity_given
+                        ? "an atom is short of a normal valence that the multiplicity given does not account for: "
+                          "add the missing atom by hand"
+                        : "an atom is short of a normal valence: add the missing atom by hand, or give "
+                          "--multiplicity if the structure is open-shell"},
+        {"charge", audit.charge_given
+                       ? "the formal charges do not add up to the total charge given: add or remove the hydrogens "
+                         "by hand"
+                       : "the formal charges do not add up to the total charge: give --charge, or add or remove the "
+                         "hydrogens by hand"},
         {"multiplicity", "the multiplicity does not fit the electron count: give the right --multiplicity"}};
+    // Overlaps first whatever the order of the findings: the atom they misplace is the cause of the others.
+    for (const Finding& f : audit.findings)
+        if (f.kind == "overlap") {
+            out.summary = fmt::format("not refined: {}", kRefusals[0].second);
+            return out;
+        }
     for (const Finding& f : audit.findings)
         for (const auto& [kind, advice] : kRefusals)
             if (f.kind == kind) {

@@ -491,14 +491,16 @@ ValenceResult assign_impl(Molecule& m, const std::vector<Eigen::Vector3d>& pos, 
         // Rule 1 is kept only when the atoms it leaves unsatisfied (those to take the -1) are the host's
         // neighbours or theirs: a charge pair across the molecule (C=Cl+ here, C- there) is no Lewis structure
         // anyone means.
+        // One such atom is enough: the other unsatisfied atoms may belong to another group of the same kind
+        // (p-dinitrobenzene's second nitro group: requiring all of them near left its four O as radicals).
         auto local = [&](int host) {
             for (int i = 0; i < n; ++i) {
                 if (left[static_cast<size_t>(i)] <= 0 || i == host) continue;
                 bool near = m.bond_between(i, host) >= 0;
                 for (const Neighbor& nb : m.neighbors(host)) near = near || m.bond_between(i, nb.atom) >= 0;
-                if (!near) return false;
+                if (near) return true;
             }
-            return true;
+            return false;
         };
         // Rule 1: a neighbour takes +1 and one more bond (N+ of a nitro group, O+ of CO), when the charge is to go up
         // or another atom is left to take the compensating -1.
@@ -518,6 +520,30 @@ ValenceResult assign_impl(Molecule& m, const std::vector<Eigen::Vector3d>& pos, 
                     }
                 if (changed) break;
             }
+        // Rule 1 again for a cation, with any atom of the structure as the host: the matching is global, so an N+
+        // anywhere in a conjugated ring serves (pyridinium: the carbon left over sits para to the N, which is no
+        // neighbour of it; rule 2 then made that carbon the cation and the ring lost its aromaticity).
+        if (!changed && !fixed_charges && !free_charge && residual > unpaired_allowed && q < target) {
+            std::vector<int> others;
+            for (int i = 0; i < n; ++i)
+                if (left[static_cast<size_t>(i)] == 0 && std::find(hosts.begin(), hosts.end(), i) == hosts.end() &&
+                    !(ignore && (*ignore)[static_cast<size_t>(i)]))
+                    others.push_back(i);
+            std::stable_sort(others.begin(), others.end(),
+                             [&](int a, int b) { return electronegativity(a) < electronegativity(b); });
+            for (int h : others) {
+                const State cur = state[static_cast<size_t>(h)];
+                bool free_bond = false;
+                for (const Neighbor& nb : m.neighbors(h)) free_bond = free_bond || is_free[static_cast<size_t>(nb.bond)];
+                if (!free_bond) continue;
+                for (const State& s : valence_states(m.atoms[static_cast<size_t>(h)].z))
+                    if (s.charge == cur.charge + 1 && s.valence == cur.valence + 1) {
+                        changed = try_state(h, s);
+                        break;
+                    }
+                if (changed) break;
+            }
+        }
         // Rule 2: an unsatisfied atom takes a charge and one bond less: an anion on the most electronegative atom
         // when the charge is to go down, a cation on the least electronegative when it is to go up.
         if (!changed && !fixed_charges && (free_charge ? residual > unpaired_allowed : q != target) && !unsat.empty()) {
@@ -538,6 +564,31 @@ ValenceResult assign_impl(Molecule& m, const std::vector<Eigen::Vector3d>& pos, 
             }
         }
         if (!changed) break;
+    }
+    // Still short of the total charge with every atom satisfied (NH3 read with charge +1: an ammonium that lost a
+    // hydrogen): the atom with the fewest neighbours that can hold the charge with one bond more takes it, and the
+    // bond it lacks is reported at it as an unpaired electron (a missing hydrogen), not as a charge without a place.
+    if (!fixed_charges && !free_charge && charge() != target && tries <= kMaxTries) {
+        const int dq = charge() < target ? 1 : -1;
+        int best = -1;
+        State best_state{};
+        for (int i = 0; i < n; ++i) {
+            if (left[static_cast<size_t>(i)] > 0 || (ignore && (*ignore)[static_cast<size_t>(i)])) continue;
+            const State cur = state[static_cast<size_t>(i)];
+            for (const State& s : valence_states(m.atoms[static_cast<size_t>(i)].z))
+                if (s.charge == cur.charge + dq && s.valence == cur.valence + 1) {
+                    if (best < 0 || m.degree(i) < m.degree(best) ||
+                        (m.degree(i) == m.degree(best) && dq * electronegativity(i) < dq * electronegativity(best))) {
+                        best = i;
+                        best_state = s;
+                    }
+                    break;
+                }
+        }
+        if (best >= 0) {
+            state[static_cast<size_t>(best)] = best_state;
+            residual = solve();
+        }
     }
 
     for (int b = 0; b < m.bond_count(); ++b)

@@ -102,6 +102,38 @@ std::vector<double> length_orders(const Molecule& m) {
             orders[static_cast<size_t>(high->bond)] = mean;
         }
     }
+    // Amidinium and guanidinium: a carbon's C=[N+] and its C-N single bonds to three-coordinate neutral N share the
+    // charge and one pi bond (common practice: resonance; both C-N of acetamidinium about 1.31 A in GFN2-xTB optima):
+    // the mean order, 1.5 for two N, 4/3 for three. One Lewis structure drew them unequal.
+    for (int c = 0; c < m.atom_count(); ++c) {
+        const Atom& ac = m.atoms[static_cast<size_t>(c)];
+        if (ac.z != 6 || ac.aromatic || ac.charge != 0) continue;
+        auto three_coordinate = [&](int a) {
+            return m.degree(a) + std::max(0, m.atoms[static_cast<size_t>(a)].hydrogens) == 3;
+        };
+        auto only_single_besides = [&](int a, int bond) {
+            for (const Neighbor& nb : m.neighbors(a))
+                if (nb.bond != bond && (m.bonds[static_cast<size_t>(nb.bond)].order != 1 ||
+                                        m.bonds[static_cast<size_t>(nb.bond)].aromatic))
+                    return false;
+            return true;
+        };
+        int iminium = -1;
+        std::vector<int> amino;
+        for (const Neighbor& nb : m.neighbors(c)) {
+            const Atom& an = m.atoms[static_cast<size_t>(nb.atom)];
+            const Bond& b = m.bonds[static_cast<size_t>(nb.bond)];
+            if (an.z != 7 || an.aromatic || b.aromatic || !three_coordinate(nb.atom) ||
+                !only_single_besides(nb.atom, nb.bond))
+                continue;
+            if (b.order == 2 && an.charge == 1) iminium = nb.bond;
+            if (b.order == 1 && an.charge == 0) amino.push_back(nb.bond);
+        }
+        if (iminium < 0 || amino.empty()) continue;
+        const double mean = (2.0 + static_cast<double>(amino.size())) / (1.0 + static_cast<double>(amino.size()));
+        orders[static_cast<size_t>(iminium)] = mean;
+        for (int e : amino) orders[static_cast<size_t>(e)] = mean;
+    }
     // The two ring bonds of the lone-pair donor of a five-membered heteroaromatic ring (X-a=b-c=d-X as written or
     // kekulized) take one order whether the ring is written aromatic or Kekule, so both forms build alike (before:
     // furan C-O 1.30 A aromatic, 1.37 Kekule; thiophene C-S 1.65 / 1.75). O and S share their pair: order 1.25
