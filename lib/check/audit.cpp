@@ -619,6 +619,9 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
             for (const Neighbor& nb : skeleton.neighbors(i)) {
                 const int zn = m.atoms[static_cast<size_t>(nb.atom)].z;
                 on_metal = on_metal || is_d_block_metal(zn) || (zn != 1 && element(zn).group <= 2);
+                // A nitroxide N shares the O's odd electron (a three-electron pi bond): nearly flat (TEMPO's GFN2-xTB
+                // optimum sums to 357 degrees, tests/external/check_xtb_maingroup.py).
+                on_metal = on_metal || (zn == 8 && m.atoms[static_cast<size_t>(nb.atom)].radical_electrons > 0);
             }
             if (c.bonded == 3 && c.steric_number == 4 && c.lone_pairs == 1 && c.delocalised_lone_pairs == 0 &&
                 !on_metal && !conjugated_nitrogen(skeleton, i, c)) {
