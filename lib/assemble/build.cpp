@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <optional>
 #include <fmt/format.h>
 
 #include "assemble/assemble.hpp"
@@ -135,10 +136,11 @@ MoleculeDomains with_bond_lengths_of(const Molecule& molecule, const MoleculeDom
 // and the other ligands would drift round the metal, held only by their bonds to it and the contacts).
 std::vector<DistanceRestraint> hapto_frame_restraints(const Molecule& skeleton, const MetalAnalysis& metals,
                                                       const std::vector<Vector3d>& placed,
-                                                      const std::vector<Vector3d>& site_shift) {
+                                                      const std::vector<std::optional<Vector3d>>& site_shift) {
     // Measured as if every hapto ligand sat on its site (chelating dienes are moved whole and may sit off theirs).
     std::vector<Vector3d> pos = placed;
-    for (size_t i = 0; i < pos.size() && i < site_shift.size(); ++i) pos[i] += site_shift[i];
+    for (size_t i = 0; i < pos.size() && i < site_shift.size(); ++i)
+        if (site_shift[i]) pos[i] += *site_shift[i];
     constexpr double kWeight = 0.5;  // half a bond's stiffness: the frame is a target, not a bond (common practice)
     std::vector<DistanceRestraint> out;
     for (const MetalCentre& c : metals.centres) {
@@ -155,7 +157,7 @@ std::vector<DistanceRestraint> hapto_frame_restraints(const Molecule& skeleton, 
             // bend back from the metal; common practice).
             bool shifted = false;
             for (int a : c.ligands[l].atoms)
-                shifted = shifted || (static_cast<size_t>(a) < site_shift.size() && site_shift[static_cast<size_t>(a)].squaredNorm() > 0);
+                shifted = shifted || (static_cast<size_t>(a) < site_shift.size() && site_shift[static_cast<size_t>(a)]);
             if (!shifted) continue;
             constexpr double kBentAway = 0.1;  // soft: a stiffer hold tears the ring as it turns (tried: 0.5)
             // cos 110 degrees: a flat alkene facing the metal has M-C-H near 100; its hydrogens bend back about 10
@@ -297,7 +299,7 @@ Structure build_structure(const Molecule& written, const BuildOptions& options) 
     }
 
     s.positions = assemble_positions(skeleton, domains, rings, ring_xyz, chiral);
-    std::vector<Vector3d> site_shift;
+    std::vector<std::optional<Vector3d>> site_shift;
     if (hapto) place_hapto_ligands(skeleton, domains, s.positions, s.warnings, &site_shift);
     check_deadline("assembling the frames");
     pack_components(molecule, s.positions);

@@ -6,6 +6,7 @@
 #include <Eigen/Geometry>
 #include <algorithm>
 #include <cmath>
+#include <optional>
 
 #include "assemble/place.hpp"
 #include "core/element.hpp"
@@ -36,32 +37,48 @@ Vector3d plane_normal(const std::vector<Vector3d>& points) {
     return n.norm() > 1e-9 ? n.normalized() : Vector3d::UnitZ();
 }
 
+// A hapto ligand as the walk built it: its centroid and the mean distance of its atoms from it.
+struct RingPlace {
+    Vector3d centroid = Vector3d::Zero();
+    double radius = 0;
+};
+RingPlace ring_place(const std::vector<int>& atoms, const std::vector<Vector3d>& pos) {
+    RingPlace r;
+    for (int a : atoms) r.centroid += pos[at(a)];
+    r.centroid /= static_cast<double>(atoms.size());
+    for (int a : atoms) r.radius += (pos[at(a)] - r.centroid).norm();
+    r.radius /= static_cast<double>(atoms.size());
+    return r;
+}
+
+// The unit direction of ligand l of `c` in the frame the walk gave the metal (`rotation`, `mirror`).
+Vector3d site_direction(const MetalCentre& c, size_t l, const Matrix3d& rotation, bool mirror) {
+    Vector3d dir = c.directions[l];
+    if (mirror) dir.x() = -dir.x();
+    return (rotation * dir).normalized();
+}
+
+// How far from the metal a ring of this radius sits so that its atoms are at the ligand's length.
+double ring_height(const LigandDomain& lig, double radius) {
+    return std::sqrt(std::max(lig.length * lig.length - radius * radius, 0.25));
+}
+
 // Moves a piece holding several hapto ligands of the metal `c` rigidly: the ligands' centroids (as the walk built
 // them) onto their sites (the metal's solved directions in the frame `rotation`/`mirror`, each at the height that
 // puts its atoms at the ligand's length), then the turn about the best-fit axis that keeps the rest of the piece
 // farthest from the metal. The refinement then settles the ring onto the sites.
 void place_chelating_piece(const Molecule& skeleton, const MetalCentre& c, const std::vector<size_t>& group,
                            const std::vector<int>& members, const Matrix3d& rotation, bool mirror,
-                           std::vector<Vector3d>& pos, std::vector<Vector3d>* site_shift) {
+                           std::vector<Vector3d>& pos, std::vector<std::optional<Vector3d>>* site_shift) {
     const Vector3d pm = pos[at(c.atom)];
     std::vector<Vector3d> from, to;
     std::vector<char> in_group(pos.size(), 0);
     for (size_t l : group) {
         const LigandDomain& lig = c.ligands[l];
-        Vector3d g = Vector3d::Zero();
-        for (int a : lig.atoms) g += pos[at(a)];
-        g /= static_cast<double>(lig.atoms.size());
-        double radius = 0;
-        for (int a : lig.atoms) {
-            radius += (pos[at(a)] - g).norm();
-            in_group[at(a)] = 1;
-        }
-        radius /= static_cast<double>(lig.atoms.size());
-        Vector3d dir = c.directions[l];
-        if (mirror) dir.x() = -dir.x();
-        const double h = std::sqrt(std::max(lig.length * lig.length - radius * radius, 0.25));
-        from.push_back(g);
-        to.push_back(pm + (rotation * dir).normalized() * h);
+        const RingPlace r = ring_place(lig.atoms, pos);
+        for (int a : lig.atoms) in_group[at(a)] = 1;
+        from.push_back(r.centroid);
+        to.push_back(pm + site_direction(c, l, rotation, mirror) * ring_height(lig, r.radius));
     }
     Vector3d cf = Vector3d::Zero(), ct = Vector3d::Zero();
     for (size_t k = 0; k < from.size(); ++k) {
@@ -104,17 +121,11 @@ void place_chelating_piece(const Molecule& skeleton, const MetalCentre& c, const
     for (size_t i = 0; i < members.size(); ++i) pos[at(members[i])] = best[i];
     // How far each ligand's centroid still is from its site: the refinement's frame is measured as if it were there.
     if (site_shift) {
-        site_shift->resize(pos.size(), Vector3d::Zero());
+        site_shift->resize(pos.size());
         for (size_t k = 0; k < group.size(); ++k) {
             const LigandDomain& lig = c.ligands[group[k]];
-            Vector3d g = Vector3d::Zero();
-            for (int a : lig.atoms) g += pos[at(a)];
-            g /= static_cast<double>(lig.atoms.size());
-            for (int a : lig.atoms) {
-                // Marked even when on its site (a zero shift means "not moved with a piece").
-                const Vector3d shift = to[k] - g;
-                (*site_shift)[at(a)] = shift.squaredNorm() > 1e-12 ? shift : Vector3d(1e-6, 0, 0);
-            }
+            const Vector3d shift = to[k] - ring_place(lig.atoms, pos).centroid;
+            for (int a : lig.atoms) (*site_shift)[at(a)] = shift;
         }
     }
 }
@@ -122,7 +133,7 @@ void place_chelating_piece(const Molecule& skeleton, const MetalCentre& c, const
 }  // namespace
 
 void place_hapto_ligands(const Molecule& skeleton, const MoleculeDomains& domains, std::vector<Vector3d>& pos,
-                         std::vector<std::string>& warnings, std::vector<Vector3d>* site_shift) {
+                         std::vector<std::string>& warnings, std::vector<std::optional<Vector3d>>* site_shift) {
     const MetalAnalysis& ma = domains.metals;
     if (ma.hapto_bonds.empty()) return;
     int count = 0;
@@ -180,16 +191,10 @@ void place_hapto_ligands(const Molecule& skeleton, const MoleculeDomains& domain
                 moved[at(piece)] = 1;
                 continue;
             }
-            Vector3d dir = c.directions[l];
-            if (mirror) dir.x() = -dir.x();
-            const Vector3d u = (rotation * dir).normalized();
+            const Vector3d u = site_direction(c, l, rotation, mirror);
             // Its centroid, radius and plane as the walk built it.
-            Vector3d g = Vector3d::Zero();
-            for (int a : lig.atoms) g += pos[at(a)];
-            g /= static_cast<double>(lig.atoms.size());
-            double radius = 0;
-            for (int a : lig.atoms) radius += (pos[at(a)] - g).norm();
-            radius /= static_cast<double>(lig.atoms.size());
+            const RingPlace r = ring_place(lig.atoms, pos);
+            const Vector3d g = r.centroid;
             std::vector<Vector3d> plane;
             for (int a : lig.atoms) {
                 plane.push_back(pos[at(a)]);
@@ -208,7 +213,7 @@ void place_hapto_ligands(const Molecule& skeleton, const MoleculeDomains& domain
             }
             // The rest of the ligand (substituents out of the plane) on the far side from the metal.
             if (nrest > 0 && (rest / nrest - g).dot(n) < 0) n = -n;
-            const double h = std::sqrt(std::max(lig.length * lig.length - radius * radius, 0.25));
+            const double h = ring_height(lig, r.radius);
             const Vector3d target = pm + u * h;
             const Matrix3d q0 = rotation_between(n, u);
             // The turn about the axis that clashes least with what is already in place.

@@ -4,6 +4,7 @@
 #pragma once
 
 #include <Eigen/Core>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -16,8 +17,9 @@ namespace repel {
 // metal centres' directions in their own frames). Positions are changed in place. A hapto ligand joined to its metal
 // through other bonds too (a tethered ring) is left where the walk put it, with a warning.
 // `site_shift` (optional, per atom) receives, for the atoms of several hapto ligands moved together in one piece (a
-// chelating diene), how far their ligand's centroid is from its site; zero elsewhere.
+// chelating diene), how far their ligand's centroid is from its site; empty for every other atom.
 void place_hapto_ligands(const Molecule& skeleton, const MoleculeDomains& domains, std::vector<Eigen::Vector3d>& positions,
-                         std::vector<std::string>& warnings, std::vector<Eigen::Vector3d>* site_shift = nullptr);
+                         std::vector<std::string>& warnings,
+                         std::vector<std::optional<Eigen::Vector3d>>* site_shift = nullptr);
 
 }  // namespace repel

@@ -177,6 +177,23 @@ def begin_check(script, prefix):
     return args[0], jobs, t, time.time(), tempfile.mkdtemp(prefix=prefix)
 
 
+def print_xtb_summary(kind, total, table, rmsds, cycles, last_heading, clock, jobs):
+    """The per-item table (name, atoms, RMSD, cycles, xtb seconds, one last column) and the median/worst line of the
+    metal and main-group xtb checks."""
+    print()
+    print(f'{kind:40s} {"atoms":>5s} {"RMSD/A":>7s} {"cycles":>6s} {"xtb s":>6s}  {last_heading}')
+    for name, n, rmsd, cyc, sec, last in table:
+        print(f'{name[:40]:40s} {n:5d} {rmsd:7.3f} {cyc:6d} {sec:6.1f}  {last}')
+    if rmsds:
+        worst = max(range(len(rmsds)), key=rmsds.__getitem__)
+        print(f'\n{kind} optimised: {len(rmsds)} of {total}; heavy-atom RMSD start-to-optimum median '
+              f'{statistics.median(rmsds):.3f} A, worst {rmsds[worst]:.3f} A ({table[worst][0]}); cycles median '
+              f'{statistics.median(cycles):.0f}, worst {max(cycles)}')
+    else:
+        print(f'\n{kind} optimised: 0 of {total}')
+    print(f'wall time {time.time() - clock:.0f} s with {jobs} xtb processes at a time')
+
+
 def main():
     exe, jobs, t, clock, tmp = begin_check('check_xtb_client.py', 'repel_xtb_')
     molecules = read_smi(MOLECULES)

@@ -24,15 +24,14 @@ Closes with `N passed, M failed`; exits 1 on any failure.
 import concurrent.futures
 import json
 import os
-import statistics
 import subprocess
 import sys
-import time
 
 sys.dont_write_bytecode = True  # no __pycache__ in the source tree
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 import check_xtb_client  # noqa: E402
-from check_xtb_client import begin_check, components, connectivity_problems, prepare, run_xtb  # noqa: E402
+from check_xtb_client import (begin_check, components, connectivity_problems, prepare, print_xtb_summary,  # noqa: E402
+                              run_xtb)
 from common import kabsch_rmsd, parse_xyz  # noqa: E402
 
 check_xtb_client.XTB_TIMEOUT = 300  # a hang guard only: each species takes seconds alone on one core
@@ -152,16 +151,7 @@ def main():
         cycles.append(res['cycles'])
         table.append((name, len(symbols), rmsd, res['cycles'], res['seconds'], len(findings)))
 
-    print()
-    print(f'{"species":40s} {"atoms":>5s} {"RMSD/A":>7s} {"cycles":>6s} {"xtb s":>6s} {"findings":>8s}')
-    for name, n, rmsd, cyc, sec, nf in table:
-        print(f'{name[:40]:40s} {n:5d} {rmsd:7.3f} {cyc:6d} {sec:6.1f} {nf:8d}')
-    if rmsds:
-        worst = max(range(len(rmsds)), key=rmsds.__getitem__)
-        print(f'\nspecies optimised: {len(rmsds)} of {len(SPECIES)}; heavy-atom RMSD start-to-optimum median '
-              f'{statistics.median(rmsds):.3f} A, worst {rmsds[worst]:.3f} A ({table[worst][0]}); cycles median '
-              f'{statistics.median(cycles):.0f}, worst {max(cycles)}')
-    print(f'wall time {time.time() - clock:.0f} s with {jobs} xtb processes at a time')
+    print_xtb_summary('species', len(SPECIES), table, rmsds, cycles, 'findings', clock, jobs)
     t.finish(tmp)
 
 

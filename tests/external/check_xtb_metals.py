@@ -31,9 +31,7 @@ import concurrent.futures
 import json
 import subprocess
 import os
-import statistics
 import sys
-import time
 
 import numpy as np
 
@@ -41,7 +39,7 @@ sys.dont_write_bytecode = True  # no __pycache__ in the source tree
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 import check_xtb_client  # noqa: E402
 from check_metal_complexes import read_table  # noqa: E402
-from check_xtb_client import begin_check, prepare, run_xtb  # noqa: E402
+from check_xtb_client import begin_check, prepare, print_xtb_summary, run_xtb  # noqa: E402
 from common import kabsch_rmsd, parse_xyz, perceive_bonds  # noqa: E402
 from metal_geometry import centre_shape, metal_centres, metal_sites  # noqa: E402
 
@@ -206,18 +204,7 @@ def main():
         shape_text = ' '.join(f'{before[m][0]}>{after[m][0]}' for m in metals)
         table.append((name, len(symbols), rmsd, res['cycles'], res['seconds'], shape_text))
 
-    print()
-    print(f'{"complex":40s} {"atoms":>5s} {"RMSD/A":>7s} {"cycles":>6s} {"xtb s":>6s}  polyhedron start>optimum')
-    for name, n, rmsd, cyc, sec, shape_text in table:
-        print(f'{name[:40]:40s} {n:5d} {rmsd:7.3f} {cyc:6d} {sec:6.1f}  {shape_text}')
-    if rmsds:
-        worst = max(range(len(rmsds)), key=rmsds.__getitem__)
-        print(f'\ncomplexes optimised: {len(rmsds)} of {len(SUBSET)}; heavy-atom RMSD start-to-optimum median '
-              f'{statistics.median(rmsds):.3f} A, worst {rmsds[worst]:.3f} A ({table[worst][0]}); cycles median '
-              f'{statistics.median(cycles):.0f}, worst {max(cycles)}')
-    else:
-        print(f'\ncomplexes optimised: 0 of {len(SUBSET)}')
-    print(f'wall time {time.time() - clock:.0f} s with {jobs} xtb processes at a time')
+    print_xtb_summary('complexes', len(SUBSET), table, rmsds, cycles, 'polyhedron start>optimum', clock, jobs)
     t.finish(tmp)
 
 
