@@ -123,6 +123,13 @@ std::vector<double> length_orders(const Molecule& m) {
 // - or bonded to a three-coordinate neutral boron with single bonds only (an empty p orbital: aminoboranes, borazine,
 //   boronic esters and acids are planar at N and O, common practice); next to boron a hydroxyl O counts too (the
 //   B-O-H of boronic acids opens to about 113 deg, from memory).
+// - or an oxygen between two heavy atoms of which one is of period 3 or later and less electronegative than O by at
+//   least kPolarBridge (p block: Si, P, S, Al, Ge, As): its pairs are partly given to the neighbours' sigma* orbitals
+//   (negative hyperconjugation, Reed and Schleyer, J. Am. Chem. Soc. 112 (1990) 1434; the Si-O bond is largely ionic
+//   and the wide Si-O-Si angle follows, Gillespie and Johnson, Inorg. Chem. 36 (1997) 3031, from memory). Measured
+//   angles (from memory): Si-O-Si 144 in disiloxane and 148 in hexamethyldisiloxane (gas-phase electron diffraction),
+//   P-O-P about 130 and C-O-P about 118 in pyrophosphates and ATP, S-O-S about 124 in pyrosulfate (crystal
+//   structures), C-O-C 111 in dimethyl ether; counted as one delocalised pair the centre is AX2E, trigonal.
 // At most one pair per atom is delocalised.
 bool empty_p_boron(const Molecule& m, int j) {
     const Atom& b = m.atoms[static_cast<size_t>(j)];
@@ -145,6 +152,14 @@ bool delocalised_lone_pair(const Molecule& m, int i, int lone_pairs, int single_
     for (size_t p = 0; p < nbs.size(); ++p)
         for (size_t q = p + 1; q < nbs.size(); ++q)
             if (m.bond_between(nbs[p].atom, nbs[q].atom) >= 0) return false;
+    // Pauling units: S (2.58 against O's 3.44) is in, Cl (3.16), Br and I are out (a choice).
+    constexpr double kPolarBridge = 0.8;
+    for (const Neighbor& nb : nbs) {
+        const ElementData& j = element(m.atoms[static_cast<size_t>(nb.atom)].z);
+        if (a.z == 8 && j.period >= 3 && j.group >= 13 && j.electronegativity > 0 &&
+            element(8).electronegativity - j.electronegativity >= kPolarBridge)
+            return true;
+    }
     for (const Neighbor& nb : nbs) {
         const Atom& j = m.atoms[static_cast<size_t>(nb.atom)];
         if (empty_p_boron(m, nb.atom)) return true;

@@ -24,6 +24,9 @@ struct DomainModel {
                                         // of strong ionic character, drawn double)
     double electronegativity_slope; // Bent's rule: weight factor exp(-slope * (chi_ligand - chi_centre))
     double period_slope;            // larger centres: bonding weight factor exp(-slope * (period - 2)) for period > 2
+    double ligand_period_slope;     // larger ligand atoms: weight factor exp(slope * (ligand period - 2)) (Cl vs F)
+    double heavy_centre_ligand_slope;  // at a centre of period > 2, a ligand other than H: weight factor
+                                       // exp(slope * (centre period - 2)) (ligand close packing: PF3 > PH3)
 };
 
 // The fitted model.
