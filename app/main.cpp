@@ -108,7 +108,7 @@ int run(int argc, char** argv) {
     cmd_check->add_flag("--json", check.json, "one JSON document, whatever the verdict");
     cmd_check->add_option("--angle-threshold", check.angle_rms, "degrees RMS from the predicted angles at a centre")
         ->capture_default_str();
-    cmd_check->add_option("--bond-threshold", check.bond_deviation, "Angstrom from the expected bond length")
+    cmd_check->add_option("--bond-threshold", check.bond_deviation, "Angstrom from the expected bond length between atoms of the first two periods (twice it with a heavier atom)")
         ->capture_default_str();
     cmd_check->add_option("--contact-fraction", check.contact_fraction,
                           "closest allowed non-bonded distance, as a fraction of the van der Waals contact")

@@ -23,7 +23,8 @@ ReadStructure xyz(const std::string& text) {
 
 // Methane, tetrahedral, C-H 1.087 A (CRC Handbook gas-phase structure, from memory).
 std::string methane(double stretch_h2 = 0, bool flat = false, bool drop_h5 = false) {
-    const double a = 1.087 / std::sqrt(3.0);
+    // Flattened: the four hydrogens on a square in the plane, C-H still 1.087 A (only the angles are wrong).
+    const double a = flat ? 1.087 / std::sqrt(2.0) : 1.087 / std::sqrt(3.0);
     std::ostringstream s;
     s << (drop_h5 ? 4 : 5) << "\nmethane\nC 0 0 0\n";
     const double k = (1.087 + stretch_h2) / 1.087;
@@ -99,8 +100,11 @@ TEST(Audit, StretchedBondIsFoundAndNothingElse) {
     EXPECT_EQ(a.findings[0].kind, "bond length");
     EXPECT_EQ(a.findings[0].atoms, (std::vector<int>{1, 2}));
     EXPECT_NEAR(*a.findings[0].measured, 1.387, 1e-3);
-    // A stretch below the threshold (0.25 A) is not a finding.
-    EXPECT_TRUE(audit_structure(xyz(methane(0.15))).findings.empty());
+    // A stretch below the threshold (0.12 A for bonds between H and B..F) is not a finding; 0.15 A is.
+    EXPECT_TRUE(audit_structure(xyz(methane(0.08))).findings.empty());
+    Audit b = audit_structure(xyz(methane(0.15)));
+    ASSERT_EQ(b.findings.size(), 1u) << describe(b);
+    EXPECT_EQ(b.findings[0].atoms, (std::vector<int>{1, 2}));
 }
 
 TEST(Audit, DeletedHydrogenIsARadicalAtItsAtom) {

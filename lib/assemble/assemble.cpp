@@ -161,6 +161,9 @@ private:
         const ChiralTarget& t = chiral_[at(chiral_of_[at(centre)])];
         const int k1 = neighbor_index(m_, centre, t.n1), k2 = neighbor_index(m_, centre, t.n2),
                   k3 = neighbor_index(m_, centre, t.n3);
+        const int n = static_cast<int>(dirs.size());
+        if (std::min({k1, k2, k3}) < 0 || std::max({k1, k2, k3}) >= n)
+            throw std::logic_error("assembly: a stereo target names an atom that is not a neighbour");
         const double v = signed_volume(Vector3d::Zero(), dirs[at(k1)], dirs[at(k2)], dirs[at(k3)]);
         return v * t.sign < 0;
     }

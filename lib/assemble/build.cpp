@@ -228,6 +228,17 @@ Structure build_structure(const Molecule& written, const BuildOptions& options) 
     std::vector<ChiralTarget> chiral;
     for (const ChiralTarget& t : chiral_targets(molecule, s.warnings)) {
         const CentreDomains& c = domains.atoms[static_cast<size_t>(t.centre)];
+        // A metal centre whose analysis did not place the ligands by the mark (warned there), and a mark whose
+        // neighbours include hapto-bonded atoms (no longer bonded in the skeleton being assembled): no target.
+        const int mc = domains.metals.centre_of_atom.empty() ? -1
+                                                              : domains.metals.centre_of_atom[static_cast<size_t>(t.centre)];
+        if (mc >= 0) {
+            const std::string& note = domains.metals.centres[static_cast<size_t>(mc)].stereo_note;
+            if (!note.empty() && !note.starts_with("ligands placed")) continue;
+        }
+        if (skeleton.bond_between(t.centre, t.n1) < 0 || skeleton.bond_between(t.centre, t.n2) < 0 ||
+            skeleton.bond_between(t.centre, t.n3) < 0)
+            continue;
         // Three neighbours and no lone pair: a planar centre (a carbocation, a borane) has no handedness.
         if (c.bonded == 3 && c.lone_pairs + c.single_electrons == 0)
             s.warnings.push_back(fmt::format("stereo mark on atom {} not applied: the centre is planar (three "

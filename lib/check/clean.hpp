@@ -17,7 +17,7 @@ struct CleanResult {
 
 // Refines the audited structure (its perceived bonds, orders and charges). A structure with an overlap, neighbour,
 // radical, charge or multiplicity finding cannot be cleaned by relaxation: it is returned unrefined (refined false)
-// with the reason in the summary.
+// with the reason in the summary. A structure without findings is returned unchanged (refined true, shift 0).
 CleanResult clean_structure(const Audit& audit);
 
 }  // namespace repel

@@ -3,11 +3,14 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <cmath>
 #include <cstdint>
 #include <map>
 
 #include "assemble/stereo.hpp"
 #include "core/element.hpp"
+#include "domains/metal.hpp"
+#include "graph/polyhedral_stereo.hpp"
 
 namespace repel {
 namespace {
@@ -171,6 +174,11 @@ std::vector<Finding> compare_with_reference(const Molecule& s, const std::vector
                                             Molecule ref) {
     std::vector<Finding> out;
     ref.make_hydrogens_explicit();
+    {
+        // A metallocene written as separate ions is the sandwich the structure has (as the build reads it).
+        std::vector<std::string> notes;
+        join_separated_sandwich_ions(ref, notes);
+    }
     std::map<int, int> cr, cs;
     for (const Atom& a : ref.atoms) ++cr[a.z];
     for (const Atom& a : s.atoms) ++cs[a.z];
@@ -196,6 +204,27 @@ std::vector<Finding> compare_with_reference(const Molecule& s, const std::vector
     std::vector<std::string> warnings;
     const std::vector<ChiralTarget> chiral = chiral_targets(ref, warnings);
     const std::vector<DoubleBondTarget> doubles = double_bond_targets(ref);
+    // Centres with an @SP/@TB/@OH mark: which ligands are cis and which trans. The ideal angle of every pair of
+    // neighbours (90, 120 or 180 degrees) against the measured one; more than 45 degrees off (halfway from cis to
+    // trans in an octahedron or a square) is the other isomer.
+    struct Polyhedral {
+        int centre;
+        std::vector<int> neighbours;
+        std::vector<double> angles;  // per pair (i < j), in order
+    };
+    std::vector<Polyhedral> polyhedral;
+    for (int i = 0; i < ref.atom_count(); ++i) {
+        if (polyhedral_neighbor_count(ref.atoms[static_cast<size_t>(i)].chiral_class) == 0) continue;
+        const auto dirs = marked_directions(ref, i);
+        if (!dirs) continue;
+        Polyhedral p{i, {}, {}};
+        for (const Neighbor& nb : ref.neighbors(i)) p.neighbours.push_back(nb.atom);
+        for (size_t a = 0; a < dirs->size(); ++a)
+            for (size_t b = a + 1; b < dirs->size(); ++b)
+                p.angles.push_back(std::acos(std::clamp((*dirs)[a].dot((*dirs)[b]), -1.0, 1.0)) * 180.0 / M_PI);
+        polyhedral.push_back(std::move(p));
+    }
+    constexpr double kPolyhedralTolerance = 45.0;
     Matcher matcher(ref, s, classes(ref, 3), classes(s, 3));
     std::vector<int> best;
     size_t best_wrong = static_cast<size_t>(-1);
@@ -213,6 +242,32 @@ std::vector<Finding> compare_with_reference(const Molecule& s, const std::vector
                                                  "stereocentre)",
                                                  element(s.atoms[static_cast<size_t>(u.centre)].z).symbol, u.centre + 1),
                                      std::nullopt, std::nullopt, "", Severity::error, 80});
+        }
+        for (const Polyhedral& p : polyhedral) {
+            const int c = map[static_cast<size_t>(p.centre)];
+            size_t k = 0;
+            int wa = -1, wb = -1;
+            double measured = 0, ideal = 0;
+            for (size_t a = 0; a < p.neighbours.size(); ++a)
+                for (size_t b = a + 1; b < p.neighbours.size(); ++b, ++k) {
+                    const int x = map[static_cast<size_t>(p.neighbours[a])], y = map[static_cast<size_t>(p.neighbours[b])];
+                    const Eigen::Vector3d u = pos[static_cast<size_t>(x)] - pos[static_cast<size_t>(c)];
+                    const Eigen::Vector3d v = pos[static_cast<size_t>(y)] - pos[static_cast<size_t>(c)];
+                    const double angle = std::acos(std::clamp(u.normalized().dot(v.normalized()), -1.0, 1.0)) * 180.0 / M_PI;
+                    if (wa < 0 && std::fabs(angle - p.angles[k]) > kPolyhedralTolerance) {
+                        wa = x, wb = y, measured = angle, ideal = p.angles[k];
+                    }
+                }
+            if (wa < 0) continue;
+            ++count;
+            if (findings) {
+                auto name = [&](int i) { return fmt::format("{}{}", element(s.atoms[static_cast<size_t>(i)].z).symbol, i + 1); };
+                findings->push_back({"stereocentre", {c + 1, wa + 1, wb + 1},
+                                     fmt::format("{}: the ligands are arranged otherwise than the reference's mark says "
+                                                 "(another isomer): {}-{}-{} is {:.0f} degrees, {:.0f} in the reference",
+                                                 name(c), name(wa), name(c), name(wb), measured, ideal),
+                                     measured, ideal, "degrees", Severity::error, 80});
+            }
         }
         for (const DoubleBondTarget& t : doubles) {
             DoubleBondTarget u{map[static_cast<size_t>(t.a)], map[static_cast<size_t>(t.b)], map[static_cast<size_t>(t.c)],

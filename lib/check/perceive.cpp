@@ -14,6 +14,7 @@
 #include "core/element.hpp"
 #include "core/limits.hpp"
 #include "core/neighbor_grid.hpp"
+#include "domains/metal.hpp"
 
 namespace repel {
 namespace {
@@ -53,6 +54,19 @@ std::vector<State> valence_states(int z) {
             return {{0, 0}, {2, 0}, {4, 0}, {6, 0}, {8, 0}};
         default: return {};
     }
+}
+
+// The states of an atom cut off a metal (ionic model): its table, then the closed-shell anions a ligand donor can be
+// beyond it (oxo and sulfido O2- S2-, imido and nitrido N2- N3-, phosphido P2- P3-; common practice of the ionic
+// model), one charge step at a time so that rule 2 below reaches them.
+std::vector<State> donor_states(int z) {
+    std::vector<State> s = valence_states(z);
+    const int g = element(z).group;
+    if (g == 15 || g == 16) {
+        const int octet = 18 - g;  // neutral octet valence: N 3, O 2
+        for (int k = 2; k <= octet; ++k) s.push_back({octet - k, -k});
+    }
+    return s;
 }
 
 // The first state (in the table's order) of the given charge whose valence holds `bonds`; valence -1 when none.
@@ -318,6 +332,51 @@ std::vector<Overlap> perceive_bonds(Molecule& m, const std::vector<Eigen::Vector
                                [](const Overlap& x, const Overlap& y) { return x.a == y.a && x.b == y.b; }),
                    overlaps.end());
     for (const Overlap& o : overlaps) excluded[static_cast<size_t>(o.b)] = 1;
+    // Hydrogens within bonding distance of more atoms than they can bond to.
+    {
+        auto z = [&](int i) { return m.atoms[static_cast<size_t>(i)].z; };
+        auto dist = [&](int i, int j) { return (pos[static_cast<size_t>(i)] - pos[static_cast<size_t>(j)]).norm(); };
+        std::vector<std::vector<int>> partners(static_cast<size_t>(n));
+        for (auto [i, j] : pairs) {
+            if (excluded[static_cast<size_t>(i)] || excluded[static_cast<size_t>(j)]) continue;
+            if (z(i) == 1) partners[static_cast<size_t>(i)].push_back(j);
+            if (z(j) == 1) partners[static_cast<size_t>(j)].push_back(i);
+        }
+        auto heavy_partners = [&](int h) {
+            std::vector<int> out;
+            for (int p : partners[static_cast<size_t>(h)])
+                if (z(p) != 1 && !excluded[static_cast<size_t>(p)]) out.push_back(p);
+            return out;
+        };
+        std::vector<std::pair<int, int>> dropped;  // H-H pairs not bonded
+        for (auto [i, j] : pairs)
+            if (z(i) == 1 && z(j) == 1 && !excluded[static_cast<size_t>(i)] && !excluded[static_cast<size_t>(j)] &&
+                (!heavy_partners(i).empty() || !heavy_partners(j).empty())) {
+                dropped.emplace_back(i, j);
+                Overlap o{i, j, dist(i, j)};
+                o.left_out = false;
+                overlaps.push_back(o);
+            }
+        for (int h = 0; h < n; ++h) {
+            if (z(h) != 1 || excluded[static_cast<size_t>(h)]) continue;
+            std::vector<int> heavy = heavy_partners(h);
+            if (heavy.size() < 2) continue;
+            const bool bridging = heavy.size() == 2 && std::all_of(heavy.begin(), heavy.end(), [&](int p) {
+                return z(p) == 5 || is_d_block_metal(z(p));
+            });
+            if (bridging) continue;
+            std::sort(heavy.begin(), heavy.end(), [&](int x, int y) { return dist(h, x) < dist(h, y) || (dist(h, x) == dist(h, y) && x < y); });
+            Overlap o{heavy.front(), h, dist(h, heavy.front())};
+            o.also.assign(heavy.begin() + 1, heavy.end());
+            overlaps.push_back(o);
+            excluded[static_cast<size_t>(h)] = 1;
+        }
+        std::sort(dropped.begin(), dropped.end());
+        std::vector<std::pair<int, int>> kept;
+        for (auto pr : pairs)
+            if (!std::binary_search(dropped.begin(), dropped.end(), pr)) kept.push_back(pr);
+        pairs.swap(kept);
+    }
     for (auto [i, j] : pairs) {
         if (excluded[static_cast<size_t>(i)] || excluded[static_cast<size_t>(j)]) continue;
         if (m.bond_between(i, j) < 0) m.add_bond(i, j, 1);
@@ -325,9 +384,14 @@ std::vector<Overlap> perceive_bonds(Molecule& m, const std::vector<Eigen::Vector
     return overlaps;
 }
 
-ValenceResult assign_valences(Molecule& m, const std::vector<Eigen::Vector3d>& pos, int total_charge,
-                              int unpaired_allowed, const std::vector<int>* free_bonds, bool fixed_charges,
-                              const std::vector<char>* ignore) {
+namespace {
+
+// The assignment of assign_valences. With free_charge the total charge is not imposed: unsatisfied atoms take
+// anionic states until every atom is closed-shell (the ligands of the ionic model); `cut` marks the atoms that were
+// bonded to a metal, which may also take the deeper anion states of donor_states.
+ValenceResult assign_impl(Molecule& m, const std::vector<Eigen::Vector3d>& pos, int total_charge, int unpaired_allowed,
+                          const std::vector<int>* free_bonds, bool fixed_charges, const std::vector<char>* ignore,
+                          bool free_charge, const std::vector<char>* cut) {
     const int n = m.atom_count();
     std::vector<char> is_free(m.bonds.size(), free_bonds ? 0 : 1);
     if (free_bonds)
@@ -384,11 +448,11 @@ ValenceResult assign_valences(Molecule& m, const std::vector<Eigen::Vector3d>& p
     int tries = 0;
     for (int round = 0; round < 4 * n + 8 && tries <= kMaxTries; ++round) {
         const int q = charge();
-        if (residual <= unpaired_allowed && q == target) break;
+        if (residual <= unpaired_allowed && (free_charge || q == target)) break;
         std::vector<int> unsat;
         for (int i = 0; i < n; ++i)
             if (left[static_cast<size_t>(i)] > 0) unsat.push_back(i);
-        if (unsat.empty() && q == target) break;
+        if (unsat.empty() && (free_charge || q == target)) break;
         // Saturated neighbours of unsatisfied atoms, least electronegative first (they carry a positive charge best).
         std::vector<int> hosts;
         for (int u : unsat)
@@ -438,7 +502,8 @@ ValenceResult assign_valences(Molecule& m, const std::vector<Eigen::Vector3d>& p
         };
         // Rule 1: a neighbour takes +1 and one more bond (N+ of a nitro group, O+ of CO), when the charge is to go up
         // or another atom is left to take the compensating -1.
-        if (!changed && !fixed_charges && residual > unpaired_allowed && (q < target || residual >= 2 + unpaired_allowed))
+        if (!changed && !fixed_charges && residual > unpaired_allowed &&
+            ((!free_charge && q < target) || residual >= 2 + unpaired_allowed))
             for (int h : hosts) {
                 const State cur = state[static_cast<size_t>(h)];
                 for (const State& s : valence_states(m.atoms[static_cast<size_t>(h)].z))
@@ -455,15 +520,16 @@ ValenceResult assign_valences(Molecule& m, const std::vector<Eigen::Vector3d>& p
             }
         // Rule 2: an unsatisfied atom takes a charge and one bond less: an anion on the most electronegative atom
         // when the charge is to go down, a cation on the least electronegative when it is to go up.
-        if (!changed && !fixed_charges && q != target && !unsat.empty()) {
-            const int dq = q > target ? -1 : 1;
+        if (!changed && !fixed_charges && (free_charge ? residual > unpaired_allowed : q != target) && !unsat.empty()) {
+            const int dq = free_charge || q > target ? -1 : 1;
             std::vector<int> order = unsat;
             std::stable_sort(order.begin(), order.end(), [&](int a, int b) {
                 return dq < 0 ? electronegativity(a) > electronegativity(b) : electronegativity(a) < electronegativity(b);
             });
             for (int u : order) {
                 const State cur = state[static_cast<size_t>(u)];
-                for (const State& s : valence_states(m.atoms[static_cast<size_t>(u)].z))
+                const int zu = m.atoms[static_cast<size_t>(u)].z;
+                for (const State& s : cut && (*cut)[static_cast<size_t>(u)] ? donor_states(zu) : valence_states(zu))
                     if (s.charge == cur.charge + dq && s.valence == cur.valence - 1 && s.valence >= fixed_sum[static_cast<size_t>(u)]) {
                         changed = try_state(u, s);
                         break;
@@ -487,12 +553,96 @@ ValenceResult assign_valences(Molecule& m, const std::vector<Eigen::Vector3d>& p
     return out;
 }
 
+}  // namespace
+
+ValenceResult assign_valences(Molecule& m, const std::vector<Eigen::Vector3d>& pos, int total_charge,
+                              int unpaired_allowed, const std::vector<int>* free_bonds, bool fixed_charges,
+                              const std::vector<char>* ignore) {
+    return assign_impl(m, pos, total_charge, unpaired_allowed, free_bonds, fixed_charges, ignore, false, nullptr);
+}
+
+ValenceResult assign_valences_ionic(Molecule& m, const std::vector<Eigen::Vector3d>& pos, int total_charge,
+                                    const std::vector<char>* ignore) {
+    const int n = m.atom_count();
+    std::vector<char> metal(static_cast<size_t>(n), 0), cut(static_cast<size_t>(n), 0);
+    for (int i = 0; i < n; ++i) metal[static_cast<size_t>(i)] = is_d_block_metal(m.atoms[static_cast<size_t>(i)].z);
+    // The ligands as the species cut off the metals: the same atoms without the bonds to metals.
+    Molecule ligands = m;
+    std::vector<Bond> kept;
+    for (const Bond& b : m.bonds) {
+        const bool ma = metal[static_cast<size_t>(b.a)], mb = metal[static_cast<size_t>(b.b)];
+        if (ma || mb) {
+            if (!ma) cut[static_cast<size_t>(b.a)] = 1;
+            if (!mb) cut[static_cast<size_t>(b.b)] = 1;
+            continue;
+        }
+        kept.push_back(b);
+    }
+    ligands.bonds = kept;
+    ligands.rebuild_adjacency();
+    std::vector<char> skip(static_cast<size_t>(n), 0);
+    for (int i = 0; i < n; ++i)
+        skip[static_cast<size_t>(i)] = metal[static_cast<size_t>(i)] || (ignore && (*ignore)[static_cast<size_t>(i)]);
+    ValenceResult out = assign_impl(ligands, pos, 0, 0, nullptr, false, &skip, true, &cut);
+    // Orders and charges back onto the whole molecule; the bonds to metals stay single.
+    for (Bond& b : m.bonds) {
+        if (metal[static_cast<size_t>(b.a)] || metal[static_cast<size_t>(b.b)]) {
+            b.order = 1;
+            continue;
+        }
+        b.order = ligands.bonds[static_cast<size_t>(ligands.bond_between(b.a, b.b))].order;
+    }
+    int ligand_charge = 0, metals = 0;
+    for (int i = 0; i < n; ++i) {
+        Atom& a = m.atoms[static_cast<size_t>(i)];
+        const Atom& l = ligands.atoms[static_cast<size_t>(i)];
+        a.radical_electrons = l.radical_electrons;
+        if (metal[static_cast<size_t>(i)]) {
+            ++metals;
+            continue;
+        }
+        a.charge = l.charge;
+        ligand_charge += l.charge;
+    }
+    // The metals take what the ligands leave of the total charge, shared as evenly as it goes (the lower indices
+    // take the remainder): their oxidation states, since their ligands take no electrons from them now.
+    const int rest = total_charge - ligand_charge;
+    int k = 0;
+    for (int i = 0; i < n; ++i) {
+        if (!metal[static_cast<size_t>(i)]) continue;
+        const int share = rest / metals + ((rest % metals) != 0 && k < std::abs(rest % metals) ? (rest > 0 ? 1 : -1) : 0);
+        m.atoms[static_cast<size_t>(i)].charge = share;
+        ++k;
+    }
+    out.charge = total_charge;
+    return out;
+}
+
 std::vector<int> valence_shortfall(const Molecule& m) {
     std::vector<int> out(static_cast<size_t>(m.atom_count()), 0);
     for (int i = 0; i < m.atom_count(); ++i) {
         const Atom& a = m.atoms[static_cast<size_t>(i)];
         if (valence_states(a.z).empty()) continue;
         if (first_state(a.z, 0, a.charge).valence < 0) continue;  // a charge the table does not know: no opinion
+        int to_metals = 0;
+        for (const Neighbor& nb : m.neighbors(i))
+            if (is_d_block_metal(m.atoms[static_cast<size_t>(nb.atom)].z)) to_metals += m.bonds[static_cast<size_t>(nb.bond)].order;
+        if (to_metals > 0) {
+            // A donor: its bonds to metals count as covalent for as many units as its valence needs, the rest as
+            // dative (a lone pair each), as domains/metal.cpp counts them: NH3-Pt, Cl-Pt and C5H5 rings on Fe are
+            // all satisfied as written.
+            const int own = m.bond_order_sum(i) - to_metals + std::max(0, a.radical_electrons);
+            bool satisfied = false;
+            for (int t = 0; t <= to_metals && !satisfied; ++t) satisfied = first_state(a.z, own + t, a.charge).valence == own + t;
+            if (satisfied) continue;
+            if (first_state(a.z, own, a.charge).valence < 0) {
+                out[static_cast<size_t>(i)] = -1;
+                continue;
+            }
+            const State s = first_state(a.z, own + to_metals, a.charge);
+            out[static_cast<size_t>(i)] = s.valence < 0 ? 0 : s.valence - own - to_metals;
+            continue;
+        }
         const int bonds = m.bond_order_sum(i) + std::max(0, a.radical_electrons);
         const State s = first_state(a.z, bonds, a.charge);
         out[static_cast<size_t>(i)] = s.valence < 0 ? -1 : s.valence - bonds;

@@ -19,14 +19,22 @@ struct PerceptionOptions {
 };
 
 struct Overlap {
-    int a = -1, b = -1;  // 0-based, a < b
+    int a = -1, b = -1;  // 0-based
     double distance = 0;
+    // false: neither atom is left out (two hydrogens within bonding distance of each other, each with a bond of its
+    // own: the pair is not bonded and both keep their bonds).
+    bool left_out = true;
+    std::vector<int> also;  // further atoms within bonding distance of b that b cannot bond to (a hydrogen's)
 };
 
 // Adds a single bond for every bonded pair not yet bonded, found through a cell grid (linear in the atom count).
 // Returns the overlapping pairs. Of two overlapping atoms the later one (in file order) is left out of perception
 // altogether (it is where it should not be), so that its presence does not invent bonds for its neighbours; of a
 // hydrogen and a heavier atom, the hydrogen is left out. Overlap::b is the atom left out.
+// A hydrogen bonds to one atom: within bonding distance of two hydrogens that have heavier partners, the H-H pair is
+// an overlap (not bonded, nobody left out); within bonding distance of two or more heavier atoms (an H placed at a
+// ring centre), the hydrogen is an overlap and left out, unless they are two boron or metal atoms (a bridging
+// hydride, B2H6).
 std::vector<Overlap> perceive_bonds(Molecule& molecule, const std::vector<Eigen::Vector3d>& positions,
                                     const PerceptionOptions& options = {});
 
@@ -59,9 +67,19 @@ ValenceResult assign_valences(Molecule& molecule, const std::vector<Eigen::Vecto
                               int unpaired_allowed, const std::vector<int>* free_bonds = nullptr,
                               bool fixed_charges = false, const std::vector<char>* ignore = nullptr);
 
+// The same for a structure with d-block metals, by the ionic model: the ligands are the closed-shell species cut off
+// the metals (every bond to a metal left out; NH3, H2O, CO neutral; Cl-, CN-, CH3-, C5H5-, oxo O2-, nitrido N3- ...:
+// unsatisfied atoms take anionic states until none is left, least charge first), and the metals take what is left
+// of total_charge as their formal charges, which are then their oxidation states (shared evenly among several
+// metals). Bonds to metals are single. Radical ligands cannot come out of it (an atom with no anionic state left
+// keeps its unpaired electron); the charge always adds up (ValenceResult::charge == total_charge).
+ValenceResult assign_valences_ionic(Molecule& molecule, const std::vector<Eigen::Vector3d>& positions,
+                                    int total_charge, const std::vector<char>* ignore = nullptr);
+
 // For a molecule with orders and charges given (SDF): per atom, the electrons by which it falls short of its
 // nearest normal valence for its charge (0 when satisfied or when the charge has no tabulated state), and -1 for an
-// atom with more bonds than any valence allows.
+// atom with more bonds than any valence allows. Bonds to d-block metals count as covalent as far as the donor's
+// valence needs, dative beyond (an NH3 or a C5H5 ring on a metal is satisfied as written).
 std::vector<int> valence_shortfall(const Molecule& molecule);
 
 }  // namespace repel

@@ -4,6 +4,8 @@
 
 #include <fmt/format.h>
 
+#include "core/element.hpp"
+
 namespace repel {
 namespace {
 
@@ -22,6 +24,20 @@ std::string audit_text(const Audit& a, int index) {
     if (a.findings.empty()) out += "  no findings\n";
     else out += fmt::format("  {} finding{}:\n", a.findings.size(), a.findings.size() == 1 ? "" : "s");
     for (const Finding& f : a.findings) out += fmt::format("  {:<7} {:<12} {}\n", severity_name(f.severity), f.kind, f.message);
+    for (const MetalCentreAudit& c : a.metals) {
+        const std::string who = fmt::format("{}{}", element(m.atoms[static_cast<size_t>(c.atom)].z).symbol, c.atom + 1);
+        if (c.shape_measure < 0) {
+            out += fmt::format("  metal {}: oxidation state {:+d}, d{}, {} ligand domain{}; model {}; no shape measure "
+                               "(defined for 2 to 9 ligands)\n",
+                               who, c.oxidation_state, c.d_electrons, c.coordination_number,
+                               c.coordination_number == 1 ? "" : "s", c.model_polyhedron);
+            continue;
+        }
+        out += fmt::format("  metal {}: oxidation state {:+d}, d{}, {}-coordinate: {} ({}, CShM {:.2f}); model {}{}\n",
+                           who, c.oxidation_state, c.d_electrons, c.coordination_number, c.polyhedron, c.symbol,
+                           c.shape_measure, c.model_polyhedron,
+                           c.model_shape_measure >= 0 ? fmt::format(" (CShM {:.2f})", c.model_shape_measure) : "");
+    }
     for (const std::string& note : a.notes) out += "  note: " + note + "\n";
     return out;
 }
@@ -56,6 +72,30 @@ nlohmann::json audit_json(const Audit& a) {
         if (m.atoms[static_cast<size_t>(i)].charge != 0)
             charges.push_back({{"atom", i + 1}, {"charge", m.atoms[static_cast<size_t>(i)].charge}});
     j["formal_charges"] = charges;
+    // Only with metals, so that the JSON of other structures stays as it was.
+    if (!a.metals.empty()) {
+        nlohmann::json metals = nlohmann::json::array();
+        for (const MetalCentreAudit& c : a.metals) {
+            nlohmann::json x;
+            x["atom"] = c.atom + 1;
+            x["element"] = std::string(element(m.atoms[static_cast<size_t>(c.atom)].z).symbol);
+            x["coordination_number"] = c.coordination_number;
+            x["oxidation_state"] = c.oxidation_state;
+            x["d_electrons"] = c.d_electrons;
+            x["unpaired_electrons"] = c.unpaired_electrons;
+            // The measured polyhedron: the nearest ideal of that coordination number and its CShM (null when the
+            // coordination number is outside 2..9).
+            x["polyhedron"] = c.shape_measure >= 0 ? nlohmann::json(c.polyhedron) : nlohmann::json(nullptr);
+            x["polyhedron_symbol"] = c.shape_measure >= 0 ? nlohmann::json(c.symbol) : nlohmann::json(nullptr);
+            x["shape_measure"] = c.shape_measure >= 0 ? nlohmann::json(c.shape_measure) : nlohmann::json(nullptr);
+            x["model_polyhedron"] = c.model_polyhedron;
+            x["model_reason"] = c.model_reason;
+            x["model_shape_measure"] =
+                c.model_shape_measure >= 0 ? nlohmann::json(c.model_shape_measure) : nlohmann::json(nullptr);
+            metals.push_back(x);
+        }
+        j["metal_centres"] = metals;
+    }
     return j;
 }
 

@@ -18,6 +18,17 @@ struct BondEnds {
     int lone_pairs_a = 0, lone_pairs_b = 0;  // lone pairs of atom a and of atom b
     int steric_a = 0, steric_b = 0;          // steric numbers (0: not known)
     int charge_a = 0, charge_b = 0;          // formal charges
+    // Electron pairs of the Lewis structure around each atom (bond orders + hydrogens + lone pairs; above 4 an
+    // expanded octet) and its neighbours (sigma bonds, hydrogens included); 0: not known.
+    int pairs_a = 0, pairs_b = 0;
+    int neighbours_a = 0, neighbours_b = 0;
+    int electronegative_a = 0, electronegative_b = 0;  // neighbours that are O or F
+    // At a five- or six-domain centre: whether this bond lies trans to another bond of the atom (1: axial in a
+    // trigonal bipyramid, basal in a square pyramid) or not (2: equatorial, apical); 0 elsewhere or not known. And
+    // how many single bonds of the atom are of each kind.
+    int trans_a = 0, trans_b = 0;
+    int trans_singles_a = 0, trans_singles_b = 0;
+    int open_singles_a = 0, open_singles_b = 0;
 };
 
 // Bond length for a (possibly fractional, 1.0 .. 3.0) bond order between elements za and zb with the given ends.

@@ -863,6 +863,10 @@ private:
             }
         }
         if (pairs.empty() || free_sites.size() < n) return plain;
+        // A node budget keeps the search bounded whatever the input (12 donors with chelates everywhere): past it the
+        // best assignment found so far is kept (the solve's own one at worst).
+        constexpr long kNodeBudget = 200000;
+        long nodes = 0;
         // Branch and bound over assignments (at most 9 donors): cost = sum of chelate angles (radians) + a small
         // price per donor moved off its solved site; the solve's own assignment bounds the search from the start.
         constexpr double kMovePrice = 1e-3;
@@ -878,7 +882,7 @@ private:
             double cost;
         };
         std::vector<Frame> stack{{0, 0, 0.0}};
-        while (!stack.empty()) {
+        while (!stack.empty() && ++nodes < kNodeBudget) {
             Frame& f = stack.back();
             if (f.donor == n) {
                 if (f.cost < best_cost - 1e-12) best_cost = f.cost, best = current;

@@ -70,6 +70,8 @@ bool in_small_ring(const Molecule& m, int bond, int max_bonds) {
     return false;
 }
 
+}  // namespace
+
 // SD files usually state aromatic rings in one Kekule structure (types 1 and 2). The builder treats aromatic bonds as
 // order 1.5 (bond lengths, planarity), so rings of 5 to 7 atoms whose pi electrons count 4n + 2 (Hueckel's rule) are
 // marked aromatic, as a SMILES in lower case would have them. Per ring atom: 1 electron for a double bond in the ring
@@ -157,6 +159,8 @@ void perceive_aromatic_rings(Molecule& m) {
         }
     }
 }
+
+namespace {
 
 // The arrangement of a metal with four, five or six sigma ligands in 3D as an OpenSMILES mark (@SP, @TB, @OH over
 // its neighbour order), so that the build keeps cis/trans, fac/mer and Delta/Lambda of the file. Only where the

@@ -15,4 +15,9 @@ namespace repel {
 // line. Throws InputError for a malformed record and for aromatic bonds that cannot be given orders.
 Molecule molecule_from_sd_record(const std::string& text, long first_line);
 
+// Marks the rings of 5 to 7 atoms (and pairs of them fused) whose pi electrons count 4n + 2 in the molecule's Kekule
+// orders aromatic (atoms and bonds), as a SMILES in lower case would have them; the orders are kept. Also used by
+// `repel check` on perceived orders, so that a ring is judged and cleaned as aromatic (bonds of order 1.5).
+void perceive_aromatic_rings(Molecule& molecule);
+
 }  // namespace repel

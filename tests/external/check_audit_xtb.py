@@ -18,7 +18,21 @@ from common import parse_xyz, perceive_bonds  # noqa: E402
 
 XTB = "/usr/bin/xtb"
 MOLECULES = ["CCO", "CC(=O)O", "c1ccccc1", "c1ccncc1", "C[N+](=O)[O-]", "CS(C)=O", "CS(=O)(=O)C", "CC#N", "SF4",
-             "PF5", "ClF3", "Oc1ccccc1", "CC(C)=O", "NC=O", "c1ccoc1", "C1CCCCC1", "C[C@H](N)C(=O)O", "F/C=C/F"]
+             "PF5", "ClF3", "Oc1ccccc1", "CC(C)=O", "NC=O", "c1ccoc1", "C1CCCCC1", "C[C@H](N)C(=O)O", "F/C=C/F",
+             # issue 12: bridging oxygens between P and Si atoms (P-O-P, Si-O-Si open far beyond the isolated
+             # oxygen's domains), delocalised ions (carboxylate, sulfonate), fused aromatics
+             "OP(=O)(O)OP(=O)(O)O", "C[Si](C)(C)O[Si](C)(C)C", "CC(=O)[O-]", "CS(=O)(=O)[O-]",
+             "c1ccc2ccccc2c1", "Cc1ccc(cc1)[N+](=O)[O-]"]
+
+
+def charge_of(smiles):
+    """The total charge written in the SMILES (bracket atoms' + and - signs)."""
+    import re
+    total = 0
+    for bracket in re.findall(r"\[[^\]]*\]", smiles):
+        for sign, count in re.findall(r"([+-])(\d*)", bracket):
+            total += (1 if sign == "+" else -1) * (int(count) if count else 1)
+    return total
 
 
 # Damaged copies cleaned by --fix, then optimised by xtb: the connectivity must survive (issue 4). Bonds are perceived
@@ -79,13 +93,14 @@ def main():
             if r.returncode != 0:
                 failures.append(f"{smiles}: repel build failed: {r.stderr.strip()}")
                 continue
-            x = subprocess.run([XTB, "start.xyz", "--opt", "normal", "--gfn", "2"], cwd=tmp, capture_output=True,
-                               text=True, timeout=300, env=env)
+            charge = str(charge_of(smiles))
+            x = subprocess.run([XTB, "start.xyz", "--opt", "normal", "--gfn", "2", "--chrg", charge], cwd=tmp,
+                               capture_output=True, text=True, timeout=300, env=env)
             opt = os.path.join(tmp, "xtbopt.xyz")
             if x.returncode != 0 or not os.path.exists(opt):
                 failures.append(f"{smiles}: xtb did not optimise (exit {x.returncode})")
                 continue
-            c = subprocess.run([repel, "check", opt, "--json", "--charge", "0", "--multiplicity", "1"],
+            c = subprocess.run([repel, "check", opt, "--json", "--charge", charge, "--multiplicity", "1"],
                                capture_output=True, text=True, timeout=120)
             doc = json.loads(c.stdout) if c.stdout.strip() else {}
             findings = [f["message"] for s in doc.get("structures", []) for f in s["findings"]]

@@ -70,12 +70,8 @@ KNOWN_POLYHEDRA = {
     'octacyanomolybdate(IV)': 'SAPR-8',
     'octacyanotungstate(IV)': 'SAPR-8',
 }
-# - distances: (row, key) -> the widest error (A) accepted instead of ENTRY_MAX, and why.
-KNOWN_DISTANCES = {
-    # Unbridged Mn-Mn in Mn2(CO)10 is long for its radii: Cordero's low-spin Mn radius gives 2.78 A (Re2(CO)10's
-    # 3.04 A is met within 0.02 by the same rule).
-    ('decacarbonyldimanganese', 'Mn'): 0.15,
-}
+# - distances: (row, key) -> the widest error (A) accepted instead of ENTRY_MAX, and why (none at present).
+KNOWN_DISTANCES = {}
 
 # Refused centres (f block): (SMILES, element)
 F_BLOCK_INPUTS = [('[U](F)(F)(F)(F)(F)F', 'U'),
