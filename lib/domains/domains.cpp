@@ -469,15 +469,23 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalys
         out.unpaired_electrons += c.single_electrons + c.p_single_electrons;
 
         const std::vector<double> orders = effective_orders(m, i);
+        // What the bonding weights depend on beyond the bond (model.cpp), hapto bonds to a metal aside.
+        CentreKind kind;
+        kind.lone_pairs = c.lone_pairs + c.single_electrons;
+        for (size_t k = 0; k < m.neighbors(i).size(); ++k)
+            if (!(hapto_atom && is_d_block_metal(m.atoms[static_cast<size_t>(m.neighbors(i)[k].atom)].z))) {
+                kind.multiple_bond = kind.multiple_bond || orders[k] > 1.0;
+                if (is_heavy_ligand(m.atoms[static_cast<size_t>(m.neighbors(i)[k].atom)].z)) ++kind.heavy_ligands;
+            }
         for (size_t k = 0; k < m.neighbors(i).size(); ++k) {
             const Neighbor& nb = m.neighbors(i)[k];
             if (hapto_atom && is_d_block_metal(m.atoms[static_cast<size_t>(nb.atom)].z)) continue;
             const Bond& b = m.bonds[static_cast<size_t>(nb.bond)];
-            SphereDomain sd = bonding_domain(model, atom.z, m.atoms[static_cast<size_t>(nb.atom)].z, orders[k]);
+            SphereDomain sd = bonding_domain(model, atom.z, m.atoms[static_cast<size_t>(nb.atom)].z, orders[k], kind);
             c.domains.push_back({DomainKind::bond, nb.atom, nb.bond, b.order, sd.weight, sd.radius});
         }
         for (int k = 0; k < std::max(0, atom.hydrogens); ++k) {
-            SphereDomain sd = bonding_domain(model, atom.z, 1, 1);
+            SphereDomain sd = bonding_domain(model, atom.z, 1, 1, kind);
             c.domains.push_back({DomainKind::bond, -1, -1, 1, sd.weight, sd.radius});
         }
         for (int k = 0; k < c.lone_pairs; ++k) {

@@ -24,17 +24,30 @@ struct DomainModel {
                                         // of strong ionic character, drawn double)
     double electronegativity_slope; // Bent's rule: weight factor exp(-slope * (chi_ligand - chi_centre))
     double period_slope;            // larger centres: bonding weight factor exp(-slope * (period - 2)) for period > 2
-    double ligand_period_slope;     // larger ligand atoms: weight factor exp(slope * (ligand period - 2)) (Cl vs F)
-    double heavy_centre_ligand_slope;  // at a centre of period > 2, a ligand other than H: weight factor
-                                       // exp(slope * (centre period - 2)) (ligand close packing: PF3 > PH3)
+    // Stage 2 of the fit: two or more p-block ligand atoms of period 3 or later (Cl, S, P, Si, Br, ...) at a centre
+    // with lone pairs and no multiple bond: their bonding weight factor exp(heavy_ligand_slope x lone pairs).
+    double heavy_ligand_slope;
+    // Stage 3: a centre of period 3 or later with a bond of order above 1 and no lone pair or single electron (S(VI)
+    // and P(V) with S=O and P=O: SO2F2, POF3, sulfones, sulfonamides, phosphates). Its multiple bonds' factor per
+    // order above 1 and its Bent's-rule slope, in place of heavy_multiple_bond_weight and electronegativity_slope.
+    double hypervalent_multiple_bond_weight;
+    double hypervalent_electronegativity_slope;
 };
 
 // The fitted model.
 const DomainModel& domain_model();
 
+// What a bonding domain's weight depends on beyond the atoms of its bond.
+struct CentreKind {
+    bool multiple_bond = false;  // a bond of order above 1
+    int lone_pairs = 0;          // lone pairs and single electrons
+    int heavy_ligands = 0;       // ligand atoms of the p block of period 3 or later (Cl, S, P, Si, Br, ...)
+};
+// A ligand atom CentreKind::heavy_ligands counts.
+bool is_heavy_ligand(int z);
 // The sphere domain for a bond from centre to ligand of the given order (fractional for aromatic and
 // resonance-equivalent bonds: 1.5 in benzene, 1.5 for the S-O bonds of sulfate), under a model.
-SphereDomain bonding_domain(const DomainModel& model, int centre_z, int ligand_z, double order);
+SphereDomain bonding_domain(const DomainModel& model, int centre_z, int ligand_z, double order, CentreKind kind);
 SphereDomain lone_pair_domain(const DomainModel& model, int centre_z);
 SphereDomain single_electron_domain(const DomainModel& model, int centre_z);
 
