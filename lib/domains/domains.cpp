@@ -182,14 +182,8 @@ bool delocalised_lone_pair(const Molecule& m, int i, int lone_pairs, int single_
     for (size_t p = 0; p < nbs.size(); ++p)
         for (size_t q = p + 1; q < nbs.size(); ++q)
             if (m.bond_between(nbs[p].atom, nbs[q].atom) >= 0) return false;
-    // Pauling units: S (2.58 against O's 3.44) is in, Cl (3.16), Br and I are out (a choice).
-    constexpr double kPolarBridge = 0.8;
-    for (const Neighbor& nb : nbs) {
-        const ElementData& j = element(m.atoms[static_cast<size_t>(nb.atom)].z);
-        if (a.z == 8 && j.period >= 3 && j.group >= 13 && j.electronegativity > 0 &&
-            element(8).electronegativity - j.electronegativity >= kPolarBridge)
-            return true;
-    }
+    for (const Neighbor& nb : nbs)
+        if (a.z == 8 && is_polar_bridge_neighbour(m.atoms[static_cast<size_t>(nb.atom)].z)) return true;
     for (const Neighbor& nb : nbs) {
         const Atom& j = m.atoms[static_cast<size_t>(nb.atom)];
         if (empty_p_boron(m, nb.atom)) return true;
@@ -488,8 +482,16 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalys
             SphereDomain sd = bonding_domain(model, atom.z, 1, 1, kind);
             c.domains.push_back({DomainKind::bond, -1, -1, 1, sd.weight, sd.radius});
         }
+        // At an oxygen bridging polar heavy atoms the pair left is drawn towards them too (model.cpp, stage 4).
+        double lone_pair_factor = 1.0;
+        if (atom.z == 8 && c.delocalised_lone_pairs > 0) {
+            std::vector<int> zs;
+            for (const Neighbor& nb : m.neighbors(i)) zs.push_back(m.atoms[static_cast<size_t>(nb.atom)].z);
+            lone_pair_factor = bridge_lone_pair_factor(model, bridge_polarity(zs));
+        }
         for (int k = 0; k < c.lone_pairs; ++k) {
             SphereDomain sd = lone_pair_domain(model, atom.z);
+            sd.weight *= lone_pair_factor;
             c.domains.push_back({DomainKind::lone_pair, -1, -1, 0, sd.weight, sd.radius});
         }
         if (c.single_electrons) {

@@ -30,6 +30,7 @@ const DomainModel& domain_model() {
         .heavy_ligand_slope = 0.3467,
         .hypervalent_multiple_bond_weight = 1.3708,
         .hypervalent_electronegativity_slope = 0.4021,
+        .bridge_lone_pair_slope = 0.3840,
     };
     return model;
 }
@@ -39,6 +40,25 @@ bool hypervalent(int centre_z, CentreKind kind) {
     return kind.multiple_bond && kind.lone_pairs == 0 && element(centre_z).period > 2;
 }
 }  // namespace
+
+bool is_polar_bridge_neighbour(int z) {
+    // Pauling units: S (2.58 against O's 3.44) is in, Cl (3.16), Br and I are out (a choice).
+    constexpr double kPolarBridge = 0.8;
+    const ElementData& j = element(z);
+    return j.period >= 3 && j.group >= 13 && j.electronegativity > 0 &&
+           element(8).electronegativity - j.electronegativity >= kPolarBridge;
+}
+
+double bridge_polarity(const std::vector<int>& neighbour_z) {
+    double sum = 0;
+    for (int z : neighbour_z)
+        if (is_polar_bridge_neighbour(z)) sum += element(8).electronegativity - element(z).electronegativity;
+    return sum;
+}
+
+double bridge_lone_pair_factor(const DomainModel& model, double polarity) {
+    return std::exp(-model.bridge_lone_pair_slope * polarity);
+}
 
 bool is_heavy_ligand(int z) {
     const ElementData& l = element(z);

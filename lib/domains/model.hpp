@@ -3,6 +3,7 @@
 #pragma once
 
 #include <cstdint>
+#include <vector>
 
 #include "graph/molecule.hpp"
 #include "sphere/sphere.hpp"
@@ -32,6 +33,9 @@ struct DomainModel {
     // order above 1 and its Bent's-rule slope, in place of heavy_multiple_bond_weight and electronegativity_slope.
     double hypervalent_multiple_bond_weight;
     double hypervalent_electronegativity_slope;
+    // Stage 4: the lone pair left at an oxygen between heavy atoms whose other pair is delocalised towards a polar
+    // p-block neighbour (domains.cpp, delocalised_lone_pair): its weight factor exp(-slope x bridge_polarity).
+    double bridge_lone_pair_slope;
 };
 
 // The fitted model.
@@ -45,6 +49,13 @@ struct CentreKind {
 };
 // A ligand atom CentreKind::heavy_ligands counts.
 bool is_heavy_ligand(int z);
+// A neighbour that draws a bridging oxygen's lone pair towards it: a p-block atom of period 3 or later less
+// electronegative than O by at least 0.8 Pauling units (Si, P, S, Al, Ge, As; not Cl, Br, I).
+bool is_polar_bridge_neighbour(int z);
+// Of an oxygen with the given neighbours: the sum of (chi_O - chi) over its polar-bridge neighbours (0 if none).
+double bridge_polarity(const std::vector<int>& neighbour_z);
+// The weight factor of the lone pair left at such an oxygen.
+double bridge_lone_pair_factor(const DomainModel& model, double polarity);
 // The sphere domain for a bond from centre to ligand of the given order (fractional for aromatic and
 // resonance-equivalent bonds: 1.5 in benzene, 1.5 for the S-O bonds of sulfate), under a model.
 SphereDomain bonding_domain(const DomainModel& model, int centre_z, int ligand_z, double order, CentreKind kind);
