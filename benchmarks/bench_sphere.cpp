@@ -37,7 +37,13 @@ std::vector<SphereDomain> arrangement_of(const Pattern& p) {
 std::vector<SphereDomain> domains_of(const Pattern& p) {
     const DomainModel& m = domain_model();
     std::vector<SphereDomain> d;
-    for (const auto& [z, order] : p.ligands) d.push_back(bonding_domain(m, p.centre, z, order));
+    CentreKind multiple;
+    multiple.lone_pairs = p.lone_pairs + p.single_electrons;
+    for (const auto& [z, order] : p.ligands) {
+        multiple.multiple_bond = multiple.multiple_bond || order > 1;
+        if (is_heavy_ligand(z)) ++multiple.heavy_ligands;
+    }
+    for (const auto& [z, order] : p.ligands) d.push_back(bonding_domain(m, p.centre, z, order, multiple));
     for (int k = 0; k < p.lone_pairs; ++k) d.push_back(lone_pair_domain(m, p.centre));
     for (int k = 0; k < p.single_electrons; ++k) d.push_back(single_electron_domain(m, p.centre));
     return d;

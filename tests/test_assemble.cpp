@@ -251,6 +251,49 @@ TEST(Chains, AmideNitrogenIsPlanarAndEsterOxygenOpens) {
     EXPECT_TRUE(build("COC=O").warnings.empty());
 }
 
+// Every angle X-O-Y (X, Y of the given elements) at a two-coordinate oxygen of the structure.
+std::vector<double> bridge_angles(const Structure& s, int x, int y) {
+    std::vector<double> out;
+    const Molecule& m = s.molecule;
+    for (int i = 0; i < m.atom_count(); ++i) {
+        if (m.atoms[i].z != 8 || m.degree(i) != 2) continue;
+        const int a = m.neighbors(i)[0].atom, b = m.neighbors(i)[1].atom;
+        const int za = m.atoms[a].z, zb = m.atoms[b].z;
+        if ((za == x && zb == y) || (za == y && zb == x)) out.push_back(angle(s, a, i, b));
+    }
+    return out;
+}
+
+// An oxygen between a heavy p-block atom and another heavy atom counts one lone pair delocalised (domains.cpp,
+// delocalised_lone_pair) and the pair left is smaller (model.cpp, bridge_lone_pair_factor, fitted on P-O-P and S-O-S).
+// Measured (from memory): P-O-P about 130 and C-O-P about 118 in ATP and pyrophosphate crystal structures, S-O-S
+// about 124 in pyrosulfate (crystal), Si-O-Si 148 in hexamethyldisiloxane (gas-phase electron diffraction). With both
+// pairs as domains every one of them was built at 104-110. Judged within 4 degrees, but Si-O-Si, which the 12-degree
+// tether of the sphere relaxation caps (README.md, known limits): asserted is its opening to at least 130.
+TEST(Chains, OxygenBetweenHeavyAtomsOpens) {
+    const Structure atp = build("Nc1ncnc2c1ncn2[C@@H]1O[C@H](COP(=O)([O-])OP(=O)([O-])OP(=O)([O-])[O-])[C@@H](O)[C@H]1O");
+    const std::vector<double> pop = bridge_angles(atp, 15, 15), cop = bridge_angles(atp, 6, 15);
+    ASSERT_EQ(pop.size(), 2u);
+    ASSERT_EQ(cop.size(), 1u);
+    for (double a : pop) EXPECT_NEAR(a, 130.0, 4.0) << "P-O-P";
+    EXPECT_NEAR(cop[0], 118.0, 4.0) << "C-O-P";
+    const std::vector<double> siosi = bridge_angles(build("C[Si](C)(C)O[Si](C)(C)C"), 14, 14);
+    ASSERT_EQ(siosi.size(), 1u);
+    EXPECT_GT(siosi[0], 130.0) << "Si-O-Si";
+    const std::vector<double> sos = bridge_angles(build("[O-]S(=O)(=O)OS(=O)(=O)[O-]"), 16, 16);
+    ASSERT_EQ(sos.size(), 1u);
+    EXPECT_NEAR(sos[0], 124.0, 4.0) << "S-O-S";
+    // Dimethyl ether keeps both pairs (no heavy neighbour).
+    EXPECT_LT(bridge_angles(build("COC"), 6, 6)[0], 109.0);
+}
+
+// The S8 crown: S-S-S 108 deg (crystal, from memory). Every angle was 97 (the AX2E2 angle of H2S); the step for two
+// heavy ligands at a centre with lone pairs (model.cpp, fitted on OCl2 and SCl2) opens it to about 105.
+TEST(Rings, CycloOctasulfurOpensItsAngles) {
+    const Structure s8 = build("S1SSSSSSS1");
+    for (int i = 0; i < 8; ++i) EXPECT_NEAR(angle(s8, (i + 7) % 8, i, (i + 1) % 8), 108.0, 4.0) << "atom " << i + 1;
+}
+
 TEST(Chains, BranchedAlkaneHasNoClash) {
     const Structure s = build("CC(C)(C)C(C)(C)C(C)(C)C(C)(C)C");
     expect_no_clash(s, 0.6);

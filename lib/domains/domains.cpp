@@ -187,6 +187,13 @@ std::vector<double> length_orders(const Molecule& m) {
 //   B-O-H of boronic acids opens to about 113 deg, from memory).
 // - or bonded to a carbene carbon that donates its lone pair to a metal by a single bond (its p orbital is empty
 //   as boron's: the N of an N-heterocyclic carbene is planar and its C-N short, common practice).
+// - or an oxygen between two heavy atoms of which one is of period 3 or later and less electronegative than O by at
+//   least kPolarBridge (p block: Si, P, S, Al, Ge, As): its pairs are partly given to the neighbours' sigma* orbitals
+//   (negative hyperconjugation, Reed and Schleyer, J. Am. Chem. Soc. 112 (1990) 1434; the Si-O bond is largely ionic
+//   and the wide Si-O-Si angle follows, Gillespie and Johnson, Inorg. Chem. 36 (1997) 3031, from memory). Measured
+//   angles (from memory): Si-O-Si 144 in disiloxane and 148 in hexamethyldisiloxane (gas-phase electron diffraction),
+//   P-O-P about 130 and C-O-P about 118 in pyrophosphates and ATP, S-O-S about 124 in pyrosulfate (crystal
+//   structures), C-O-C 111 in dimethyl ether; counted as one delocalised pair the centre is AX2E, trigonal.
 // At most one pair per atom is delocalised.
 bool carbene_on_metal(const Molecule& m, int j) {
     const Atom& c = m.atoms[static_cast<size_t>(j)];
@@ -240,6 +247,8 @@ bool delocalised_lone_pair(const Molecule& m, int i, int lone_pairs, int single_
     for (size_t p = 0; p < nbs.size(); ++p)
         for (size_t q = p + 1; q < nbs.size(); ++q)
             if (m.bond_between(nbs[p].atom, nbs[q].atom) >= 0) return false;
+    for (const Neighbor& nb : nbs)
+        if (a.z == 8 && is_polar_bridge_neighbour(m.atoms[static_cast<size_t>(nb.atom)].z)) return true;
     for (const Neighbor& nb : nbs) {
         const Atom& j = m.atoms[static_cast<size_t>(nb.atom)];
         if (empty_p_boron(m, nb.atom)) return true;
@@ -527,19 +536,38 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalys
         out.unpaired_electrons += c.single_electrons + c.p_single_electrons;
 
         const std::vector<double> orders = effective_orders(m, i);
+        // What the bonding weights depend on beyond the bond (model.cpp), hapto bonds to a metal aside.
+        CentreKind kind;
+        kind.lone_pairs = c.lone_pairs + c.single_electrons;
+        for (size_t k = 0; k < m.neighbors(i).size(); ++k)
+            if (!(hapto_atom && is_d_block_metal(m.atoms[static_cast<size_t>(m.neighbors(i)[k].atom)].z))) {
+                // Multiple bonds to O or N only: the S(VI)/P(V) term was fitted on S=O and P=O (model.cpp); a
+                // C=S bond of an ylide such as CH2=SF4 keeps the base model (check_xtb_maingroup.py).
+                const int nz = m.atoms[static_cast<size_t>(m.neighbors(i)[k].atom)].z;
+                kind.multiple_bond = kind.multiple_bond || (orders[k] > 1.0 && (nz == 7 || nz == 8));
+                if (is_heavy_ligand(m.atoms[static_cast<size_t>(m.neighbors(i)[k].atom)].z)) ++kind.heavy_ligands;
+            }
         for (size_t k = 0; k < m.neighbors(i).size(); ++k) {
             const Neighbor& nb = m.neighbors(i)[k];
             if (hapto_atom && is_d_block_metal(m.atoms[static_cast<size_t>(nb.atom)].z)) continue;
             const Bond& b = m.bonds[static_cast<size_t>(nb.bond)];
-            SphereDomain sd = bonding_domain(model, atom.z, m.atoms[static_cast<size_t>(nb.atom)].z, orders[k]);
+            SphereDomain sd = bonding_domain(model, atom.z, m.atoms[static_cast<size_t>(nb.atom)].z, orders[k], kind);
             c.domains.push_back({DomainKind::bond, nb.atom, nb.bond, b.order, sd.weight, sd.radius});
         }
         for (int k = 0; k < std::max(0, atom.hydrogens); ++k) {
-            SphereDomain sd = bonding_domain(model, atom.z, 1, 1);
+            SphereDomain sd = bonding_domain(model, atom.z, 1, 1, kind);
             c.domains.push_back({DomainKind::bond, -1, -1, 1, sd.weight, sd.radius});
+        }
+        // At an oxygen bridging polar heavy atoms the pair left is drawn towards them too (model.cpp, stage 4).
+        double lone_pair_factor = 1.0;
+        if (atom.z == 8 && c.delocalised_lone_pairs > 0) {
+            std::vector<int> zs;
+            for (const Neighbor& nb : m.neighbors(i)) zs.push_back(m.atoms[static_cast<size_t>(nb.atom)].z);
+            lone_pair_factor = bridge_lone_pair_factor(model, bridge_polarity(zs));
         }
         for (int k = 0; k < c.lone_pairs; ++k) {
             SphereDomain sd = lone_pair_domain(model, atom.z);
+            sd.weight *= lone_pair_factor;
             c.domains.push_back({DomainKind::lone_pair, -1, -1, 0, sd.weight, sd.radius});
         }
         if (c.single_electrons) {

@@ -3,6 +3,7 @@
 #pragma once
 
 #include <cstdint>
+#include <vector>
 
 #include "graph/molecule.hpp"
 #include "sphere/sphere.hpp"
@@ -24,14 +25,40 @@ struct DomainModel {
                                         // of strong ionic character, drawn double)
     double electronegativity_slope; // Bent's rule: weight factor exp(-slope * (chi_ligand - chi_centre))
     double period_slope;            // larger centres: bonding weight factor exp(-slope * (period - 2)) for period > 2
+    // Stage 2 of the fit: two or more p-block ligand atoms of period 3 or later (Cl, S, P, Si, Br, ...) at a centre
+    // with lone pairs and no multiple bond: their bonding weight factor exp(heavy_ligand_slope x lone pairs).
+    double heavy_ligand_slope;
+    // Stage 3: a centre of period 3 or later with a bond of order above 1 and no lone pair or single electron (S(VI)
+    // and P(V) with S=O and P=O: SO2F2, POF3, sulfones, sulfonamides, phosphates). Its multiple bonds' factor per
+    // order above 1 and its Bent's-rule slope, in place of heavy_multiple_bond_weight and electronegativity_slope.
+    double hypervalent_multiple_bond_weight;
+    double hypervalent_electronegativity_slope;
+    // Stage 4: the lone pair left at an oxygen between heavy atoms whose other pair is delocalised towards a polar
+    // p-block neighbour (domains.cpp, delocalised_lone_pair): its weight factor exp(-slope x bridge_polarity).
+    double bridge_lone_pair_slope;
 };
 
 // The fitted model.
 const DomainModel& domain_model();
 
+// What a bonding domain's weight depends on beyond the atoms of its bond.
+struct CentreKind {
+    bool multiple_bond = false;  // a bond of order above 1
+    int lone_pairs = 0;          // lone pairs and single electrons
+    int heavy_ligands = 0;       // ligand atoms of the p block of period 3 or later (Cl, S, P, Si, Br, ...)
+};
+// A ligand atom CentreKind::heavy_ligands counts.
+bool is_heavy_ligand(int z);
+// A neighbour that draws a bridging oxygen's lone pair towards it: a p-block atom of period 3 or later less
+// electronegative than O by at least 0.8 Pauling units (Si, P, S, Al, Ge, As; not Cl, Br, I).
+bool is_polar_bridge_neighbour(int z);
+// Of an oxygen with the given neighbours: the sum of (chi_O - chi) over its polar-bridge neighbours (0 if none).
+double bridge_polarity(const std::vector<int>& neighbour_z);
+// The weight factor of the lone pair left at such an oxygen.
+double bridge_lone_pair_factor(const DomainModel& model, double polarity);
 // The sphere domain for a bond from centre to ligand of the given order (fractional for aromatic and
 // resonance-equivalent bonds: 1.5 in benzene, 1.5 for the S-O bonds of sulfate), under a model.
-SphereDomain bonding_domain(const DomainModel& model, int centre_z, int ligand_z, double order);
+SphereDomain bonding_domain(const DomainModel& model, int centre_z, int ligand_z, double order, CentreKind kind);
 SphereDomain lone_pair_domain(const DomainModel& model, int centre_z);
 SphereDomain single_electron_domain(const DomainModel& model, int centre_z);
 
