@@ -46,9 +46,15 @@ Prepared prepare_set(const BuildOptions& options) {
     return out;
 }
 
+BuildOptions with_refine(bool refine) {
+    BuildOptions options;
+    options.refine = refine;
+    return options;
+}
+
 const Prepared& drug_molecules(bool refine) {
-    static const Prepared refined = prepare_set(BuildOptions{.refine = true});
-    static const Prepared assembled = prepare_set(BuildOptions{.refine = false});
+    static const Prepared refined = prepare_set(with_refine(true));
+    static const Prepared assembled = prepare_set(with_refine(false));
     return refine ? refined : assembled;
 }
 
@@ -62,7 +68,7 @@ void report_set(benchmark::State& state, const Prepared& p) {
 }
 
 void BM_BuildDrugSet(benchmark::State& state) {
-    const BuildOptions options{.refine = state.range(0) != 0};
+    const BuildOptions options = with_refine(state.range(0) != 0);
     const Prepared& p = drug_molecules(options.refine);
     for (auto _ : state)
         for (const Molecule& m : p.molecules) benchmark::DoNotOptimize(build_structure(m, options));

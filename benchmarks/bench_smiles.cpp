@@ -36,7 +36,7 @@ void BM_ReadDrugSet(benchmark::State& state) {
         for (const auto& r : set) benchmark::DoNotOptimize(read_smiles(r.smiles));
     state.SetItemsProcessed(state.iterations() * atoms);
     state.counters["molecules"] = static_cast<double>(set.size());
-    state.counters["molecules_per_s"] = benchmark::Counter(static_cast<double>(set.size()) * state.iterations(),
+    state.counters["molecules_per_s"] = benchmark::Counter(static_cast<double>(set.size()) * static_cast<double>(state.iterations()),
                                                            benchmark::Counter::kIsRate);
 }
 BENCHMARK(BM_ReadDrugSet)->Unit(benchmark::kMicrosecond);

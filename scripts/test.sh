@@ -1,23 +1,35 @@
 #!/usr/bin/env bash
-# Runs the whole test suite (unit tests, fuzz-corpus replays, the hostile-input table and the checks against ASE and
-# xtb) on the build made by scripts/setup.sh; then builds the same suite with AddressSanitizer and
-# UndefinedBehaviorSanitizer in build-asan/ and runs all of it again there; then runs each libFuzzer target briefly
-# (scripts/fuzz.sh, build-fuzz/). Arguments go to both ctest runs (for example -R hostile).
+# Two tiers.
+#   scripts/test.sh --quick   the everyday tier: the whole suite (unit tests, fuzz-corpus replays, the hostile-input
+#                             table, the checks against ASE, xtb and published data) on the build made by
+#                             scripts/setup.sh; a few minutes.
+#   scripts/test.sh           the thorough tier, what CI runs: the quick tier, then the same suite built with
+#                             AddressSanitizer and UndefinedBehaviorSanitizer and warnings as errors (build-asan/), then
+#                             each libFuzzer target briefly (scripts/fuzz.sh, build-fuzz/).
+# Further arguments go to the ctest runs (for example -R hostile, or -L unit: see the labels in tests/CMakeLists.txt).
 # Environment: REPEL_SANITIZE_SUITE=0 skips the sanitizer suite, REPEL_FUZZ_SECONDS (default 30; 0 skips) sets the
 # time per fuzz target.
 set -euo pipefail
 cd "$(dirname "$0")/.."
+quick=0
+if [ "${1:-}" = --quick ]; then
+    quick=1
+    shift
+fi
 [ -x build/bin/repel ] || scripts/setup.sh
 jobs=$(nproc)
 SECONDS=0
 cmake --build build -j "$jobs"
 ctest --test-dir build --output-on-failure -j "$jobs" "$@"
 echo "test: normal suite passed (${SECONDS}s so far)"
+if [ "$quick" = 1 ]; then
+    exit 0
+fi
 
 if [ "${REPEL_SANITIZE_SUITE:-1}" != 0 ]; then
     # -O1 -g1: what the sanitizers recommend (fast to build, line numbers in reports, still quick to run).
     cmake -S . -B build-asan -DCMAKE_BUILD_TYPE=Release "-DCMAKE_CXX_FLAGS_RELEASE=-O1 -g1 -DNDEBUG" -DREPEL_SANITIZE=ON \
-        -DREPEL_BENCHMARKS=OFF >/dev/null
+        -DREPEL_BENCHMARKS=OFF -DREPEL_WERROR=ON >/dev/null
     cmake --build build-asan -j "$jobs"
     # Every finding is fatal (halt_on_error); leaks are findings too.
     ASAN_OPTIONS=${ASAN_OPTIONS:-detect_leaks=1:halt_on_error=1:abort_on_error=1} \

@@ -83,7 +83,7 @@ void expect_no_clash(const Structure& s, double fraction) {
 double plane_deviation(const Structure& s, const std::vector<int>& atoms) {
     Vector3d c = Vector3d::Zero();
     for (int a : atoms) c += s.positions[a];
-    c /= atoms.size();
+    c /= static_cast<double>(atoms.size());
     Eigen::Matrix3d cov = Eigen::Matrix3d::Zero();
     for (int a : atoms) cov += (s.positions[a] - c) * (s.positions[a] - c).transpose();
     Eigen::SelfAdjointEigenSolver<Eigen::Matrix3d> es(cov);
@@ -409,8 +409,9 @@ TEST(Rings, CubaneIsACubeAndIsWarnedAbout) {
     for (const Bond& b : s.molecule.bonds)
         if (s.molecule.atoms[b.a].z == 6 && s.molecule.atoms[b.b].z == 6)
             for (const Neighbor& n : s.molecule.neighbors(b.b))
-                if (n.atom != b.a && s.molecule.atoms[n.atom].z == 6)
+                if (n.atom != b.a && s.molecule.atoms[n.atom].z == 6) {
                     EXPECT_NEAR(angle(s, b.a, b.b, n.atom), 90.0, 4.0);
+                }
     bool warned = false;
     for (const auto& w : s.warnings) warned |= w.find("strained") != std::string::npos;
     EXPECT_TRUE(warned);
@@ -421,7 +422,9 @@ TEST(Rings, CubaneIsACubeAndIsWarnedAbout) {
         for (const Neighbor& h : s.molecule.neighbors(c)) {
             if (s.molecule.atoms[h.atom].z != 1) continue;
             for (const Neighbor& o : s.molecule.neighbors(c))
-                if (o.atom != h.atom) EXPECT_NEAR(angle(s, h.atom, c, o.atom), 125.26, 2.0);
+                if (o.atom != h.atom) {
+                    EXPECT_NEAR(angle(s, h.atom, c, o.atom), 125.26, 2.0);
+                }
         }
     }
 }
@@ -467,7 +470,7 @@ namespace {
 int projected_crossings(const Structure& s, const std::vector<int>& ring) {
     Vector3d c = Vector3d::Zero();
     for (int a : ring) c += s.positions[a];
-    c /= ring.size();
+    c /= static_cast<double>(ring.size());
     Eigen::Matrix3d cov = Eigen::Matrix3d::Zero();
     for (int a : ring) cov += (s.positions[a] - c) * (s.positions[a] - c).transpose();
     Eigen::SelfAdjointEigenSolver<Eigen::Matrix3d> es(cov);

@@ -286,7 +286,9 @@ TEST(MetalGeometry, ZeiseAnionHasItsAlkenePerpendicularToTheSquare) {
     for (int cl : {0, 2, 3})
         if ((s.positions[static_cast<size_t>(cl)] - pt).normalized().dot((mid - pt).normalized()) < -0.9) trans = cl;
     for (int cl : {0, 2, 3})
-        if (cl != trans) EXPECT_GT(distance(s, 1, trans), distance(s, 1, cl) + 0.03);
+        if (cl != trans) {
+            EXPECT_GT(distance(s, 1, trans), distance(s, 1, cl) + 0.03);
+        }
 }
 
 TEST(MetalGeometry, ChelatingDienesReachTheirSites) {
@@ -304,7 +306,9 @@ TEST(MetalGeometry, ChelatingDienesReachTheirSites) {
     }
     EXPECT_EQ(bonded, 8);
     for (int i = 0; i < s.molecule.atom_count(); ++i)
-        if (s.molecule.atoms[static_cast<size_t>(i)].z == 1) EXPECT_GT(distance(s, ni, i), 2.3) << "H" << i + 1;
+        if (s.molecule.atoms[static_cast<size_t>(i)].z == 1) {
+            EXPECT_GT(distance(s, ni, i), 2.3) << "H" << i + 1;
+        }
 }
 
 TEST(MetalGeometry, BentMetallocenesOpenTheirRingsAsTheCrystalsDo) {

@@ -31,7 +31,9 @@ InputError error_of(const std::string& text, InputFormat f) {
 void expect_line(const std::string& text, InputFormat f, int line, const std::string& line_text = "") {
     InputError e = error_of(text, f);
     EXPECT_NE(std::string(e.what()).find("line " + std::to_string(line) + ":"), std::string::npos) << e.what();
-    if (!line_text.empty()) EXPECT_EQ(e.text(), line_text) << e.what();
+    if (!line_text.empty()) {
+        EXPECT_EQ(e.text(), line_text) << e.what();
+    }
 }
 
 const char* kWater =

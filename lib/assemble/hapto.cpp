@@ -125,7 +125,7 @@ void place_chelating_piece(const Molecule& skeleton, const MetalCentre& c, const
         for (size_t k = 0; k < group.size(); ++k) {
             const LigandDomain& lig = c.ligands[group[k]];
             const Vector3d shift = to[k] - ring_place(lig.atoms, pos).centroid;
-            for (int a : lig.atoms) (*site_shift)[at(a)] = shift;
+            for (int atom : lig.atoms) (*site_shift)[at(atom)] = shift;
         }
     }
 }

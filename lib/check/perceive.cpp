@@ -316,7 +316,7 @@ std::vector<Overlap> perceive_bonds(Molecule& m, const std::vector<Eigen::Vector
                         if (d < options.overlap * r) {
                             // The atom left out (b): the hydrogen of a hydrogen and a heavier atom, else the later.
                             const bool first_is_h = m.atoms[static_cast<size_t>(i)].z == 1 && m.atoms[static_cast<size_t>(j)].z != 1;
-                            overlaps.push_back(first_is_h ? Overlap{j, i, d} : Overlap{i, j, d});
+                            overlaps.push_back(first_is_h ? Overlap{j, i, d, true, {}} : Overlap{i, j, d, true, {}});
                             return;
                         }
                         pairs.emplace_back(i, j);
@@ -353,7 +353,7 @@ std::vector<Overlap> perceive_bonds(Molecule& m, const std::vector<Eigen::Vector
             if (z(i) == 1 && z(j) == 1 && !excluded[static_cast<size_t>(i)] && !excluded[static_cast<size_t>(j)] &&
                 (!heavy_partners(i).empty() || !heavy_partners(j).empty())) {
                 dropped.emplace_back(i, j);
-                Overlap o{i, j, dist(i, j)};
+                Overlap o{i, j, dist(i, j), true, {}};
                 o.left_out = false;
                 overlaps.push_back(o);
             }
@@ -366,7 +366,7 @@ std::vector<Overlap> perceive_bonds(Molecule& m, const std::vector<Eigen::Vector
             });
             if (bridging) continue;
             std::sort(heavy.begin(), heavy.end(), [&](int x, int y) { return dist(h, x) < dist(h, y) || (dist(h, x) == dist(h, y) && x < y); });
-            Overlap o{heavy.front(), h, dist(h, heavy.front())};
+            Overlap o{heavy.front(), h, dist(h, heavy.front()), true, {}};
             o.also.assign(heavy.begin() + 1, heavy.end());
             overlaps.push_back(o);
             excluded[static_cast<size_t>(h)] = 1;

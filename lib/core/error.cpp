@@ -13,15 +13,23 @@ std::string InputError::describe() const {
     else
         out = what();
     if (!text_.empty() && text_.size() <= 200) {
-        out += "\n  " + text_;
-        if (column_ > 0) out += "\n  " + std::string(std::min(static_cast<size_t>(column_ - 1), text_.size()), ' ') + "^";
+        out += "\n  ";
+        out += text_;
+        if (column_ > 0) {
+            out += "\n  ";
+            out.append(std::min(static_cast<size_t>(column_ - 1), text_.size()), ' ');
+            out += '^';
+        }
     } else if (!text_.empty() && column_ > 0) {
         // A long line: show a window around the column.
         size_t c = std::min(static_cast<size_t>(column_ - 1), text_.size());  // a column past the end: at the end
         size_t from = c > 40 ? c - 40 : 0;
         std::string window = text_.substr(from, 80);
-        out += "\n  " + std::string(from > 0 ? "..." : "") + window;
-        out += "\n  " + std::string((from > 0 ? 3 : 0) + (c - from), ' ') + "^";
+        out += from > 0 ? "\n  ..." : "\n  ";
+        out += window;
+        out += "\n  ";
+        out.append((from > 0 ? 3 : 0) + (c - from), ' ');
+        out += '^';
     }
     return out;
 }

@@ -198,7 +198,7 @@ View principal_view(const std::vector<Eigen::Vector3d>& positions) {
         }
         // The longer tail goes right (or up); a symmetric cloud keeps the solver's sign made canonical by its largest
         // component, so that the view does not depend on rounding.
-        if (std::fabs(third) > 1e-6 * positions.size()) {
+        if (std::fabs(third) > 1e-6 * static_cast<double>(positions.size())) {
             if (third < 0) axis = -axis;
         } else {
             Eigen::Index k = 0;

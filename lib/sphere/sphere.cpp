@@ -468,9 +468,9 @@ std::vector<Vector3d> solve_staged_sorted(const std::vector<SphereDomain>& arran
                 // domain d sits at pts[d]; its image sits at the site op maps that site to.
                 int site = site_of(pts[static_cast<size_t>(d)]);
                 int target_site = op.perm[static_cast<size_t>(site)];
-                int image = domain_at[static_cast<size_t>(target_site)];
-                ok = kind[static_cast<size_t>(image)] == kind[static_cast<size_t>(d)];
-                dperm[static_cast<size_t>(d)] = image;
+                int moved = domain_at[static_cast<size_t>(target_site)];
+                ok = kind[static_cast<size_t>(moved)] == kind[static_cast<size_t>(d)];
+                dperm[static_cast<size_t>(d)] = moved;
             }
             if (ok) keep.push_back({op.rotation, dperm});
         }

@@ -1,0 +1,15 @@
+# One warning set for every target of the project (library, front end, tests, benchmarks, fuzz targets).
+# -DREPEL_WERROR=ON turns them into errors; scripts/test.sh (the thorough tier, what CI runs) sets it. Only with GCC:
+# clang's -Wconversion also implies -Wsign-conversion, a stricter set the code is not written against.
+option(REPEL_WERROR "Treat compiler warnings as errors (GCC)" OFF)
+function(repel_warnings target)
+  target_compile_options(${target} PRIVATE -Wall -Wextra -Wpedantic -Wshadow -Wconversion)
+  # GCC 12 (Debian bookworm) reports -Wrestrict inside libstdc++ for `"text" + std::string(...)` at -O2 and above,
+  # a false positive fixed in GCC 13 (GCC bug 105329).
+  if(CMAKE_CXX_COMPILER_ID STREQUAL "GNU" AND CMAKE_CXX_COMPILER_VERSION VERSION_LESS 13)
+    target_compile_options(${target} PRIVATE -Wno-restrict)
+  endif()
+  if(REPEL_WERROR AND CMAKE_CXX_COMPILER_ID STREQUAL "GNU")
+    target_compile_options(${target} PRIVATE -Werror)
+  endif()
+endfunction()
