@@ -10,8 +10,10 @@ namespace repel {
 // satisfied). The library never prints and never exits; the front end turns this into a message and an exit status.
 class InputError : public std::runtime_error {
 public:
+    // Control bytes in the message (a NUL or an escape sequence quoted from a hostile file) are written as \xNN, so
+    // that the message prints whole and cannot drive a terminal.
     InputError(std::string what, std::string text = {}, int column = 0)
-        : std::runtime_error(std::move(what)), text_(std::move(text)), column_(column) {}
+        : std::runtime_error(printable(what)), text_(std::move(text)), column_(column) {}
 
     // The input text the error is about (one line), empty when there is none.
     const std::string& text() const { return text_; }
@@ -22,6 +24,7 @@ public:
     std::string describe() const;
 
 private:
+    static std::string printable(const std::string& s);
     std::string text_;
     int column_ = 0;
 };
