@@ -217,14 +217,17 @@ TEST(Pdb, HetatmFieldsAreInTheirColumns) {
     const auto lines = lines_of(write(Format::pdb, methyl(true), "methyl cation"));
     ASSERT_GE(lines.size(), 6u);
     EXPECT_EQ(lines[0], "TITLE     methyl cation" + std::string(80 - 23, ' '));
-    const std::string& c = lines[1];
+    // What format 3.3 has no field for, in a free-text remark (charge +1, singlet: the structure's own values).
+    const std::string remark = "REMARK   6 CHARGE 1 MULTIPLICITY 1";
+    EXPECT_EQ(lines[1], remark + std::string(80 - remark.size(), ' '));
+    const std::string& c = lines[2];
     ASSERT_EQ(c.size(), 80u);
     EXPECT_EQ(cols(c, 1, 6), "HETATM");
     EXPECT_EQ(cols(c, 7, 11), "    1");
     EXPECT_EQ(cols(c, 12, 12), " ");
     EXPECT_EQ(cols(c, 13, 16), " C1 ");  // one-letter element: symbol in column 14
     EXPECT_EQ(cols(c, 17, 17), " ");
-    EXPECT_EQ(cols(c, 18, 20), "UNL");
+    EXPECT_EQ(cols(c, 18, 20), "LIG");  // a wwPDB code kept for new ligands
     EXPECT_EQ(cols(c, 22, 22), "A");
     EXPECT_EQ(cols(c, 23, 26), "   1");
     EXPECT_EQ(cols(c, 31, 38), "   0.000");
@@ -235,9 +238,9 @@ TEST(Pdb, HetatmFieldsAreInTheirColumns) {
     EXPECT_EQ(cols(c, 67, 76), std::string(10, ' '));
     EXPECT_EQ(cols(c, 77, 78), " C");
     EXPECT_EQ(cols(c, 79, 80), "1+");
-    const std::string& h2 = lines[3];
+    const std::string& h2 = lines[4];
     EXPECT_EQ(cols(h2, 7, 11), "    3");
-    EXPECT_EQ(cols(h2, 13, 16), " H2 ");
+    EXPECT_EQ(cols(h2, 13, 16), " H3 ");  // the third atom of its residue
     EXPECT_EQ(cols(h2, 31, 38), "  -0.545");  // 1.09 cos(120 deg)
     EXPECT_EQ(cols(h2, 39, 46), "   0.944");  // 1.09 sin(120 deg)
     EXPECT_EQ(cols(h2, 77, 80), " H  ");
@@ -247,25 +250,25 @@ TEST(Pdb, HetatmFieldsAreInTheirColumns) {
 TEST(Pdb, NegativeChargeAndTwoDigitCharges) {
     Structure s = methyl(false);
     s.molecule.atoms[0].charge = -2;
-    EXPECT_EQ(cols(lines_of(write(Format::pdb, s, "x"))[1], 79, 80), "2-");
+    EXPECT_EQ(cols(lines_of(write(Format::pdb, s, "x"))[2], 79, 80), "2-");
     s.molecule.atoms[0].charge = 10;
     EXPECT_THROW(write(Format::pdb, s, "x"), std::runtime_error);
 }
 
 TEST(Pdb, AtomNamesAreUniqueAndAlignedPastNineHundredNinetyNine) {
     const auto lines = lines_of(write(Format::pdb, chain(1200), "chain"));
-    // lines[0] is TITLE; atom k (1-based) is lines[k].
-    EXPECT_EQ(cols(lines[9], 13, 16), " C9 ");
-    EXPECT_EQ(cols(lines[10], 13, 16), " C10");
-    EXPECT_EQ(cols(lines[99], 13, 16), " C99");
-    EXPECT_EQ(cols(lines[100], 13, 16), "C100");
-    EXPECT_EQ(cols(lines[999], 13, 16), "C999");  // four characters start in column 13
-    EXPECT_EQ(cols(lines[1000], 13, 16), "CA00");  // hybrid-36 for the number 1000 in 3 columns
-    EXPECT_EQ(cols(lines[1001], 13, 16), "CA01");
+    // lines[0] is TITLE, lines[1] REMARK 6; atom k (1-based) is lines[k + 1].
+    EXPECT_EQ(cols(lines[10], 13, 16), " C9 ");
+    EXPECT_EQ(cols(lines[11], 13, 16), " C10");
+    EXPECT_EQ(cols(lines[100], 13, 16), " C99");
+    EXPECT_EQ(cols(lines[101], 13, 16), "C100");
+    EXPECT_EQ(cols(lines[1000], 13, 16), "C999");  // four characters start in column 13
+    EXPECT_EQ(cols(lines[1001], 13, 16), "CA00");  // hybrid-36 for the number 1000 in 3 columns
+    EXPECT_EQ(cols(lines[1002], 13, 16), "CA01");
     std::set<std::string> names;
     for (int k = 1; k <= 1200; ++k) {
-        EXPECT_EQ(cols(lines[static_cast<size_t>(k)], 77, 78), " C");
-        names.insert(cols(lines[static_cast<size_t>(k)], 13, 16));
+        EXPECT_EQ(cols(lines[static_cast<size_t>(k) + 1], 77, 78), " C");
+        names.insert(cols(lines[static_cast<size_t>(k) + 1], 13, 16));
     }
     EXPECT_EQ(names.size(), 1200u);
 }
@@ -276,8 +279,8 @@ TEST(Pdb, TwoLetterElementStartsInColumnThirteen) {
     add(s, 6, {0, 0, 0});
     s.molecule.add_bond(0, add(s, 17, {1.77, 0, 0}));
     const auto lines = lines_of(write(Format::pdb, s, "x"));
-    EXPECT_EQ(cols(lines[2], 13, 16), "CL1 ");
-    EXPECT_EQ(cols(lines[2], 77, 78), "CL");
+    EXPECT_EQ(cols(lines[3], 13, 16), "CL2 ");  // the second atom of its residue
+    EXPECT_EQ(cols(lines[3], 77, 78), "CL");
 }
 
 TEST(Pdb, ConectForEveryBondBothWaysFourPartnersALine) {
@@ -300,13 +303,33 @@ TEST(Pdb, ConectForEveryBondBothWaysFourPartnersALine) {
     for (const auto& l : conect) EXPECT_EQ(l.size(), 80u);
 }
 
+TEST(Pdb, EachMoleculeOrIonIsAResidueAndWarningsGoToRemarks) {
+    if (!has_element(17) || !has_element(11)) GTEST_SKIP() << "the element table does not know Na or Cl";
+    Structure s;
+    add(s, 11, {0, 0, 0}, 1);
+    add(s, 17, {2.8, 0, 0}, -1);
+    s.molecule.add_bond(1, add(s, 1, {4.1, 0, 0}));  // a hand-made HCl- piece: two atoms, one residue
+    s.warnings = {std::string(100, 'w')};
+    const auto lines = lines_of(write(Format::pdb, s, "salt"));
+    ASSERT_GE(lines.size(), 7u);
+    EXPECT_EQ(lines[2].substr(0, 26), "REMARK   6 WARNING " + std::string(7, 'w'));
+    EXPECT_EQ(lines[3].substr(0, 11 + 100 - 61), "REMARK   6 " + std::string(100 - 61, 'w'));  // folded at 69
+    EXPECT_EQ(cols(lines[4], 13, 16), "NA1 ");
+    EXPECT_EQ(cols(lines[4], 23, 26), "   1");
+    EXPECT_EQ(cols(lines[5], 13, 16), "CL1 ");
+    EXPECT_EQ(cols(lines[5], 23, 26), "   2");
+    EXPECT_EQ(cols(lines[6], 13, 16), " H2 ");
+    EXPECT_EQ(cols(lines[6], 23, 26), "   2");
+}
+
 TEST(Pdb, LongTitleContinues) {
     const std::string title(150, 'c');
     const auto lines = lines_of(write(Format::pdb, methane(), title));
     EXPECT_EQ(lines[0], "TITLE     " + std::string(70, 'c'));
     EXPECT_EQ(lines[1], "TITLE    2 " + std::string(69, 'c'));
     EXPECT_EQ(lines[2].substr(0, 22), "TITLE    3 " + std::string(11, 'c'));
-    EXPECT_EQ(cols(lines[3], 1, 6), "HETATM");
+    EXPECT_EQ(cols(lines[3], 1, 10), "REMARK   6");
+    EXPECT_EQ(cols(lines[4], 1, 6), "HETATM");
 }
 
 // Hybrid-36 values from the cctbx hybrid-36 reference implementation's description (Grosse-Kunstleve and Adams,
@@ -334,12 +357,18 @@ TEST(Pdb, SerialsPastNinetyNineThousandNineHundredNinetyNineUseHybrid36) {
     for (int i = 0; i < n; ++i) add(s, zs[i % 3], {0.001 * (i % 1000), 0.01 * (i / 1000), 0});
     s.molecule.add_bond(n - 2, n - 1);
     const auto lines = lines_of(write(Format::pdb, s, "big"));
-    ASSERT_EQ(lines.size(), 1u + n + 2u + 1u);
-    EXPECT_EQ(cols(lines[99999], 7, 11), "99999");
-    EXPECT_EQ(cols(lines[100000], 7, 11), "A0000");
-    EXPECT_EQ(cols(lines[100001], 7, 11), "A0001");
-    EXPECT_EQ(lines[100002].substr(0, 16), "CONECTA0000A0001");
-    EXPECT_EQ(lines[100003].substr(0, 16), "CONECTA0001A0000");
+    ASSERT_EQ(lines.size(), 2u + n + 2u + 1u);
+    EXPECT_EQ(cols(lines[100000], 7, 11), "99999");
+    EXPECT_EQ(cols(lines[100001], 7, 11), "A0000");
+    EXPECT_EQ(cols(lines[100002], 7, 11), "A0001");
+    // every unbonded atom is a residue of its own: resSeq 9999, then hybrid-36 (A000 = 10000)
+    EXPECT_EQ(cols(lines[10000], 23, 26), "9999");
+    EXPECT_EQ(cols(lines[10001], 23, 26), "A000");
+    // the two bonded atoms at the end are one residue: H1, then C2
+    EXPECT_EQ(cols(lines[100001], 13, 16), " H1 ");
+    EXPECT_EQ(cols(lines[100002], 13, 16), " C2 ");
+    EXPECT_EQ(lines[100003].substr(0, 16), "CONECTA0000A0001");
+    EXPECT_EQ(lines[100004].substr(0, 16), "CONECTA0001A0000");
 }
 
 TEST(Pdb, CoordinatesThatDoNotFitTheFieldAreRefused) {

@@ -1,5 +1,6 @@
 // PDB writer, wwPDB PDB format 3.3 (Atomic Coordinate Entry Format Description, version 3.30, 2008): one complete
-// entry per record -- TITLE, one HETATM per atom, CONECT for every bond, END -- every line padded to 80 columns.
+// entry per record -- TITLE, REMARK 6 (charge, multiplicity, warnings), one HETATM per atom, CONECT for every bond,
+// END -- every line padded to 80 columns.
 //
 // Field positions (format 3.3, HETATM): 1-6 "HETATM", 7-11 serial, 13-16 atom name, 17 altLoc, 18-20 resName,
 // 22 chainID, 23-26 resSeq, 27 iCode, 31-38 / 39-46 / 47-54 x y z (8.3), 55-60 occupancy (6.2), 61-66 tempFactor
@@ -9,8 +10,16 @@
 // text after a blank column 11 (format 3.3, section 1, continuation of String fields; from memory).
 //
 // Choices made here:
-//  - The molecule is one residue: resName UNL (the wwPDB code for an unknown ligand), chain A, resSeq 1, all HETATM.
-//  - Atom names are the upper-case element symbol plus a running number per element (C1, C2, H1...), so they are
+//  - Each molecule or ion of the record (each connected piece: the cation and the anion of a salt, each water of a
+//    hydrate) is a residue of its own, numbered 1, 2, ... in resSeq, all HETATM, chain A. resName LIG: one of the
+//    codes the wwPDB keeps for new ligands and never gives to a component of the archive (wwPDB announcement on
+//    Chemical Component Dictionary codes, 2023), so a reader never mistakes the molecule for an archive component.
+//    A residue holds at most 1,971 atoms (the most a 4-column name can number after a two-letter symbol, below), so
+//    a larger piece is cut into consecutive residues of that size; when pieces' atoms are not consecutive in the
+//    record, the whole record is cut so (a residue's atoms are consecutive). Past 9,999 residues resSeq is written in
+//    hybrid-36 as the serials are.
+//  - Atom names are the upper-case element symbol plus the atom's position in its residue (water: O1, H2, H3), so
+//    a name says which atom of the input it is, as the numbers in `repel check` and `repel shape` do, and names are
 //    unique within the residue. Format 3.3 aligns the element symbol of the name: a one-letter symbol starts in
 //    column 14 (" C1 ", " H12") unless the name has four characters ("H123" starts in column 13); a two-letter symbol
 //    starts in column 13 ("CL1 ", "CL12").
@@ -20,9 +29,11 @@
 //    of a two-letter one) the running number in the atom name is hybrid-36 encoded in the same way, in the 3 (2)
 //    columns left to it ("C999", then "CA00"...): the name stays unique and 4 columns wide; the element of every atom
 //    is in columns 77-78, which is where format 3.3 says to read it. A structure past either range is refused.
-//  - Formal charges go to columns 79-80; format 3.3 has no field for the spin multiplicity or for warnings, so those
-//    are written only by the XYZ, SDF and JSON writers. Coordinates must fit the 8.3 fields (-999.999 .. 9999.999
-//    Angstrom); a structure that does not is refused rather than written with broken columns.
+//  - Formal charges go to columns 79-80. What format 3.3 has no field for goes to free-text REMARK 6 records
+//    (remarks 5-99 are free text in the format, from memory): "REMARK   6 CHARGE -1 MULTIPLICITY 1" always, then
+//    one "REMARK   6 WARNING ..." per warning, folded over further REMARK 6 lines at 69 columns of text.
+//    Coordinates must fit the 8.3 fields (-999.999 .. 9999.999 Angstrom); a structure that does not is refused
+//    rather than written with broken columns.
 #include <fmt/format.h>
 
 #include <algorithm>
@@ -73,6 +84,8 @@ constexpr int kTitleFirst = 70;      // TITLE text columns 11-80 on the first li
 constexpr int kTitleNext = 69;       // columns 12-80 on continuation lines
 constexpr int kMaxTitleLines = 99;   // the continuation number has two columns
 constexpr int kPartnersPerConect = 4;
+constexpr int kRemarkText = 69;      // REMARK text in columns 12-80
+constexpr int kMaxResidueAtoms = 99 + 2 * 26 * 36;  // names after a two-letter symbol: 99, then hybrid-36 in 2 columns
 
 std::string padded(std::string line) {
     if (line.size() < kLineWidth) line.append(kLineWidth - line.size(), ' ');
@@ -101,6 +114,58 @@ std::string title_records(const std::string& title) {
     return out;
 }
 
+// REMARK 6 lines: the record's charge and multiplicity, then each warning folded at kRemarkText columns.
+std::string remark_records(const Structure& structure) {
+    std::string out = padded(fmt::format("REMARK   6 CHARGE {} MULTIPLICITY {}", structure.charge,
+                                         structure.multiplicity));
+    for (const std::string& warning : structure.warnings) {
+        const std::string text = "WARNING " + one_line(warning, true);
+        for (size_t pos = 0; pos < text.size(); pos += kRemarkText)
+            out += padded("REMARK   6 " + text.substr(pos, kRemarkText));
+    }
+    return out;
+}
+
+// The residue (1-based) of every atom: one per connected piece when each piece's atoms are consecutive, else one
+// for the whole record; either cut into residues of at most kMaxResidueAtoms atoms.
+std::vector<int> residues(const Molecule& m) {
+    const int n = m.atom_count();
+    std::vector<int> root(static_cast<size_t>(n));
+    for (int i = 0; i < n; ++i) root[static_cast<size_t>(i)] = i;
+    auto find = [&](int i) {
+        while (root[static_cast<size_t>(i)] != i) {
+            root[static_cast<size_t>(i)] = root[static_cast<size_t>(root[static_cast<size_t>(i)])];
+            i = root[static_cast<size_t>(i)];
+        }
+        return i;
+    };
+    for (const Bond& b : m.bonds) {
+        const int x = find(b.a), y = find(b.b);
+        if (x != y) root[static_cast<size_t>(std::max(x, y))] = std::min(x, y);
+    }
+    std::vector<int> piece(static_cast<size_t>(n));
+    std::vector<char> seen(static_cast<size_t>(n), 0);
+    bool consecutive = true;
+    for (int i = 0; i < n; ++i) {
+        piece[static_cast<size_t>(i)] = find(i);
+        if (i > 0 && piece[static_cast<size_t>(i)] == piece[static_cast<size_t>(i - 1)]) continue;
+        consecutive = consecutive && !seen[static_cast<size_t>(piece[static_cast<size_t>(i)])];
+        seen[static_cast<size_t>(piece[static_cast<size_t>(i)])] = 1;
+    }
+    std::vector<int> residue(static_cast<size_t>(n));
+    int current = 0, size = 0;
+    for (int i = 0; i < n; ++i) {
+        const bool new_piece = i == 0 || (consecutive && piece[static_cast<size_t>(i)] != piece[static_cast<size_t>(i - 1)]);
+        if (new_piece || size == kMaxResidueAtoms) {
+            ++current;
+            size = 0;
+        }
+        ++size;
+        residue[static_cast<size_t>(i)] = current;
+    }
+    return residue;
+}
+
 // Columns 13-16: the atom name, aligned as format 3.3 aligns element symbols.
 std::string atom_name(std::string_view symbol, int number, int atom) {
     const std::string sym = upper(symbol);
@@ -110,9 +175,10 @@ std::string atom_name(std::string_view symbol, int number, int atom) {
         digits = hybrid36(width, number);
     } catch (const std::out_of_range&) {
         const int capacity = width == 3 ? 999 + 2 * 26 * 36 * 36 : 99 + 2 * 26 * 36;  // hybrid-36 range
-        throw std::runtime_error(fmt::format("cannot write PDB: atom {} is {} atom number {}, past the {} that a "
-                                             "4-column atom name can number uniquely; write SDF or XYZ instead",
-                                             atom + 1, symbol, number, capacity));
+        throw std::runtime_error(fmt::format("cannot write PDB: atom {} ({}) is atom {} of its residue, past the {} "
+                                             "that a 4-column atom name can number after a {}-letter symbol; write "
+                                             "SDF or XYZ instead",
+                                             atom + 1, symbol, number, capacity, sym.size()));
     }
     digits.erase(0, digits.find_first_not_of(' '));
     const std::string name = sym + digits;
@@ -150,6 +216,17 @@ std::string serial(int atom) {
     }
 }
 
+// Columns 23-26: resSeq, hybrid-36 past 9,999 (up to 2,436,111 residues).
+std::string residue_number(int residue) {
+    try {
+        return hybrid36(4, residue);
+    } catch (const std::out_of_range&) {
+        throw std::runtime_error(fmt::format("cannot write PDB: {} residues are more than the 2,436,111 that hybrid-36 "
+                                             "residue numbers can number; write SDF or XYZ instead",
+                                             residue));
+    }
+}
+
 }  // namespace
 
 std::string PdbWriter::record(const Structure& structure, const std::string& title) const {
@@ -160,17 +237,19 @@ std::string PdbWriter::record(const Structure& structure, const std::string& tit
     std::vector<std::string> serials(static_cast<size_t>(n));
     for (int i = 0; i < n; ++i) serials[static_cast<size_t>(i)] = serial(i);
 
-    std::string out = title_records(title);
-    std::array<int, kMaxElement + 1> per_element{};
+    std::string out = title_records(title) + remark_records(structure);
+    const std::vector<int> residue = residues(m);
+    int in_residue = 0;
     for (int i = 0; i < n; ++i) {
         const Atom& atom = m.atoms[static_cast<size_t>(i)];
         const Eigen::Vector3d& p = structure.positions[static_cast<size_t>(i)];
         const std::string_view symbol = symbol_of(structure, i);
-        const std::string name = atom_name(symbol, ++per_element[static_cast<size_t>(atom.z)], i);
-        out += fmt::format("HETATM{:>5} {:4} UNL A   1    {:8.3f}{:8.3f}{:8.3f}{:6.2f}{:6.2f}          {:>2}{:2}\n",
-                           serials[static_cast<size_t>(i)], name, coordinate(p.x(), i, 'x'),
-                           coordinate(p.y(), i, 'y'), coordinate(p.z(), i, 'z'), 1.0, 0.0, upper(symbol),
-                           charge_field(atom.charge, i));
+        in_residue = i > 0 && residue[static_cast<size_t>(i)] == residue[static_cast<size_t>(i - 1)] ? in_residue + 1 : 1;
+        const std::string name = atom_name(symbol, in_residue, i);
+        out += fmt::format("HETATM{:>5} {:4} LIG A{:>4}    {:8.3f}{:8.3f}{:8.3f}{:6.2f}{:6.2f}          {:>2}{:2}\n",
+                           serials[static_cast<size_t>(i)], name, residue_number(residue[static_cast<size_t>(i)]),
+                           coordinate(p.x(), i, 'x'), coordinate(p.y(), i, 'y'), coordinate(p.z(), i, 'z'), 1.0, 0.0,
+                           upper(symbol), charge_field(atom.charge, i));
     }
 
     std::vector<std::vector<int>> partners(static_cast<size_t>(n));

@@ -204,7 +204,7 @@ def check_pdb(sample, path, name):
     check(dev <= TOL['pdb'], f'{name}: ASE positions differ by {dev}')
     names = list(atoms.arrays.get('atomtypes', []))
     check(len(names) == len(set(names)) == len(sample['elements']), f'{name}: atom names not unique')
-    check(set(atoms.arrays.get('residuenames', [])) <= {'UNL ', 'UNL'}, f'{name}: residue names')
+    check(set(atoms.arrays.get('residuenames', [])) <= {'LIG ', 'LIG'}, f'{name}: residue names (LIG, a wwPDB code kept for new ligands)')
     with open(path) as f:
         text = f.read()
     check(all(len(line) == 80 for line in text.split('\n') if line), f'{name}: a line is not 80 columns')
