@@ -279,12 +279,12 @@ int run_batch(const BuildArgs& args, const StructureWriter& writer, const BuildO
     }
     if (out->resumed())
         std::cerr << fmt::format("repel build: resuming after input record {} ({} built, {} failed so far)\n",
-                                 out->skip(), out->built(), out->failed());
+                                 out->records_done_before(), out->built(), out->failed());
 
     std::unique_ptr<batch::RecordSource> source;
     if (sdf) source = std::make_unique<SdfSource>(*in);
     else source = std::make_unique<SmiSource>(*in);
-    batch::ChunkReader reader(*source, shard, out->skip(), batch::ChunkLimits{}, &stop_requested);
+    batch::ChunkReader reader(*source, shard, out->records_done_before(), batch::ChunkLimits{}, &stop_requested);
 
     stop_requested = false;
     auto old_int = std::signal(SIGINT, on_stop_signal);
@@ -310,7 +310,7 @@ int run_batch(const BuildArgs& args, const StructureWriter& writer, const BuildO
                                      static_cast<int>(stop_signal), reader.consumed(),
                                      args.output_file.empty() ? ""
                                                               : "; run the same command with --resume to continue");
-            std::cerr << fmt::format("read {}, built {}, failed {}\n", out->read(), out->built(), out->failed());
+            std::cerr << fmt::format("read {}, built {}, failed {}\n", out->records_read(), out->built(), out->failed());
             return 2;
         }
         out->finish();
@@ -323,7 +323,7 @@ int run_batch(const BuildArgs& args, const StructureWriter& writer, const BuildO
     }
     std::signal(SIGINT, old_int);
     std::signal(SIGTERM, old_term);
-    std::cerr << fmt::format("read {}, built {}, failed {}\n", out->read(), out->built(), out->failed());
+    std::cerr << fmt::format("read {}, built {}, failed {}\n", out->records_read(), out->built(), out->failed());
     return out->failed() > 0 ? 1 : 0;
 }
 

@@ -182,10 +182,10 @@ TEST(BatchOutput, ResumeContinuesAtTheCheckpointByteForByte) {
     {
         CountingSource src(100);
         BatchOutput out(options("straight", false));
-        ChunkReader reader(src, {}, out.skip(), ChunkLimits{7, 1u << 20});
+        ChunkReader reader(src, {}, out.records_done_before(), ChunkLimits{7, 1u << 20});
         run_threaded(reader, build, [&](Chunk& c) { out.write(c); }, 2);
         out.finish();
-        EXPECT_EQ(out.read(), 100);
+        EXPECT_EQ(out.records_read(), 100);
         EXPECT_EQ(out.failed(), 20);
     }
     {
@@ -204,11 +204,11 @@ TEST(BatchOutput, ResumeContinuesAtTheCheckpointByteForByte) {
         CountingSource src(100);
         BatchOutput out(options("cut", true));
         EXPECT_TRUE(out.resumed());
-        EXPECT_EQ(out.skip(), 28);
-        ChunkReader reader(src, {}, out.skip(), ChunkLimits{7, 1u << 20});
+        EXPECT_EQ(out.records_done_before(), 28);
+        ChunkReader reader(src, {}, out.records_done_before(), ChunkLimits{7, 1u << 20});
         run_threaded(reader, build, [&](Chunk& c) { out.write(c); }, 2);
         out.finish();
-        EXPECT_EQ(out.read(), 100);
+        EXPECT_EQ(out.records_read(), 100);
         EXPECT_EQ(out.built(), 80);
     }
     EXPECT_EQ(slurp(dir + "/cut.json"), slurp(dir + "/straight.json"));

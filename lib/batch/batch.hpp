@@ -166,14 +166,15 @@ public:
     BatchOutput(const BatchOutput&) = delete;
     BatchOutput& operator=(const BatchOutput&) = delete;
     // The records of the input already done by a previous run (0 when not resuming or no checkpoint).
-    long skip() const { return resumed_.consumed; }
+    long records_done_before() const { return resumed_.consumed; }
     bool resumed() const { return resumed_from_checkpoint_; }
     void write(Chunk& chunk);
     // Writes the end, renames the files into place and removes the checkpoint.
     void finish();
     // Leaves the partial files and the checkpoint for --resume.
     void interrupt();
-    long read() const { return counts_.read; }
+    // Records read, built and failed so far, the resumed run's included.
+    long records_read() const { return counts_.read; }
     long built() const { return counts_.built; }
     long failed() const { return counts_.failed; }
     std::string checkpoint_path() const { return checkpoint_path_; }

@@ -4,7 +4,7 @@
 // locations only the blank one and the first letter seen are kept. CONECT (serial 7-11, bonded serials 12-16, 17-21,
 // 22-26, 27-31) gives connectivity without bond orders; a bond listed twice is one bond. Structures are separated by
 // MODEL/ENDMDL or by END; TITLE/COMPND give the title. Other records are ignored.
-#include "input/pdb_reader.hpp"
+#include "input/structure_reader.hpp"
 
 #include <fmt/format.h>
 

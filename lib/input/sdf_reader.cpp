@@ -8,7 +8,7 @@
 //         RAD= keywords) and the BOND block (index, type, atom 1, atom 2); a line ending in '-' continues.
 // Data items may follow `M  END` until `$$$$`. RAD: 1 singlet (two electrons unpaired-free, counted as none), 2
 // doublet (one unpaired electron), 3 triplet (two).
-#include "input/sdf_reader.hpp"
+#include "input/structure_reader.hpp"
 
 #include <fmt/format.h>
 

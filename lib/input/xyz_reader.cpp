@@ -3,7 +3,7 @@
 // Frames follow one another; blank lines after the last frame are allowed. From the comment line, `charge=<int>` and
 // `multiplicity=<int>` (also `mult=`) are read when present (a malformed value is an error), and `name="..."` is
 // taken as the title; otherwise the whole comment is the title.
-#include "input/xyz_reader.hpp"
+#include "input/structure_reader.hpp"
 
 #include <fmt/format.h>
 
