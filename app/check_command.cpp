@@ -78,8 +78,8 @@ int run_check(const CheckArgs& args) {
     const bool several = args.files.size() > 1;
 
     AuditOptions options;
-    options.angle_rms = args.angle_rms;
-    options.angle_worst = args.angle_rms;  // the same limit for the worst single angle (audit.hpp)
+    options.angle_rms = args.angle_threshold;
+    options.angle_worst = args.angle_threshold;  // the same limit for the worst single angle (audit.hpp)
     options.bond_deviation = args.bond_deviation;
     options.contact_fraction = args.contact_fraction;
     options.perception.tolerance = args.tolerance;

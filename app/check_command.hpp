@@ -13,7 +13,7 @@ struct CheckArgs {
     bool json = false;                // --json: one JSON document
     std::optional<int> charge;        // --charge (default: the file's, else 0)
     std::optional<int> multiplicity;  // --multiplicity (default: none; unpaired electrons are findings)
-    double angle_rms = 15.0;          // --angle-threshold: degrees RMS from the predicted angles
+    double angle_threshold = 15.0;    // --angle-threshold: degrees, the RMS and the worst angle from the predicted ones
     double bond_deviation = 0.12;     // --bond-threshold: Angstrom from the expected bond length (audit.hpp)
     double contact_fraction = 0.6;    // --contact-fraction: of the van der Waals contact distance
     double tolerance = 0.45;          // --bond-tolerance: Angstrom added to the covalent radii for perception

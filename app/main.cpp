@@ -106,7 +106,7 @@ int run(int argc, char** argv) {
                                            "spin multiplicity (default: none; unpaired electrons are findings)")
                          ->check(CLI::PositiveNumber);
     cmd_check->add_flag("--json", check.json, "one JSON document, whatever the verdict");
-    cmd_check->add_option("--angle-threshold", check.angle_rms, "degrees RMS from the predicted angles at a centre, and for its worst single angle")
+    cmd_check->add_option("--angle-threshold", check.angle_threshold, "degrees RMS from the predicted angles at a centre, and for its worst single angle")
         ->capture_default_str();
     cmd_check->add_option("--bond-threshold", check.bond_deviation, "Angstrom from the expected bond length between atoms of the first two periods (twice it with a heavier atom)")
         ->capture_default_str();
