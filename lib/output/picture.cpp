@@ -293,7 +293,26 @@ std::vector<std::string> centre_captions(const Molecule& m, const MoleculeDomain
     return lines;
 }
 
-std::string picture_svg(const Structure& s, const PictureOptions& o) {
+namespace {
+
+// The drawing's frame: the view, each atom's rotated position, the scale and offsets from Angstrom to pixels, and the
+// depth range that sets fog and shrinking.
+struct Frame {
+    std::vector<Eigen::Vector3d> q;     // rotated positions, Angstrom
+    std::vector<Eigen::Vector3d> tips;  // lobe tips, rotated, one per lobe on a valid centre
+    double xmin = 0, xmax = 0, ymin = 0, ymax = 0, zmin = 0, zmax = 0;
+    double width = 0, scale = 0, ox = 0, oy = 0, margin = 24;
+
+    double sx(const Eigen::Vector3d& p) const { return ox + p.x() * scale; }
+    double sy(const Eigen::Vector3d& p) const { return oy - p.y() * scale; }  // SVG y grows downward
+    double nearness(double z) const { return zmax - zmin < 1e-6 ? 1.0 : (z - zmin) / (zmax - zmin); }  // 0 far .. 1 near
+    int level(double z) const { return static_cast<int>(std::lround(nearness(z) * (kFogLevels - 1))); }
+    double shrink(double z) const { return 1.0 - kFarShrink * (1.0 - nearness(z)); }
+    static Rgb fogged(const Rgb& c, int lv) { return mix(c, kPaperRgb, kFarFog * (1.0 - lv / double(kFogLevels - 1))); }
+};
+
+// Checks the structure can be drawn, and which atoms are shown.
+std::vector<char> shown_atoms(const Structure& s, const PictureOptions& o) {
     const Molecule& m = s.molecule;
     const int n = m.atom_count();
     if (static_cast<int>(s.positions.size()) != n)
@@ -306,7 +325,13 @@ std::string picture_svg(const Structure& s, const PictureOptions& o) {
     if (!o.hydrogens)
         for (int i = 0; i < n; ++i)
             if (m.atoms[static_cast<size_t>(i)].z == 1) shown[static_cast<size_t>(i)] = 0;
+    return shown;
+}
 
+// The view (principal axes, tilted on request), and the scale that fits what is drawn (balls and lobe tips).
+Frame frame_for(const Structure& s, const PictureOptions& o, const std::vector<char>& shown) {
+    const Molecule& m = s.molecule;
+    const int n = m.atom_count();
     std::vector<Eigen::Vector3d> pts;
     for (int i = 0; i < n; ++i)
         if (shown[static_cast<size_t>(i)]) pts.push_back(s.positions[static_cast<size_t>(i)]);
@@ -319,58 +344,57 @@ std::string picture_svg(const Structure& s, const PictureOptions& o) {
         about_y << std::cos(u), 0, std::sin(u), 0, 1, 0, -std::sin(u), 0, std::cos(u);
         view.rotation = about_y * about_x * view.rotation;
     }
-    std::vector<Eigen::Vector3d> q(static_cast<size_t>(n));
-    for (int i = 0; i < n; ++i) q[static_cast<size_t>(i)] = view.rotation * (s.positions[static_cast<size_t>(i)] - view.centre);
+    Frame f;
+    f.q.resize(static_cast<size_t>(n));
+    for (int i = 0; i < n; ++i) f.q[static_cast<size_t>(i)] = view.rotation * (s.positions[static_cast<size_t>(i)] - view.centre);
 
     // Extent in Angstrom of what is drawn (balls and lobe tips), to fit the drawing.
-    double xmin = 0, xmax = 0, ymin = 0, ymax = 0, zmin = 0, zmax = 0;
     bool any = false;
     auto grow = [&](const Eigen::Vector3d& p, double r) {
         if (!any) {
-            xmin = p.x() - r, xmax = p.x() + r, ymin = p.y() - r, ymax = p.y() + r, zmin = zmax = p.z();
+            f.xmin = p.x() - r, f.xmax = p.x() + r, f.ymin = p.y() - r, f.ymax = p.y() + r, f.zmin = f.zmax = p.z();
             any = true;
             return;
         }
-        xmin = std::min(xmin, p.x() - r), xmax = std::max(xmax, p.x() + r);
-        ymin = std::min(ymin, p.y() - r), ymax = std::max(ymax, p.y() + r);
-        zmin = std::min(zmin, p.z()), zmax = std::max(zmax, p.z());
+        f.xmin = std::min(f.xmin, p.x() - r), f.xmax = std::max(f.xmax, p.x() + r);
+        f.ymin = std::min(f.ymin, p.y() - r), f.ymax = std::max(f.ymax, p.y() + r);
+        f.zmin = std::min(f.zmin, p.z()), f.zmax = std::max(f.zmax, p.z());
     };
     for (int i = 0; i < n; ++i)
-        if (shown[static_cast<size_t>(i)]) grow(q[static_cast<size_t>(i)], picture_ball_radius(m.atoms[static_cast<size_t>(i)].z));
-    std::vector<Eigen::Vector3d> tips;
+        if (shown[static_cast<size_t>(i)]) grow(f.q[static_cast<size_t>(i)], picture_ball_radius(m.atoms[static_cast<size_t>(i)].z));
     for (const Lobe& l : o.lobes) {
         if (l.centre < 0 || l.centre >= n) continue;
         const double reach = picture_ball_radius(m.atoms[static_cast<size_t>(l.centre)].z) + kLobeReach;
-        tips.push_back(q[static_cast<size_t>(l.centre)] + view.rotation * l.direction * reach);
-        grow(tips.back(), kLobeWidth);
+        f.tips.push_back(f.q[static_cast<size_t>(l.centre)] + view.rotation * l.direction * reach);
+        grow(f.tips.back(), kLobeWidth);
     }
-    const double margin = 24;
-    const double width = std::max(240, o.width);
-    const double spread_x = std::max(xmax - xmin, 1.0), spread_y = std::max(ymax - ymin, 1.0);
+    f.width = std::max(240, o.width);
+    const double spread_x = std::max(f.xmax - f.xmin, 1.0), spread_y = std::max(f.ymax - f.ymin, 1.0);
     // At most 70 px per Angstrom (a small molecule is not blown up), and never taller than wide.
-    double scale = std::min(70.0, (width - 2 * margin) / spread_x);
-    scale = std::min(scale, (width - 2 * margin) / spread_y);
+    f.scale = std::min(70.0, (f.width - 2 * f.margin) / spread_x);
+    f.scale = std::min(f.scale, (f.width - 2 * f.margin) / spread_y);
     const double title_h = o.title.empty() ? 0 : 30;
-    const double draw_w = spread_x * scale;
-    const double ox = (width - draw_w) / 2 - xmin * scale;
-    const double oy = margin + title_h + ymax * scale;  // SVG y grows downward
-    auto sx = [&](const Eigen::Vector3d& p) { return ox + p.x() * scale; };
-    auto sy = [&](const Eigen::Vector3d& p) { return oy - p.y() * scale; };
-    const double zspan = zmax - zmin;
-    auto nearness = [&](double z) { return zspan < 1e-6 ? 1.0 : (z - zmin) / zspan; };  // 0 far .. 1 near
-    auto level = [&](double z) { return static_cast<int>(std::lround(nearness(z) * (kFogLevels - 1))); };
-    auto shrink = [&](double z) { return 1.0 - kFarShrink * (1.0 - nearness(z)); };
-    auto fogged = [&](const Rgb& c, int lv) { return mix(c, kPaperRgb, kFarFog * (1.0 - lv / double(kFogLevels - 1))); };
+    const double draw_w = spread_x * f.scale;
+    f.ox = (f.width - draw_w) / 2 - f.xmin * f.scale;
+    f.oy = f.margin + title_h + f.ymax * f.scale;
+    return f;
+}
 
-    // Legend and caption rows below the drawing: the height depends on them.
-    struct LegendEntry {
-        std::string kind, text;
-        int z = 0;
-    };
-    std::vector<LegendEntry> legend;
-    std::set<int> elements;
-    for (int i = 0; i < n; ++i)
-        if (shown[static_cast<size_t>(i)]) elements.insert(m.atoms[static_cast<size_t>(i)].z);
+// The legend below the drawing: what is drawn, laid out in rows.
+struct LegendEntry {
+    std::string kind, text;
+    int z = 0;
+};
+struct Legend {
+    std::vector<LegendEntry> entries;
+    std::vector<std::pair<double, double>> positions;  // offsets from the legend's top left
+    int rows = 0;
+};
+
+Legend legend_for(const Molecule& m, const PictureOptions& o, const std::vector<char>& shown,
+                  const std::set<int>& elements, double width, double margin) {
+    const int n = m.atom_count();
+    Legend legend;
     std::set<int> orders;
     bool aromatic = false;
     for (const Bond& b : m.bonds) {
@@ -388,257 +412,299 @@ std::string picture_svg(const Structure& s, const PictureOptions& o) {
             auto rank = [](int z) { return z == 6 ? 0 : z == 1 ? 1 : 2; };
             return rank(a) < rank(b);
         });
-        for (int z : els) legend.push_back({"element", std::string(element(z).symbol), z});
+        for (int z : els) legend.entries.push_back({"element", std::string(element(z).symbol), z});
         static const char* kOrderNames[] = {"", "single bond", "double bond", "triple bond"};
-        for (int k : orders) legend.push_back({"order" + std::to_string(k), kOrderNames[k]});
-        if (aromatic) legend.push_back({"aromatic", "aromatic bond"});
-        if (lone_pairs) legend.push_back({"lone-pair", "lone pair (two dots)"});
-        if (single_electrons) legend.push_back({"single-electron", "single electron (one dot)"});
-        if (!o.marked.empty()) legend.push_back({"marker", "atom named in a finding"});
-        legend.push_back({"depth", "fainter and smaller: farther away"});
+        for (int k : orders) legend.entries.push_back({"order" + std::to_string(k), kOrderNames[k]});
+        if (aromatic) legend.entries.push_back({"aromatic", "aromatic bond"});
+        if (lone_pairs) legend.entries.push_back({"lone-pair", "lone pair (two dots)"});
+        if (single_electrons) legend.entries.push_back({"single-electron", "single electron (one dot)"});
+        if (!o.marked.empty()) legend.entries.push_back({"marker", "atom named in a finding"});
+        legend.entries.push_back({"depth", "fainter and smaller: farther away"});
     }
     // Lay the legend out in rows (an estimated text width: 7 px a character at 12 px).
-    std::vector<std::pair<double, double>> legend_pos;
     double lx = margin, ly = 0;
-    int legend_rows = legend.empty() ? 0 : 1;
-    for (const LegendEntry& e : legend) {
+    legend.rows = legend.entries.empty() ? 0 : 1;
+    for (const LegendEntry& e : legend.entries) {
         const double w = 26 + 7.0 * static_cast<double>(e.text.size()) + 16;
         if (lx + w > width - margin && lx > margin) {
             lx = margin;
             ly += 22;
-            ++legend_rows;
+            ++legend.rows;
         }
-        legend_pos.emplace_back(lx, ly);
+        legend.positions.emplace_back(lx, ly);
         lx += w;
     }
-    const double below = oy + (-ymin) * scale + 16;
-    const double captions_h = 18.0 * static_cast<double>(o.captions.size());
-    const double legend_top = below + captions_h + (o.captions.empty() ? 0 : 8);
-    const double height = legend_top + 22.0 * legend_rows + margin - 6;
+    return legend;
+}
 
-    std::string out;
-    out.reserve(static_cast<size_t>(n) * 260 + 4096);
-    auto append = [&]<typename... A>(fmt::format_string<A...> f, A&&... args) {
-        fmt::format_to(std::back_inserter(out), f, std::forward<A>(args)...);
-    };
-    append("<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n");
-    append("<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{:.0f}\" height=\"{:.0f}\" viewBox=\"0 0 {:.0f} {:.0f}\" "
-           "font-family=\"sans-serif\" data-atoms=\"{}\" data-scale=\"{:.3f}\">\n",
-           width, height, width, height, n, scale);
-    append("<title>{}</title>\n", escape(o.title.empty() ? std::string("repel picture") : o.title));
-    append("<rect width=\"100%\" height=\"100%\" fill=\"{}\"/>\n", kPaper);
+template <typename... A>
+void append_to(std::string& out, fmt::format_string<A...> f, A&&... args) {
+    fmt::format_to(std::back_inserter(out), f, std::forward<A>(args)...);
+}
 
-    // One radial gradient per element and depth level actually used: light from the upper left.
-    std::set<std::pair<int, int>> used;
-    for (int i = 0; i < n; ++i)
-        if (shown[static_cast<size_t>(i)]) used.insert({m.atoms[static_cast<size_t>(i)].z, level(q[static_cast<size_t>(i)].z())});
-    for (int z : elements) used.insert({z, kFogLevels - 1});  // the legend's swatches
-    append("<defs>\n");
-    for (const auto& [z, lv] : used) {
-        const Rgb base = fogged(colour_of(z), lv);
-        append("<radialGradient id=\"g{}-{}\" cx=\"0.5\" cy=\"0.5\" r=\"0.5\" fx=\"0.33\" fy=\"0.3\">"
-               "<stop offset=\"0\" stop-color=\"{}\"/><stop offset=\"0.5\" stop-color=\"{}\"/>"
-               "<stop offset=\"1\" stop-color=\"{}\"/></radialGradient>\n",
-               z, lv, hex(mix(base, kWhite, 0.6)), hex(base), hex(mix(base, kBlack, 0.45)));
+// One bond: one stick per bond order (two for aromatic), each half in its atom's colour.
+void draw_bond(std::string& out, const Frame& f, const Molecule& m, int index, double depth) {
+    const Bond& bond = m.bonds[static_cast<size_t>(index)];
+    const Eigen::Vector3d& pa = f.q[static_cast<size_t>(bond.a)];
+    const Eigen::Vector3d& pb = f.q[static_cast<size_t>(bond.b)];
+    const double ax = f.sx(pa), ay = f.sy(pa), bx = f.sx(pb), by = f.sy(pb);
+    double dx = bx - ax, dy = by - ay;
+    const double len = std::hypot(dx, dy);
+    if (len > 1e-9) dx /= len, dy /= len;
+    else dx = 1, dy = 0;
+    const double px = -dy, py = dx;  // perpendicular in the drawing plane
+    const double shrink = f.shrink(depth);
+    const int lv = f.level(depth);
+    const int sticks = bond.aromatic ? 2 : std::clamp(bond.order, 1, 3);
+    // Never thinner than half a pixel or smaller than a pixel across: a long structure drawn small stays
+    // visible as a trace of its atoms.
+    const double w = std::max(0.5, kStickWidth * f.scale * shrink * (sticks == 1 ? 1.0 : 0.72));
+    const double mx = (ax + bx) / 2, my = (ay + by) / 2;
+    const std::string ca = hex(mix(Frame::fogged(colour_of(m.atoms[static_cast<size_t>(bond.a)].z), lv), kBlack, 0.12));
+    const std::string cb = hex(mix(Frame::fogged(colour_of(m.atoms[static_cast<size_t>(bond.b)].z), lv), kBlack, 0.12));
+    append_to(out, "<g class=\"bond\" data-bond=\"{}\" data-order=\"{}\"{}>", index + 1, bond.order,
+              bond.aromatic ? " data-aromatic=\"1\"" : "");
+    // An aromatic bond: the solid stick on the bond line (in line with the single bonds) and the dashed one
+    // on the side of its ring (where another aromatic neighbour of the first atom lies).
+    double ring_side = 0;
+    if (bond.aromatic) {
+        for (const Neighbor& nb : m.neighbors(bond.a)) {
+            if (nb.atom == bond.b || !m.bonds[static_cast<size_t>(nb.bond)].aromatic) continue;
+            const Eigen::Vector3d& pc = f.q[static_cast<size_t>(nb.atom)];
+            ring_side = (f.sx(pc) - ax) * px + (f.sy(pc) - ay) * py >= 0 ? 1 : -1;
+            break;
+        }
     }
-    append("</defs>\n");
-    if (!o.title.empty())
-        append("<text x=\"{:.0f}\" y=\"{:.0f}\" font-size=\"16\" fill=\"{}\" class=\"title\">{}</text>\n", margin,
-               margin + 10, kInk, escape(fit_line(o.title, width - 2 * margin, 9.0)));
+    for (int k = 0; k < sticks; ++k) {
+        const double off = ring_side != 0 ? k * ring_side * kStickGap * 1.15 * f.scale * shrink
+                                          : (k - (sticks - 1) / 2.0) * kStickGap * f.scale * shrink;
+        const char* dash = (bond.aromatic && k == 1) ? " stroke-dasharray=\"3 3\"" : "";
+        append_to(out, "<line x1=\"{:.1f}\" y1=\"{:.1f}\" x2=\"{:.1f}\" y2=\"{:.1f}\" stroke=\"{}\" stroke-width=\"{:.1f}\"{}/>",
+                  ax + px * off, ay + py * off, mx + px * off, my + py * off, ca, w, dash);
+        append_to(out, "<line x1=\"{:.1f}\" y1=\"{:.1f}\" x2=\"{:.1f}\" y2=\"{:.1f}\" stroke=\"{}\" stroke-width=\"{:.1f}\"{}/>",
+                  mx + px * off, my + py * off, bx + px * off, by + py * off, cb, w, dash);
+    }
+    append_to(out, "</g>\n");
+}
 
-    // Everything in the drawing, far to near (painter's order). A bond sits at the depth of its farther atom and goes
-    // before a ball at the same depth, so both of its balls cover its ends (a flat molecule has every bond under its
-    // atoms).
+// One lone pair or single electron: a lobe from its centre with two dots (a pair) or one (a single electron).
+void draw_lobe(std::string& out, const Frame& f, const Lobe& l, const Eigen::Vector3d& tip, double depth) {
+    const Eigen::Vector3d& c = f.q[static_cast<size_t>(l.centre)];
+    const double shrink = f.shrink(depth);
+    const double cx = f.sx(c), cy = f.sy(c), tx = f.sx(tip), ty = f.sy(tip);
+    const double half = std::hypot(tx - cx, ty - cy) / 2;
+    const double w = kLobeWidth * f.scale * shrink;
+    const double rx = std::max(half, w), ry = w;
+    const double angle = std::atan2(ty - cy, tx - cx) * 180.0 / std::numbers::pi;
+    const double ex = (cx + tx) / 2, ey = (cy + ty) / 2;
+    const char* colour = l.single_electron ? kSingleElectron : kLonePair;
+    const double fade = 0.45 + 0.4 * f.nearness(depth);
+    append_to(out, "<g class=\"lobe-group\"><ellipse class=\"lobe {}\" data-centre=\"{}\" data-direction=\"{:.4f} {:.4f} {:.4f}\" "
+              "cx=\"{:.1f}\" cy=\"{:.1f}\" rx=\"{:.1f}\" ry=\"{:.1f}\" transform=\"rotate({:.1f} {:.1f} {:.1f})\" "
+              "fill=\"{}\" fill-opacity=\"{:.2f}\" stroke=\"{}\" stroke-opacity=\"{:.2f}\" stroke-width=\"1.2\"/>",
+              l.single_electron ? "single-electron" : "lone-pair", l.centre + 1, l.direction.x(), l.direction.y(),
+              l.direction.z(), ex, ey, rx, ry, angle, ex, ey, colour, 0.35 * fade + 0.1, colour, fade);
+    // The electrons: two dots across a lone pair, one for a single electron, near the lobe's outer end.
+    const double ux = half > 1e-9 ? (tx - cx) / (2 * half) : 0, uy = half > 1e-9 ? (ty - cy) / (2 * half) : 0;
+    const double dotx = ex + ux * rx * 0.35, doty = ey + uy * rx * 0.35;
+    const double dr = std::max(1.2, 0.07 * f.scale * shrink);
+    if (l.single_electron) {
+        append_to(out, "<circle cx=\"{:.1f}\" cy=\"{:.1f}\" r=\"{:.1f}\" fill=\"{}\" fill-opacity=\"{:.2f}\"/>", dotx, doty,
+                  dr, colour, fade);
+    } else {
+        const double gx = -uy * w * 0.45, gy = ux * w * 0.45;
+        const double sepx = half > 1e-9 ? gx : w * 0.45, sepy = half > 1e-9 ? gy : 0;
+        append_to(out, "<circle cx=\"{:.1f}\" cy=\"{:.1f}\" r=\"{:.1f}\" fill=\"{}\" fill-opacity=\"{:.2f}\"/>"
+                  "<circle cx=\"{:.1f}\" cy=\"{:.1f}\" r=\"{:.1f}\" fill=\"{}\" fill-opacity=\"{:.2f}\"/>",
+                  dotx + sepx, doty + sepy, dr, colour, fade, dotx - sepx, doty - sepy, dr, colour, fade);
+    }
+    append_to(out, "</g>\n");
+}
+
+// How an atom is labelled: marked (a finding names it), numbered (a caption names it), or its symbol (a heteroatom).
+struct AtomLabels {
+    std::vector<char> marked, labelled;
+    bool heteroatoms = true;
+};
+
+// One atom: a shaded ball, and its label; a marked atom's marker and label go to `overlay` (drawn on top).
+void draw_atom(std::string& out, std::string& overlay, const Frame& f, const Molecule& m, int i, const AtomLabels& labels) {
+    const int n = m.atom_count();
+    const int z = m.atoms[static_cast<size_t>(i)].z;
+    const Eigen::Vector3d& p = f.q[static_cast<size_t>(i)];
+    const double r = std::max(0.6, picture_ball_radius(z) * f.scale * f.shrink(p.z()));
+    const int lv = f.level(p.z());
+    const double x = f.sx(p), y = f.sy(p);
+    append_to(out, "<circle class=\"atom\" data-atom=\"{}\" data-element=\"{}\" cx=\"{:.1f}\" cy=\"{:.1f}\" r=\"{:.1f}\" "
+              "fill=\"url(#g{}-{})\"/>\n",
+              i + 1, element(z).symbol, x, y, r, z, lv);
+    if (labels.marked[static_cast<size_t>(i)] != 0) {
+        // Markers go on top of everything (drawn after the drawing), so a nearer atom never hides one.
+        append_to(overlay,
+                  "<circle class=\"marker\" data-atom=\"{}\" cx=\"{:.1f}\" cy=\"{:.1f}\" r=\"{:.1f}\" "
+                  "fill=\"none\" stroke=\"{}\" stroke-width=\"2.5\" stroke-dasharray=\"5 3\"/>\n"
+                  "<text class=\"label\" x=\"{:.1f}\" y=\"{:.1f}\" font-size=\"12\" font-weight=\"bold\" "
+                  "fill=\"{}\" stroke=\"{}\" stroke-width=\"3\" paint-order=\"stroke\">{}{}</text>\n",
+                  i + 1, x, y, r + 4, kMarker, x + r * 0.8 + 3, y - r * 0.8 - 2, kMarker, kPaper,
+                  element(z).symbol, i + 1);
+        return;
+    }
+    const bool numbered = labels.labelled[static_cast<size_t>(i)] != 0 && n <= kMaxNumberedAtoms;
+    const bool plain = labels.heteroatoms && z != 6 && z != 1;
+    if (!numbered && !plain) return;
+    const std::string text = numbered ? fmt::format("{}{}", element(z).symbol, i + 1) : std::string(element(z).symbol);
+    const double size = std::clamp(r * 0.9, 9.0, 15.0);
+    const bool light = light_colour(Frame::fogged(colour_of(z), lv));
+    // A label wider than the ball goes beside it (to the lower right), with a paper-coloured halo.
+    const bool inside = 0.6 * size * static_cast<double>(text.size()) < 1.7 * r;
+    if (inside)
+        append_to(out, "<text class=\"label\" x=\"{:.1f}\" y=\"{:.1f}\" font-size=\"{:.0f}\" text-anchor=\"middle\" "
+                  "dominant-baseline=\"central\" fill=\"{}\">{}</text>\n",
+                  x, y, size, light ? kInk : "#ffffff", text);
+    else
+        append_to(out, "<text class=\"label\" x=\"{:.1f}\" y=\"{:.1f}\" font-size=\"{:.0f}\" fill=\"{}\" stroke=\"{}\" "
+                  "stroke-width=\"3\" paint-order=\"stroke\">{}</text>\n",
+                  x + r * 0.75, y + r * 0.75 + size * 0.8, size, kInk, kPaper, text);
+}
+
+// The legend's swatches and words.
+void draw_legend(std::string& out, const Legend& legend, double legend_top) {
+    if (legend.entries.empty()) return;
+    append_to(out, "<g class=\"legend\" font-size=\"12\" fill=\"{}\">\n", kInk);
+    for (size_t k = 0; k < legend.entries.size(); ++k) {
+        const LegendEntry& e = legend.entries[k];
+        const double x = legend.positions[k].first, y = legend_top + legend.positions[k].second + 11;
+        if (e.kind == "element") {
+            append_to(out, "<circle cx=\"{:.0f}\" cy=\"{:.0f}\" r=\"8\" fill=\"url(#g{}-{})\"/>", x + 8, y, e.z, kFogLevels - 1);
+        } else if (e.kind.rfind("order", 0) == 0 || e.kind == "aromatic") {
+            const int k2 = e.kind == "aromatic" ? 2 : e.kind.back() - '0';
+            for (int j = 0; j < k2; ++j) {
+                const double off = (j - (k2 - 1) / 2.0) * 4;
+                append_to(out, "<line x1=\"{:.0f}\" y1=\"{:.1f}\" x2=\"{:.0f}\" y2=\"{:.1f}\" stroke=\"#555\" stroke-width=\"2\"{}/>", x,
+                          y + off, x + 18, y + off, e.kind == "aromatic" && j == 1 ? " stroke-dasharray=\"3 2\"" : "");
+            }
+        } else if (e.kind == "lone-pair" || e.kind == "single-electron") {
+            const char* colour = e.kind == "lone-pair" ? kLonePair : kSingleElectron;
+            append_to(out, "<ellipse cx=\"{:.0f}\" cy=\"{:.0f}\" rx=\"10\" ry=\"6\" fill=\"{}\" fill-opacity=\"0.45\" stroke=\"{}\"/>",
+                      x + 9, y, colour, colour);
+        } else if (e.kind == "marker") {
+            append_to(out, "<circle cx=\"{:.0f}\" cy=\"{:.0f}\" r=\"7\" fill=\"none\" stroke=\"{}\" stroke-width=\"2.5\" "
+                      "stroke-dasharray=\"5 3\"/>",
+                      x + 8, y, kMarker);
+        } else {
+            append_to(out, "<circle cx=\"{:.0f}\" cy=\"{:.0f}\" r=\"5\" fill=\"#c3c8cd\"/><circle cx=\"{:.0f}\" cy=\"{:.0f}\" "
+                      "r=\"7\" fill=\"#56606a\"/>",
+                      x + 15, y - 1, x + 6, y + 1);
+        }
+        append_to(out, "<text x=\"{:.0f}\" y=\"{:.0f}\" dominant-baseline=\"central\">{}</text>\n", x + 26, y, escape(e.text));
+    }
+    append_to(out, "</g>\n");
+}
+
+// Everything in the drawing, far to near (painter's order). A bond sits at the depth of its farther atom and goes
+// before a ball at the same depth, so both of its balls cover its ends (a flat molecule has every bond under its
+// atoms).
+std::vector<Item> painter_order(const Molecule& m, const PictureOptions& o, const std::vector<char>& shown, const Frame& f) {
+    const int n = m.atom_count();
     std::vector<Item> items;
     items.reserve(static_cast<size_t>(n) + m.bonds.size() + o.lobes.size());
     for (int i = 0; i < n; ++i)
-        if (shown[static_cast<size_t>(i)]) items.push_back({q[static_cast<size_t>(i)].z(), 2, i});
+        if (shown[static_cast<size_t>(i)]) items.push_back({f.q[static_cast<size_t>(i)].z(), 2, i});
     for (size_t b = 0; b < m.bonds.size(); ++b) {
         const Bond& bond = m.bonds[b];
         if (bond.a < 0 || bond.a >= n || bond.b < 0 || bond.b >= n || bond.a == bond.b) continue;
         if (!shown[static_cast<size_t>(bond.a)] || !shown[static_cast<size_t>(bond.b)]) continue;
-        items.push_back({std::min(q[static_cast<size_t>(bond.a)].z(), q[static_cast<size_t>(bond.b)].z()), 0, static_cast<int>(b)});
+        items.push_back({std::min(f.q[static_cast<size_t>(bond.a)].z(), f.q[static_cast<size_t>(bond.b)].z()), 0, static_cast<int>(b)});
     }
     for (size_t k = 0, t = 0; k < o.lobes.size(); ++k) {
         const Lobe& l = o.lobes[k];
         if (l.centre < 0 || l.centre >= n) continue;
-        const Eigen::Vector3d mid = (q[static_cast<size_t>(l.centre)] + tips[t++]) / 2;
+        const Eigen::Vector3d mid = (f.q[static_cast<size_t>(l.centre)] + f.tips[t++]) / 2;
         items.push_back({mid.z(), 1, static_cast<int>(k)});
     }
     std::stable_sort(items.begin(), items.end(), [](const Item& a, const Item& b) {
         return a.depth < b.depth || (a.depth == b.depth && a.kind < b.kind);
     });
+    return items;
+}
 
-    std::vector<char> marked(static_cast<size_t>(n), 0), labelled(static_cast<size_t>(n), 0);
+}  // namespace
+
+std::string picture_svg(const Structure& s, const PictureOptions& o) {
+    const Molecule& m = s.molecule;
+    const int n = m.atom_count();
+    const std::vector<char> shown = shown_atoms(s, o);
+    const Frame f = frame_for(s, o, shown);
+    std::set<int> elements;
+    for (int i = 0; i < n; ++i)
+        if (shown[static_cast<size_t>(i)]) elements.insert(m.atoms[static_cast<size_t>(i)].z);
+    // Legend and caption rows below the drawing: the height depends on them.
+    const Legend legend = legend_for(m, o, shown, elements, f.width, f.margin);
+    const double below = f.oy + (-f.ymin) * f.scale + 16;
+    const double captions_h = 18.0 * static_cast<double>(o.captions.size());
+    const double legend_top = below + captions_h + (o.captions.empty() ? 0 : 8);
+    const double height = legend_top + 22.0 * legend.rows + f.margin - 6;
+
+    std::string out;
+    out.reserve(static_cast<size_t>(n) * 260 + 4096);
+    append_to(out, "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n");
+    append_to(out, "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{:.0f}\" height=\"{:.0f}\" viewBox=\"0 0 {:.0f} {:.0f}\" "
+              "font-family=\"sans-serif\" data-atoms=\"{}\" data-scale=\"{:.3f}\">\n",
+              f.width, height, f.width, height, n, f.scale);
+    append_to(out, "<title>{}</title>\n", escape(o.title.empty() ? std::string("repel picture") : o.title));
+    append_to(out, "<rect width=\"100%\" height=\"100%\" fill=\"{}\"/>\n", kPaper);
+
+    // One radial gradient per element and depth level actually used: light from the upper left.
+    std::set<std::pair<int, int>> used;
+    for (int i = 0; i < n; ++i)
+        if (shown[static_cast<size_t>(i)]) used.insert({m.atoms[static_cast<size_t>(i)].z, f.level(f.q[static_cast<size_t>(i)].z())});
+    for (int z : elements) used.insert({z, kFogLevels - 1});  // the legend's swatches
+    append_to(out, "<defs>\n");
+    for (const auto& [z, lv] : used) {
+        const Rgb base = Frame::fogged(colour_of(z), lv);
+        append_to(out, "<radialGradient id=\"g{}-{}\" cx=\"0.5\" cy=\"0.5\" r=\"0.5\" fx=\"0.33\" fy=\"0.3\">"
+                  "<stop offset=\"0\" stop-color=\"{}\"/><stop offset=\"0.5\" stop-color=\"{}\"/>"
+                  "<stop offset=\"1\" stop-color=\"{}\"/></radialGradient>\n",
+                  z, lv, hex(mix(base, kWhite, 0.6)), hex(base), hex(mix(base, kBlack, 0.45)));
+    }
+    append_to(out, "</defs>\n");
+    if (!o.title.empty())
+        append_to(out, "<text x=\"{:.0f}\" y=\"{:.0f}\" font-size=\"16\" fill=\"{}\" class=\"title\">{}</text>\n", f.margin,
+                  f.margin + 10, kInk, escape(fit_line(o.title, f.width - 2 * f.margin, 9.0)));
+
+    AtomLabels labels;
+    labels.marked.assign(static_cast<size_t>(n), 0);
+    labels.labelled.assign(static_cast<size_t>(n), 0);
     for (int a : o.marked)
-        if (a >= 0 && a < n) marked[static_cast<size_t>(a)] = 1;
+        if (a >= 0 && a < n) labels.marked[static_cast<size_t>(a)] = 1;
     for (int a : o.labelled)
-        if (a >= 0 && a < n) labelled[static_cast<size_t>(a)] = 1;
-    const bool label_heteroatoms = n <= 400;  // beyond, labels would only hide the drawing
+        if (a >= 0 && a < n) labels.labelled[static_cast<size_t>(a)] = 1;
+    labels.heteroatoms = n <= 400;  // beyond, labels would only hide the drawing
     std::vector<size_t> tip_of(o.lobes.size(), 0);
     for (size_t k = 0, t = 0; k < o.lobes.size(); ++k)
         if (o.lobes[k].centre >= 0 && o.lobes[k].centre < n) tip_of[k] = t++;
 
     std::string overlay;
-    append("<g class=\"drawing\">\n");
-    for (const Item& it : items) {
-        if (it.kind == 0) {
-            const Bond& bond = m.bonds[static_cast<size_t>(it.index)];
-            const Eigen::Vector3d& pa = q[static_cast<size_t>(bond.a)];
-            const Eigen::Vector3d& pb = q[static_cast<size_t>(bond.b)];
-            const double ax = sx(pa), ay = sy(pa), bx = sx(pb), by = sy(pb);
-            double dx = bx - ax, dy = by - ay;
-            const double len = std::hypot(dx, dy);
-            if (len > 1e-9) dx /= len, dy /= len;
-            else dx = 1, dy = 0;
-            const double px = -dy, py = dx;  // perpendicular in the drawing plane
-            const double f = shrink(it.depth);
-            const int lv = level(it.depth);
-            const int sticks = bond.aromatic ? 2 : std::clamp(bond.order, 1, 3);
-            // Never thinner than half a pixel or smaller than a pixel across: a long structure drawn small stays
-            // visible as a trace of its atoms.
-            const double w = std::max(0.5, kStickWidth * scale * f * (sticks == 1 ? 1.0 : 0.72));
-            const double mx = (ax + bx) / 2, my = (ay + by) / 2;
-            const std::string ca = hex(mix(fogged(colour_of(m.atoms[static_cast<size_t>(bond.a)].z), lv), kBlack, 0.12));
-            const std::string cb = hex(mix(fogged(colour_of(m.atoms[static_cast<size_t>(bond.b)].z), lv), kBlack, 0.12));
-            append("<g class=\"bond\" data-bond=\"{}\" data-order=\"{}\"{}>", it.index + 1, bond.order,
-                   bond.aromatic ? " data-aromatic=\"1\"" : "");
-            // An aromatic bond: the solid stick on the bond line (in line with the single bonds) and the dashed one
-            // on the side of its ring (where another aromatic neighbour of the first atom lies).
-            double ring_side = 0;
-            if (bond.aromatic) {
-                for (const Neighbor& nb : m.neighbors(bond.a)) {
-                    if (nb.atom == bond.b || !m.bonds[static_cast<size_t>(nb.bond)].aromatic) continue;
-                    const Eigen::Vector3d& pc = q[static_cast<size_t>(nb.atom)];
-                    ring_side = (sx(pc) - ax) * px + (sy(pc) - ay) * py >= 0 ? 1 : -1;
-                    break;
-                }
-            }
-            for (int k = 0; k < sticks; ++k) {
-                const double off = ring_side != 0 ? k * ring_side * kStickGap * 1.15 * scale * f
-                                                  : (k - (sticks - 1) / 2.0) * kStickGap * scale * f;
-                const char* dash = (bond.aromatic && k == 1) ? " stroke-dasharray=\"3 3\"" : "";
-                append("<line x1=\"{:.1f}\" y1=\"{:.1f}\" x2=\"{:.1f}\" y2=\"{:.1f}\" stroke=\"{}\" stroke-width=\"{:.1f}\"{}/>",
-                       ax + px * off, ay + py * off, mx + px * off, my + py * off, ca, w, dash);
-                append("<line x1=\"{:.1f}\" y1=\"{:.1f}\" x2=\"{:.1f}\" y2=\"{:.1f}\" stroke=\"{}\" stroke-width=\"{:.1f}\"{}/>",
-                       mx + px * off, my + py * off, bx + px * off, by + py * off, cb, w, dash);
-            }
-            append("</g>\n");
-        } else if (it.kind == 1) {
-            const Lobe& l = o.lobes[static_cast<size_t>(it.index)];
-            const Eigen::Vector3d& c = q[static_cast<size_t>(l.centre)];
-            const Eigen::Vector3d& tip = tips[tip_of[static_cast<size_t>(it.index)]];
-            const double f = shrink(it.depth);
-            const double cx = sx(c), cy = sy(c), tx = sx(tip), ty = sy(tip);
-            const double half = std::hypot(tx - cx, ty - cy) / 2;
-            const double w = kLobeWidth * scale * f;
-            const double rx = std::max(half, w), ry = w;
-            const double angle = std::atan2(ty - cy, tx - cx) * 180.0 / std::numbers::pi;
-            const double ex = (cx + tx) / 2, ey = (cy + ty) / 2;
-            const char* colour = l.single_electron ? kSingleElectron : kLonePair;
-            const double fade = 0.45 + 0.4 * nearness(it.depth);
-            append("<g class=\"lobe-group\"><ellipse class=\"lobe {}\" data-centre=\"{}\" data-direction=\"{:.4f} {:.4f} {:.4f}\" "
-                   "cx=\"{:.1f}\" cy=\"{:.1f}\" rx=\"{:.1f}\" ry=\"{:.1f}\" transform=\"rotate({:.1f} {:.1f} {:.1f})\" "
-                   "fill=\"{}\" fill-opacity=\"{:.2f}\" stroke=\"{}\" stroke-opacity=\"{:.2f}\" stroke-width=\"1.2\"/>",
-                   l.single_electron ? "single-electron" : "lone-pair", l.centre + 1, l.direction.x(), l.direction.y(),
-                   l.direction.z(), ex, ey, rx, ry, angle, ex, ey, colour, 0.35 * fade + 0.1, colour, fade);
-            // The electrons: two dots across a lone pair, one for a single electron, near the lobe's outer end.
-            const double ux = half > 1e-9 ? (tx - cx) / (2 * half) : 0, uy = half > 1e-9 ? (ty - cy) / (2 * half) : 0;
-            const double dotx = ex + ux * rx * 0.35, doty = ey + uy * rx * 0.35;
-            const double dr = std::max(1.2, 0.07 * scale * f);
-            if (l.single_electron) {
-                append("<circle cx=\"{:.1f}\" cy=\"{:.1f}\" r=\"{:.1f}\" fill=\"{}\" fill-opacity=\"{:.2f}\"/>", dotx, doty,
-                       dr, colour, fade);
-            } else {
-                const double gx = -uy * w * 0.45, gy = ux * w * 0.45;
-                const double sepx = half > 1e-9 ? gx : w * 0.45, sepy = half > 1e-9 ? gy : 0;
-                append("<circle cx=\"{:.1f}\" cy=\"{:.1f}\" r=\"{:.1f}\" fill=\"{}\" fill-opacity=\"{:.2f}\"/>"
-                       "<circle cx=\"{:.1f}\" cy=\"{:.1f}\" r=\"{:.1f}\" fill=\"{}\" fill-opacity=\"{:.2f}\"/>",
-                       dotx + sepx, doty + sepy, dr, colour, fade, dotx - sepx, doty - sepy, dr, colour, fade);
-            }
-            append("</g>\n");
-        } else {
-            const int i = it.index;
-            const int z = m.atoms[static_cast<size_t>(i)].z;
-            const Eigen::Vector3d& p = q[static_cast<size_t>(i)];
-            const double r = std::max(0.6, picture_ball_radius(z) * scale * shrink(p.z()));
-            const int lv = level(p.z());
-            const double x = sx(p), y = sy(p);
-            append("<circle class=\"atom\" data-atom=\"{}\" data-element=\"{}\" cx=\"{:.1f}\" cy=\"{:.1f}\" r=\"{:.1f}\" "
-                   "fill=\"url(#g{}-{})\"/>\n",
-                   i + 1, element(z).symbol, x, y, r, z, lv);
-            const bool is_marked = marked[static_cast<size_t>(i)] != 0;
-            if (is_marked) {
-                // Markers go on top of everything (drawn after the drawing), so a nearer atom never hides one.
-                fmt::format_to(std::back_inserter(overlay),
-                               "<circle class=\"marker\" data-atom=\"{}\" cx=\"{:.1f}\" cy=\"{:.1f}\" r=\"{:.1f}\" "
-                               "fill=\"none\" stroke=\"{}\" stroke-width=\"2.5\" stroke-dasharray=\"5 3\"/>\n"
-                               "<text class=\"label\" x=\"{:.1f}\" y=\"{:.1f}\" font-size=\"12\" font-weight=\"bold\" "
-                               "fill=\"{}\" stroke=\"{}\" stroke-width=\"3\" paint-order=\"stroke\">{}{}</text>\n",
-                               i + 1, x, y, r + 4, kMarker, x + r * 0.8 + 3, y - r * 0.8 - 2, kMarker, kPaper,
-                               element(z).symbol, i + 1);
-                continue;
-            }
-            const bool numbered = labelled[static_cast<size_t>(i)] != 0 && n <= kMaxNumberedAtoms;
-            const bool plain = label_heteroatoms && z != 6 && z != 1;
-            if (numbered || plain) {
-                const std::string text = numbered ? fmt::format("{}{}", element(z).symbol, i + 1) : std::string(element(z).symbol);
-                const double size = std::clamp(r * 0.9, 9.0, 15.0);
-                const bool light = light_colour(fogged(colour_of(z), lv));
-                // A label wider than the ball goes beside it (to the lower right), with a paper-coloured halo.
-                const bool inside = 0.6 * size * static_cast<double>(text.size()) < 1.7 * r;
-                if (inside)
-                    append("<text class=\"label\" x=\"{:.1f}\" y=\"{:.1f}\" font-size=\"{:.0f}\" text-anchor=\"middle\" "
-                           "dominant-baseline=\"central\" fill=\"{}\">{}</text>\n",
-                           x, y, size, light ? kInk : "#ffffff", text);
-                else
-                    append("<text class=\"label\" x=\"{:.1f}\" y=\"{:.1f}\" font-size=\"{:.0f}\" fill=\"{}\" stroke=\"{}\" "
-                           "stroke-width=\"3\" paint-order=\"stroke\">{}</text>\n",
-                           x + r * 0.75, y + r * 0.75 + size * 0.8, size, kInk, kPaper, text);
-            }
-        }
+    append_to(out, "<g class=\"drawing\">\n");
+    for (const Item& it : painter_order(m, o, shown, f)) {
+        if (it.kind == 0)
+            draw_bond(out, f, m, it.index, it.depth);
+        else if (it.kind == 1)
+            draw_lobe(out, f, o.lobes[static_cast<size_t>(it.index)], f.tips[tip_of[static_cast<size_t>(it.index)]], it.depth);
+        else
+            draw_atom(out, overlay, f, m, it.index, labels);
     }
-    append("</g>\n");
-    if (!overlay.empty()) append("<g class=\"markers\">\n{}</g>\n", overlay);
+    append_to(out, "</g>\n");
+    if (!overlay.empty()) append_to(out, "<g class=\"markers\">\n{}</g>\n", overlay);
 
     double cy = below;
     for (const std::string& line : o.captions) {
         cy += 18;
-        append("<text class=\"caption\" x=\"{:.0f}\" y=\"{:.0f}\" font-size=\"13\" fill=\"{}\">{}</text>\n", margin,
-               cy - 4, kInk, escape(fit_line(line, width - 2 * margin, 7.3)));
+        append_to(out, "<text class=\"caption\" x=\"{:.0f}\" y=\"{:.0f}\" font-size=\"13\" fill=\"{}\">{}</text>\n", f.margin,
+                  cy - 4, kInk, escape(fit_line(line, f.width - 2 * f.margin, 7.3)));
     }
-    if (!legend.empty()) {
-        append("<g class=\"legend\" font-size=\"12\" fill=\"{}\">\n", kInk);
-        for (size_t k = 0; k < legend.size(); ++k) {
-            const LegendEntry& e = legend[k];
-            const double x = legend_pos[k].first, y = legend_top + legend_pos[k].second + 11;
-            if (e.kind == "element") {
-                append("<circle cx=\"{:.0f}\" cy=\"{:.0f}\" r=\"8\" fill=\"url(#g{}-{})\"/>", x + 8, y, e.z, kFogLevels - 1);
-            } else if (e.kind.rfind("order", 0) == 0 || e.kind == "aromatic") {
-                const int k2 = e.kind == "aromatic" ? 2 : e.kind.back() - '0';
-                for (int j = 0; j < k2; ++j) {
-                    const double off = (j - (k2 - 1) / 2.0) * 4;
-                    append("<line x1=\"{:.0f}\" y1=\"{:.1f}\" x2=\"{:.0f}\" y2=\"{:.1f}\" stroke=\"#555\" stroke-width=\"2\"{}/>", x,
-                           y + off, x + 18, y + off, e.kind == "aromatic" && j == 1 ? " stroke-dasharray=\"3 2\"" : "");
-                }
-            } else if (e.kind == "lone-pair" || e.kind == "single-electron") {
-                const char* colour = e.kind == "lone-pair" ? kLonePair : kSingleElectron;
-                append("<ellipse cx=\"{:.0f}\" cy=\"{:.0f}\" rx=\"10\" ry=\"6\" fill=\"{}\" fill-opacity=\"0.45\" stroke=\"{}\"/>",
-                       x + 9, y, colour, colour);
-            } else if (e.kind == "marker") {
-                append("<circle cx=\"{:.0f}\" cy=\"{:.0f}\" r=\"7\" fill=\"none\" stroke=\"{}\" stroke-width=\"2.5\" "
-                       "stroke-dasharray=\"5 3\"/>",
-                       x + 8, y, kMarker);
-            } else {
-                append("<circle cx=\"{:.0f}\" cy=\"{:.0f}\" r=\"5\" fill=\"#c3c8cd\"/><circle cx=\"{:.0f}\" cy=\"{:.0f}\" "
-                       "r=\"7\" fill=\"#56606a\"/>",
-                       x + 15, y - 1, x + 6, y + 1);
-            }
-            append("<text x=\"{:.0f}\" y=\"{:.0f}\" dominant-baseline=\"central\">{}</text>\n", x + 26, y, escape(e.text));
-        }
-        append("</g>\n");
-    }
-    append("</svg>\n");
+    draw_legend(out, legend, legend_top);
+    append_to(out, "</svg>\n");
     return out;
 }
 
