@@ -339,7 +339,24 @@ const std::vector<ReferencePolyhedron>& reference_polyhedra(int coordination_num
     return table[static_cast<size_t>(coordination_number)];
 }
 
-ShapeFit fit_shape(std::span<const Vector3d> ligands, const Vector3d& centre, const ReferencePolyhedron& ideal) {
+namespace {
+
+// The ligands and the ideal vertices, each set centred with the centre as point n, in the search order: ligands by
+// |q| (largest first), ties by index; vertices by |p| for the rearrangement bound.
+struct Problem {
+    int n = 0;
+    std::array<Vector3d, kMaxCn + 1> q, p;
+    double qq = 0.0, pp = 0.0;
+    std::array<int, kMaxCn> order{}, by_norm{};
+    std::array<double, kMaxCn> qnorm{}, pnorm{};
+    Matrix3d m_centre;
+    const std::vector<std::vector<int>>* symmetries = nullptr;
+
+    const Vector3d& qi(int depth) const { return q[static_cast<size_t>(order[static_cast<size_t>(depth)])]; }
+    const Vector3d& pj(int vertex) const { return p[static_cast<size_t>(vertex)]; }
+};
+
+void check_input(std::span<const Vector3d> ligands, const Vector3d& centre, const ReferencePolyhedron& ideal) {
     const int n = static_cast<int>(ligands.size());
     if (n < kMinCn || n > kMaxCn)
         throw std::invalid_argument("shape measure: " + std::to_string(n) + " ligands, outside 2..9");
@@ -351,10 +368,16 @@ ShapeFit fit_shape(std::span<const Vector3d> ligands, const Vector3d& centre, co
         throw std::invalid_argument("shape measure: a coordinate is not finite");
     if (!std::all_of(ideal.points.begin(), ideal.points.end(), finite))
         throw std::invalid_argument("shape measure: the ideal polyhedron has a non-finite point");
-    const size_t un = static_cast<size_t>(n);
+}
 
+Problem centred_problem(std::span<const Vector3d> ligands, const Vector3d& centre, const ReferencePolyhedron& ideal) {
+    Problem pr;
+    pr.n = static_cast<int>(ligands.size());
+    const int n = pr.n;
+    const size_t un = static_cast<size_t>(n);
+    auto& q = pr.q;
+    auto& p = pr.p;
     // Centred points; index n is the centre (fixed pair).
-    std::array<Vector3d, kMaxCn + 1> q, p;
     Vector3d qbar = centre, pbar = Vector3d::Zero();
     for (size_t i = 0; i < un; ++i) {
         qbar += ligands[i];
@@ -362,101 +385,96 @@ ShapeFit fit_shape(std::span<const Vector3d> ligands, const Vector3d& centre, co
     }
     qbar /= static_cast<double>(n + 1);
     pbar /= static_cast<double>(n + 1);
-    double qq = 0.0, pp = 0.0;
     for (size_t i = 0; i < un; ++i) {
         q[i] = ligands[i] - qbar;
         p[i] = ideal.points[i] - pbar;
-        qq += q[i].squaredNorm();
-        pp += p[i].squaredNorm();
+        pr.qq += q[i].squaredNorm();
+        pr.pp += p[i].squaredNorm();
     }
     q[un] = centre - qbar;
     p[un] = -pbar;
-    qq += q[un].squaredNorm();
-    pp += p[un].squaredNorm();
-    if (!std::isfinite(qq) || !std::isfinite(pp))
+    pr.qq += q[un].squaredNorm();
+    pr.pp += p[un].squaredNorm();
+    if (!std::isfinite(pr.qq) || !std::isfinite(pr.pp))
         throw std::invalid_argument("shape measure: coordinates too large to square");
-    if (!(qq > 0.0) || !(pp > 0.0))
-        throw std::invalid_argument(qq > 0.0 ? "shape measure: the ideal polyhedron has no extent"
-                                             : "shape measure: the centre and all ligands coincide");
+    if (!(pr.qq > 0.0) || !(pr.pp > 0.0))
+        throw std::invalid_argument(pr.qq > 0.0 ? "shape measure: the ideal polyhedron has no extent"
+                                                : "shape measure: the centre and all ligands coincide");
 
-    // Search order: ligands by |q| (largest first), ties by index; vertices by |p| for the rearrangement bound.
-    std::array<int, kMaxCn> order{}, by_norm{};
-    std::iota(order.begin(), order.begin() + n, 0);
-    std::iota(by_norm.begin(), by_norm.begin() + n, 0);
-    std::stable_sort(order.begin(), order.begin() + n,
+    std::iota(pr.order.begin(), pr.order.begin() + n, 0);
+    std::iota(pr.by_norm.begin(), pr.by_norm.begin() + n, 0);
+    std::stable_sort(pr.order.begin(), pr.order.begin() + n,
                      [&](int a, int b) { return q[static_cast<size_t>(a)].norm() > q[static_cast<size_t>(b)].norm(); });
-    std::stable_sort(by_norm.begin(), by_norm.begin() + n,
+    std::stable_sort(pr.by_norm.begin(), pr.by_norm.begin() + n,
                      [&](int a, int b) { return p[static_cast<size_t>(a)].norm() > p[static_cast<size_t>(b)].norm(); });
-    std::array<double, kMaxCn> qnorm{};
-    for (size_t k = 0; k < un; ++k) qnorm[k] = q[static_cast<size_t>(order[k])].norm();
-    std::array<double, kMaxCn> pnorm{};
-    for (size_t j = 0; j < un; ++j) pnorm[j] = p[j].norm();
-    const auto qi = [&](int depth) -> const Vector3d& { return q[static_cast<size_t>(order[static_cast<size_t>(depth)])]; };
-    const auto pj = [&](int vertex) -> const Vector3d& { return p[static_cast<size_t>(vertex)]; };
+    for (size_t k = 0; k < un; ++k) pr.qnorm[k] = q[static_cast<size_t>(pr.order[k])].norm();
+    for (size_t j = 0; j < un; ++j) pr.pnorm[j] = p[j].norm();
+    pr.symmetries = &cached_symmetries(ideal.points);
+    pr.m_centre = p[un] * q[un].transpose();
+    return pr;
+}
 
-    const std::vector<std::vector<int>>& symmetries = cached_symmetries(ideal.points);
-    const Matrix3d m_centre = p[un] * q[un].transpose();
-
-    // chosen[k]: the vertex of the ligand at search depth k.
-    std::array<int, kMaxCn> best{};
-    double best_c = -std::numeric_limits<double>::infinity();
-
-    // First guess: the two leading ligands (not collinear with each other) aligned on each pair of vertices (the
-    // first on one vertex per symmetry orbit): the rotation takes the frame of the two vertices onto that of the two
-    // ligands, the rest are matched greedily. Only a start for the bound: the search below is exact without it.
-    {
-        int second = -1;
-        for (int k = 1; k < n && second < 0; ++k)
-            if (qi(0).cross(qi(k)).norm() > 1e-6 * qnorm[0] * qnorm[static_cast<size_t>(k)]) second = k;
-        const Matrix3d ligand_frame = second > 0 ? frame(qi(0), qi(second)) : Matrix3d::Identity();
-        for (int a = 0; a < n && second > 0; ++a) {
-            bool representative = true;
-            for (const auto& g : symmetries) representative = representative && g[static_cast<size_t>(a)] >= a;
-            if (!representative) continue;
-            for (int b = 0; b < n; ++b) {
-                if (b == a || pj(a).cross(pj(b)).norm() <= 1e-9 * pj(a).norm() * pj(b).norm()) continue;
-                const Matrix3d r = ligand_frame * frame(pj(a), pj(b)).transpose();
-                std::array<int, kMaxCn> guess{};
-                unsigned taken = (1u << a) | (1u << b);
-                guess[0] = a;
-                guess[static_cast<size_t>(second)] = b;
-                for (int k = 1; k < n; ++k) {
-                    if (k == second) continue;
-                    const Vector3d target = r.transpose() * qi(k);
-                    int pick = -1;
-                    double pick_dot = -std::numeric_limits<double>::infinity();
-                    for (int v = 0; v < n; ++v) {
-                        if (taken & (1u << v)) continue;
-                        const double dot = target.dot(pj(v));
-                        if (dot > pick_dot) {
-                            pick_dot = dot;
-                            pick = v;
-                        }
+// First guess: the two leading ligands (not collinear with each other) aligned on each pair of vertices (the first
+// on one vertex per symmetry orbit): the rotation takes the frame of the two vertices onto that of the two ligands,
+// the rest are matched greedily. Only a start for the bound: the search is exact without it.
+void greedy_start(const Problem& pr, std::array<int, kMaxCn>& best, double& best_c) {
+    const int n = pr.n;
+    int second = -1;
+    for (int k = 1; k < n && second < 0; ++k)
+        if (pr.qi(0).cross(pr.qi(k)).norm() > 1e-6 * pr.qnorm[0] * pr.qnorm[static_cast<size_t>(k)]) second = k;
+    const Matrix3d ligand_frame = second > 0 ? frame(pr.qi(0), pr.qi(second)) : Matrix3d::Identity();
+    for (int a = 0; a < n && second > 0; ++a) {
+        bool representative = true;
+        for (const auto& g : *pr.symmetries) representative = representative && g[static_cast<size_t>(a)] >= a;
+        if (!representative) continue;
+        for (int b = 0; b < n; ++b) {
+            if (b == a || pr.pj(a).cross(pr.pj(b)).norm() <= 1e-9 * pr.pj(a).norm() * pr.pj(b).norm()) continue;
+            const Matrix3d r = ligand_frame * frame(pr.pj(a), pr.pj(b)).transpose();
+            std::array<int, kMaxCn> guess{};
+            unsigned taken = (1u << a) | (1u << b);
+            guess[0] = a;
+            guess[static_cast<size_t>(second)] = b;
+            for (int k = 1; k < n; ++k) {
+                if (k == second) continue;
+                const Vector3d target = r.transpose() * pr.qi(k);
+                int pick = -1;
+                double pick_dot = -std::numeric_limits<double>::infinity();
+                for (int v = 0; v < n; ++v) {
+                    if (taken & (1u << v)) continue;
+                    const double dot = target.dot(pr.pj(v));
+                    if (dot > pick_dot) {
+                        pick_dot = dot;
+                        pick = v;
                     }
-                    guess[static_cast<size_t>(k)] = pick;
-                    taken |= 1u << pick;
                 }
-                Matrix3d full = m_centre;
-                for (int k = 0; k < n; ++k) full += pj(guess[static_cast<size_t>(k)]) * qi(k).transpose();
-                const double c = rotation_overlap_fast(full);
-                if (c > best_c) {
-                    best_c = c;
-                    best = guess;
-                }
+                guess[static_cast<size_t>(k)] = pick;
+                taken |= 1u << pick;
+            }
+            Matrix3d full = pr.m_centre;
+            for (int k = 0; k < n; ++k) full += pr.pj(guess[static_cast<size_t>(k)]) * pr.qi(k).transpose();
+            const double c = rotation_overlap_fast(full);
+            if (c > best_c) {
+                best_c = c;
+                best = guess;
             }
         }
     }
+}
 
-    // Branch and bound over the assignments, on an explicit stack.
-    // A branch is dropped only when its bound is below the best by more than the rounding of the fast overlap (whose
-    // smaller singular values carry an absolute error near sqrt(epsilon) of the largest).
-    const double slack = 1e-7 * std::sqrt(qq * pp);
-    std::array<int, kMaxCn> chosen{};
+// Branch and bound over the assignments, on an explicit stack, improving on `best` (best_c its overlap).
+// A branch is dropped only when its bound is below the best by more than the rounding of the fast overlap (whose
+// smaller singular values carry an absolute error near sqrt(epsilon) of the largest).
+void branch_and_bound(const Problem& pr, std::array<int, kMaxCn>& best, double& best_c) {
+    const int n = pr.n;
+    const size_t un = static_cast<size_t>(n);
+    const std::vector<std::vector<int>>& symmetries = *pr.symmetries;
+    const double slack = 1e-7 * std::sqrt(pr.qq * pr.pp);
+    std::array<int, kMaxCn> chosen{};  // chosen[k]: the vertex of the ligand at search depth k
     std::array<int, kMaxCn + 1> next{};
     std::array<Matrix3d, kMaxCn + 1> partial;
-    partial[0] = m_centre;
+    partial[0] = pr.m_centre;
     std::array<double, kMaxCn + 1> overlap{};  // c of partial[k]
-    overlap[0] = rotation_overlap_fast(m_centre);
+    overlap[0] = rotation_overlap_fast(pr.m_centre);
     unsigned used = 0;
     int depth = 0;
     next[0] = 0;
@@ -483,13 +501,13 @@ ShapeFit fit_shape(std::span<const Vector3d> ligands, const Vector3d& centre, co
         if (!canonical) continue;
         double rest = 0.0;
         size_t k = ud + 1;
-        for (int w : std::span(by_norm.data(), un)) {
+        for (int w : std::span(pr.by_norm.data(), un)) {
             if (w == v || (used & (1u << w))) continue;
-            rest += qnorm[k++] * pnorm[static_cast<size_t>(w)];
+            rest += pr.qnorm[k++] * pr.pnorm[static_cast<size_t>(w)];
         }
         // c of this node is at most its parent's plus |q||p| of the new pair: a bound without the eigenvalues.
-        if (overlap[ud] + qnorm[ud] * pnorm[static_cast<size_t>(v)] + rest < best_c - slack) continue;
-        const Matrix3d m = partial[ud] + pj(v) * qi(depth).transpose();
+        if (overlap[ud] + pr.qnorm[ud] * pr.pnorm[static_cast<size_t>(v)] + rest < best_c - slack) continue;
+        const Matrix3d m = partial[ud] + pr.pj(v) * pr.qi(depth).transpose();
         const double c = rotation_overlap_fast(m);
         if (depth == n - 1) {
             if (c > best_c) {
@@ -505,14 +523,26 @@ ShapeFit fit_shape(std::span<const Vector3d> ligands, const Vector3d& centre, co
         ++depth;
         next[ud + 1] = 0;
     }
+}
+
+}  // namespace
+
+ShapeFit fit_shape(std::span<const Vector3d> ligands, const Vector3d& centre, const ReferencePolyhedron& ideal) {
+    check_input(ligands, centre, ideal);
+    const Problem pr = centred_problem(ligands, centre, ideal);
+    const size_t un = static_cast<size_t>(pr.n);
+    std::array<int, kMaxCn> best{};
+    double best_c = -std::numeric_limits<double>::infinity();
+    greedy_start(pr, best, best_c);
+    branch_and_bound(pr, best, best_c);
 
     // The optimum again, with a full SVD for the rotation and full precision.
     ShapeFit fit;
     fit.assignment.assign(un, -1);
-    Matrix3d m = m_centre;
+    Matrix3d m = pr.m_centre;
     for (size_t k = 0; k < un; ++k) {
-        fit.assignment[static_cast<size_t>(order[k])] = best[k];
-        m += pj(best[k]) * q[static_cast<size_t>(order[k])].transpose();
+        fit.assignment[static_cast<size_t>(pr.order[k])] = best[k];
+        m += pr.pj(best[k]) * pr.q[static_cast<size_t>(pr.order[k])].transpose();
     }
     Eigen::JacobiSVD<Matrix3d> svd(m, Eigen::ComputeFullU | Eigen::ComputeFullV);
     Matrix3d d = Matrix3d::Identity();
@@ -520,8 +550,8 @@ ShapeFit fit_shape(std::span<const Vector3d> ligands, const Vector3d& centre, co
     fit.rotation = svd.matrixV() * d * svd.matrixU().transpose();
     const Vector3d s = svd.singularValues();
     const double c = s(0) + s(1) + d(2, 2) * s(2);
-    fit.scale = c / pp;
-    fit.measure = std::clamp(100.0 * (1.0 - c * c / (qq * pp)), 0.0, 100.0);
+    fit.scale = c / pr.pp;
+    fit.measure = std::clamp(100.0 * (1.0 - c * c / (pr.qq * pr.pp)), 0.0, 100.0);
     return fit;
 }
 
