@@ -327,141 +327,168 @@ private:
         taken_.assign(out_.centres.size(), 0);
         for (int i = 0; i < m_.atom_count(); ++i) {
             if (is_metal(i)) continue;
-            const Atom& a = m_.atoms[at(i)];
-            const ElementData& el = element(a.z);
-            if (out_.hapto_atom[at(i)]) {
-                const int n0 = el.valence_electrons - a.charge - nonmetal_order_sum(i);
-                if (n0 % 2 != 0) {
-                    if (!a.bracket)
-                        out_.warnings.push_back(fmt::format(
-                            "atom {} ({}) of a hapto ligand is written without brackets, so its bond to the metal counts "
-                            "in its hydrogen count (OpenSMILES) and the ligand is read as an anion; for the neutral "
-                            "ligand write the hydrogens in brackets (ethylene: [CH2]=[CH2])",
-                            i + 1, el.symbol));
-                    for (const Neighbor& nb : m_.neighbors(i))
-                        if (is_metal(nb.atom)) {
-                            ++taken_[at(out_.centre_of_atom[at(nb.atom)])];
-                            break;
-                        }
-                }
-                continue;
-            }
-            std::vector<Neighbor> metal_bonds;
-            int k = 0;
+            if (out_.hapto_atom[at(i)])
+                count_hapto_atom(i);
+            else
+                count_donor(i);
+        }
+        set_oxidation_states();
+    }
+
+    // An atom of a hapto ligand takes one electron where the ring or chain as written has an odd one.
+    void count_hapto_atom(int i) {
+        const Atom& a = m_.atoms[at(i)];
+        const ElementData& el = element(a.z);
+        const int n0 = el.valence_electrons - a.charge - nonmetal_order_sum(i);
+        if (n0 % 2 != 0) {
+            if (!a.bracket)
+                out_.warnings.push_back(fmt::format(
+                    "atom {} ({}) of a hapto ligand is written without brackets, so its bond to the metal counts "
+                    "in its hydrogen count (OpenSMILES) and the ligand is read as an anion; for the neutral "
+                    "ligand write the hydrogens in brackets (ethylene: [CH2]=[CH2])",
+                    i + 1, el.symbol));
             for (const Neighbor& nb : m_.neighbors(i))
                 if (is_metal(nb.atom)) {
-                    metal_bonds.push_back(nb);
-                    k += m_.bonds[at(nb.bond)].order;
+                    ++taken_[at(out_.centre_of_atom[at(nb.atom)])];
+                    break;
                 }
-            if (metal_bonds.empty()) continue;
-            const int s = nonmetal_order_sum(i);
-            const int n0 = el.valence_electrons - a.charge - s;
-            int t = 0;
-            if (el.period == 1) {
-                t = 2 - 2 * s - n0;
-            } else {
-                t = 8 - 2 * s - n0;
-                if (t < 0 && el.period >= 3) t = (n0 % 2 == 0) ? 0 : 1;  // expanded octet kept as written
+        }
+    }
+
+    // A donor on plain bonds to metals: the electrons that close its shell, shared as covalent units among its metals.
+    void count_donor(int i) {
+        const Atom& a = m_.atoms[at(i)];
+        const ElementData& el = element(a.z);
+        std::vector<Neighbor> metal_bonds;
+        int k = 0;
+        for (const Neighbor& nb : m_.neighbors(i))
+            if (is_metal(nb.atom)) {
+                metal_bonds.push_back(nb);
+                k += m_.bonds[at(nb.bond)].order;
             }
-            if (t < 0) {
-                int added = 0;  // hydrogens OpenSMILES gave it (its bond to the metal counted)
-                for (const Neighbor& nb : m_.neighbors(i)) added += m_.atoms[at(nb.atom)].parent == i ? 1 : 0;
-                throw InputError(
-                    fmt::format("atom {} ({}) has more electrons than its octet holds before its bond to a metal is "
-                                "counted{}",
-                                i + 1, el.symbol,
-                                added > 0 ? fmt::format(": written without brackets it was given {} hydrogen{} (OpenSMILES "
-                                                        "counts the metal bond); write it in brackets, e.g. [{}]",
-                                                        added, added == 1 ? "" : "s", el.symbol)
-                                          : std::string("; write its charge (the ligand as the free species)")),
-                    {}, a.column);
-            }
-            // A heteroatom-stabilised carbene donates its lone pair: nothing covalent on a single bond; on a written
-            // double bond the two units are counted for the carbon's own domains but take nothing from the metal.
-            const bool carbene = heteroatom_carbene(i);
-            if (carbene && k == 1) t = 0;
-            if (t > k) {
-                out_.warnings.push_back(fmt::format(
-                    "atom {} ({}): its ligand is not closed-shell even with every bond to the metal counted as "
-                    "covalent; built as the radical it is written as",
-                    i + 1, el.symbol));
-                t = k;
-            }
-            // An organic-subset N, O, P or S written without brackets gets its hydrogens by OpenSMILES' valence rule,
-            // which counts the bond to the metal: `N1CC[NH2][Pt]1` makes the first N an amido (NH-) ligand. Said,
-            // since the neutral donor ([NH2], [OH2]) is the commoner intent.
-            // Only where the metal bond changed the count: a multiple bond to the metal (oxo, imido) is an X2 ligand
-            // as written; and the suggestion names the hydrogens the free ligand has (PMe3: [P], not [PH2]).
-            bool single_to_metal = true;
-            for (const Neighbor& nb : metal_bonds) single_to_metal = single_to_metal && m_.bonds[at(nb.bond)].order == 1;
-            if (!a.bracket && a.charge == 0 && t > 0 && single_to_metal &&
-                (a.z == 7 || a.z == 8 || a.z == 15 || a.z == 16)) {
-                int given = std::max(0, a.hydrogens), heavy = 0;
-                for (const Neighbor& nb : m_.neighbors(i)) {
-                    if (m_.atoms[at(nb.atom)].z == 1) ++given;
-                    else if (!is_metal(nb.atom)) heavy += m_.bonds[at(nb.bond)].order;
-                }
-                // OpenSMILES normal valences: N, P 3 (5); O 2; S 2 (4, 6).
-                const std::vector<int> valences = a.z == 8 ? std::vector<int>{2}
-                                                  : a.z == 16 ? std::vector<int>{2, 4, 6}
-                                                              : std::vector<int>{3, 5};
-                int free_h = -1;
-                for (int v : valences)
-                    if (v >= heavy) {
-                        free_h = v - heavy;
-                        break;
-                    }
-                // O and S with a heavy neighbour (alkoxide, carboxylate, thiolate) are read as the anion meant;
-                // N and P (amine, phosphine) and bare O/S (water or hydroxide) are said.
-                const bool chalcogen = a.z == 8 || a.z == 16;
-                if (free_h >= 0 && free_h != given && !(chalcogen && heavy > 0))
-                    out_.warnings.push_back(fmt::format(
-                        "atom {} ({}) is written without brackets, so its bond to the metal counts in its hydrogen "
-                        "count (OpenSMILES) and it is read as an anionic ligand; for the neutral donor write [{}{}]",
-                        i + 1, el.symbol, el.symbol,
-                        free_h == 0 ? std::string() : free_h == 1 ? std::string("H") : fmt::format("H{}", free_h)));
-            }
-            // Electrons the ligand takes in the ionic model. A carbonyl written in the cumulated form, M=C=O, is the
-            // neutral ligand CO (the same molecule as [M]-[C-]#[O+]): its two covalent units are counted for the
-            // carbon's own domains but take nothing from the metal.
-            int taken = carbene ? 0 : t;
-            if (a.z == 6 && a.charge == 0 && metal_bonds.size() == 1 && k == 2 && m_.degree(i) == 2) {
-                for (const Neighbor& nb : m_.neighbors(i)) {
-                    const Atom& o = m_.atoms[at(nb.atom)];
-                    if (!is_metal(nb.atom) && (o.z == 8 || o.z == 16) && o.charge == 0 && m_.degree(nb.atom) == 1 &&
-                        m_.bonds[at(nb.bond)].order == 2)
-                        taken = 0;
-                }
-            }
-            // Share the covalent units among the metals: each bond takes at most its order, the metal with the fewest
-            // electrons taken so far first (bridging halides of a symmetric dimer go one to each metal).
-            std::vector<int> units(metal_bonds.size(), 0);
-            int left = t, left_taken = taken;
-            while (left > 0) {
-                int best = -1;
-                for (size_t b = 0; b < metal_bonds.size(); ++b) {
-                    if (units[b] >= m_.bonds[at(metal_bonds[b].bond)].order) continue;
-                    const int cb = out_.centre_of_atom[at(metal_bonds[b].atom)];
-                    if (best < 0 || taken_[at(cb)] < taken_[at(out_.centre_of_atom[at(metal_bonds[at(best)].atom)])])
-                        best = static_cast<int>(b);
-                }
-                if (best < 0) break;
-                ++units[at(best)];
-                --left;
-                if (left_taken > 0) {
-                    ++taken_[at(out_.centre_of_atom[at(metal_bonds[at(best)].atom)])];
-                    --left_taken;
-                }
-            }
-            for (size_t b = 0; b < metal_bonds.size(); ++b) {
-                MetalBond mb;
-                mb.donor = i;
-                mb.metal = metal_bonds[b].atom;
-                mb.covalent = units[b];
-                mb.taken = units[b];
-                out_.bonds.push_back(mb);
+        if (metal_bonds.empty()) return;
+        const int s = nonmetal_order_sum(i);
+        const int n0 = el.valence_electrons - a.charge - s;
+        int t = 0;
+        if (el.period == 1) {
+            t = 2 - 2 * s - n0;
+        } else {
+            t = 8 - 2 * s - n0;
+            if (t < 0 && el.period >= 3) t = (n0 % 2 == 0) ? 0 : 1;  // expanded octet kept as written
+        }
+        if (t < 0) {
+            int added = 0;  // hydrogens OpenSMILES gave it (its bond to the metal counted)
+            for (const Neighbor& nb : m_.neighbors(i)) added += m_.atoms[at(nb.atom)].parent == i ? 1 : 0;
+            throw InputError(
+                fmt::format("atom {} ({}) has more electrons than its octet holds before its bond to a metal is "
+                            "counted{}",
+                            i + 1, el.symbol,
+                            added > 0 ? fmt::format(": written without brackets it was given {} hydrogen{} (OpenSMILES "
+                                                    "counts the metal bond); write it in brackets, e.g. [{}]",
+                                                    added, added == 1 ? "" : "s", el.symbol)
+                                      : std::string("; write its charge (the ligand as the free species)")),
+                {}, a.column);
+        }
+        // A heteroatom-stabilised carbene donates its lone pair: nothing covalent on a single bond; on a written
+        // double bond the two units are counted for the carbon's own domains but take nothing from the metal.
+        const bool carbene = heteroatom_carbene(i);
+        if (carbene && k == 1) t = 0;
+        if (t > k) {
+            out_.warnings.push_back(fmt::format(
+                "atom {} ({}): its ligand is not closed-shell even with every bond to the metal counted as "
+                "covalent; built as the radical it is written as",
+                i + 1, el.symbol));
+            t = k;
+        }
+        warn_unbracketed_donor(i, t, metal_bonds);
+        // Electrons the ligand takes in the ionic model. A carbonyl written in the cumulated form, M=C=O, is the
+        // neutral ligand CO (the same molecule as [M]-[C-]#[O+]): its two covalent units are counted for the
+        // carbon's own domains but take nothing from the metal.
+        int taken = carbene ? 0 : t;
+        if (a.z == 6 && a.charge == 0 && metal_bonds.size() == 1 && k == 2 && m_.degree(i) == 2) {
+            for (const Neighbor& nb : m_.neighbors(i)) {
+                const Atom& o = m_.atoms[at(nb.atom)];
+                if (!is_metal(nb.atom) && (o.z == 8 || o.z == 16) && o.charge == 0 && m_.degree(nb.atom) == 1 &&
+                    m_.bonds[at(nb.bond)].order == 2)
+                    taken = 0;
             }
         }
+        share_units(i, metal_bonds, t, taken);
+    }
+
+    void warn_unbracketed_donor(int i, int t, const std::vector<Neighbor>& metal_bonds) {
+        const Atom& a = m_.atoms[at(i)];
+        const ElementData& el = element(a.z);
+        // An organic-subset N, O, P or S written without brackets gets its hydrogens by OpenSMILES' valence rule,
+        // which counts the bond to the metal: `N1CC[NH2][Pt]1` makes the first N an amido (NH-) ligand. Said,
+        // since the neutral donor ([NH2], [OH2]) is the commoner intent.
+        // Only where the metal bond changed the count: a multiple bond to the metal (oxo, imido) is an X2 ligand
+        // as written; and the suggestion names the hydrogens the free ligand has (PMe3: [P], not [PH2]).
+        bool single_to_metal = true;
+        for (const Neighbor& nb : metal_bonds) single_to_metal = single_to_metal && m_.bonds[at(nb.bond)].order == 1;
+        if (!a.bracket && a.charge == 0 && t > 0 && single_to_metal &&
+            (a.z == 7 || a.z == 8 || a.z == 15 || a.z == 16)) {
+            int given = std::max(0, a.hydrogens), heavy = 0;
+            for (const Neighbor& nb : m_.neighbors(i)) {
+                if (m_.atoms[at(nb.atom)].z == 1) ++given;
+                else if (!is_metal(nb.atom)) heavy += m_.bonds[at(nb.bond)].order;
+            }
+            // OpenSMILES normal valences: N, P 3 (5); O 2; S 2 (4, 6).
+            const std::vector<int> valences = a.z == 8 ? std::vector<int>{2}
+                                              : a.z == 16 ? std::vector<int>{2, 4, 6}
+                                                          : std::vector<int>{3, 5};
+            int free_h = -1;
+            for (int v : valences)
+                if (v >= heavy) {
+                    free_h = v - heavy;
+                    break;
+                }
+            // O and S with a heavy neighbour (alkoxide, carboxylate, thiolate) are read as the anion meant;
+            // N and P (amine, phosphine) and bare O/S (water or hydroxide) are said.
+            const bool chalcogen = a.z == 8 || a.z == 16;
+            if (free_h >= 0 && free_h != given && !(chalcogen && heavy > 0))
+                out_.warnings.push_back(fmt::format(
+                    "atom {} ({}) is written without brackets, so its bond to the metal counts in its hydrogen "
+                    "count (OpenSMILES) and it is read as an anionic ligand; for the neutral donor write [{}{}]",
+                    i + 1, el.symbol, el.symbol,
+                    free_h == 0 ? std::string() : free_h == 1 ? std::string("H") : fmt::format("H{}", free_h)));
+        }
+    }
+
+    // Shares a donor's t covalent units (`taken` of them taking electrons from the metal) among its metal bonds.
+    void share_units(int i, const std::vector<Neighbor>& metal_bonds, int t, int taken) {
+        // Share the covalent units among the metals: each bond takes at most its order, the metal with the fewest
+        // electrons taken so far first (bridging halides of a symmetric dimer go one to each metal).
+        std::vector<int> units(metal_bonds.size(), 0);
+        int left = t, left_taken = taken;
+        while (left > 0) {
+            int best = -1;
+            for (size_t b = 0; b < metal_bonds.size(); ++b) {
+                if (units[b] >= m_.bonds[at(metal_bonds[b].bond)].order) continue;
+                const int cb = out_.centre_of_atom[at(metal_bonds[b].atom)];
+                if (best < 0 || taken_[at(cb)] < taken_[at(out_.centre_of_atom[at(metal_bonds[at(best)].atom)])])
+                    best = static_cast<int>(b);
+            }
+            if (best < 0) break;
+            ++units[at(best)];
+            --left;
+            if (left_taken > 0) {
+                ++taken_[at(out_.centre_of_atom[at(metal_bonds[at(best)].atom)])];
+                --left_taken;
+            }
+        }
+        for (size_t b = 0; b < metal_bonds.size(); ++b) {
+            MetalBond mb;
+            mb.donor = i;
+            mb.metal = metal_bonds[b].atom;
+            mb.covalent = units[b];
+            mb.taken = units[b];
+            out_.bonds.push_back(mb);
+        }
+    }
+
+    // Oxidation state and d count of every centre from the electrons its ligands took.
+    void set_oxidation_states() {
         for (size_t k = 0; k < out_.centres.size(); ++k) {
             MetalCentre& c = out_.centres[k];
             const Atom& a = m_.atoms[at(c.atom)];
@@ -783,66 +810,93 @@ private:
         } else if (!named.empty() && c.polyhedron_reason.ends_with("as asked")) {
             sites = named;
         } else if (c.polyhedron == "square pyramidal" && c.sites == 5) {
-            // The multiply bonded ligand at the apex of the square pyramid (apex-base angle 104 degrees, near
-            // VO(acac)2's O=V-O and Re2Cl8 2-'s Re-Re-Cl, from memory), the others round the base.
-            size_t apex_owner = 0;
-            for (size_t s = 0; s < site_owner.size(); ++s)
-                if (multiple_ligand(c.ligands[at(site_owner[s])]) ||
-                    (is_metal(c.ligands[at(site_owner[s])].atoms[0]) && c.ligands[at(site_owner[s])].bond_order >= 2)) {
-                    apex_owner = s;
-                    break;
-                }
-            sites.assign(site_owner.size(), Vector3d::Zero());
-            // Round the base, like donors trans to each other where the order allows (the two chlorides and the two
-            // neutral donors of the benzylidene catalysts are trans; chelates are put cis afterwards).
-            std::vector<size_t> basal;
-            for (size_t s = 0; s < site_owner.size(); ++s)
-                if (s != apex_owner) basal.push_back(s);
-            std::vector<size_t> perm = {1, 2, 3, 4}, best_perm = perm;
-            auto like = [&](size_t a, size_t b) {
-                const LigandDomain& la = c.ligands[at(site_owner[a])];
-                const LigandDomain& lb = c.ligands[at(site_owner[b])];
-                return m_.atoms[at(la.atoms[0])].z == m_.atoms[at(lb.atoms[0])].z && la.bond_order == lb.bond_order;
-            };
-            auto score = [&](const std::vector<size_t>& p) {
-                int n = 0;
-                for (size_t i = 0; i < basal.size() && i < p.size(); ++i)
-                    for (size_t j = i + 1; j < basal.size() && j < p.size(); ++j)
-                        if (named[p[i]].dot(named[p[j]]) < -0.5 && like(basal[i], basal[j])) ++n;
-                return n;
-            };
-            int best_score = score(perm);
-            while (basal.size() == 4 && std::next_permutation(perm.begin(), perm.end()))
-                if (const int sc = score(perm); sc > best_score) best_score = sc, best_perm = perm;
-            size_t k = 0;
-            for (size_t s = 0; s < site_owner.size(); ++s) sites[s] = s == apex_owner ? named[0] : named[best_perm[k++]];
+            sites = square_pyramid_sites(c, site_owner, named);
         } else if (c.sites == 1) {
             sites = {Vector3d::UnitZ()};
         } else {
-            // Kepert: donors on spheres of their own bond lengths; square-planar centres as four bonding domains and
-            // two lone-pair-like domains of the arrangement stage (AX4E2 is square planar there).
-            double longest = 0;
-            for (const LigandDomain& l : c.ligands) longest = std::max(longest, l.length);
-            std::vector<SphereDomain> fitted, arrangement;
-            for (int s : site_owner) {
-                const LigandDomain& l = c.ligands[at(s)];
-                const double r = l.length > 0 && longest > 0 ? l.length / longest : 1.0;
-                // A hydride takes little room: the ligands cis to it lean towards it (HCo(CO)4, HMn(CO)5; common
-                // practice).
-                const bool hydride = !l.hapto() && m_.atoms[at(l.atoms[0])].z == 1;
-                fitted.push_back({hydride ? kHydrideWeight : 1.0, r, kKepertExponent});
-                arrangement.push_back(arrangement_domain(DomainKind::bond));
-            }
-            // The two empty sites of a square-planar centre as lone-pair-like domains of the arrangement stage.
-            const int empty = c.square_planar ? 2 : 0;
-            for (int k = 0; k < empty; ++k) {
-                fitted.push_back(arrangement_domain(DomainKind::lone_pair));
-                arrangement.push_back(arrangement_domain(DomainKind::lone_pair));
-            }
-            std::vector<Vector3d> solved = solve_sphere_staged(arrangement, fitted);
-            solved.resize(site_owner.size());
-            sites = solved;
+            sites = kepert_sites(c, site_owner);
         }
+        std::vector<Vector3d> dirs = directions_on_sites(c, sites, site_owner);
+        if (bent_metallocene(c)) {
+            dirs = bent_metallocene_directions(c);
+            c.polyhedron_reason += "; a bent metallocene (each ring one large domain, the sigma ligands between them)";
+        }
+        c.directions = dirs;
+        if (jahn_teller(c)) elongate(c);
+        if (c.square_planar) trans_influence(c);
+    }
+
+    // A square pyramid with its multiply bonded ligand at the apex, like donors trans round the base.
+    std::vector<Vector3d> square_pyramid_sites(const MetalCentre& c, const std::vector<int>& site_owner,
+                                               const std::vector<Vector3d>& named) const {
+        std::vector<Vector3d> sites;
+        // The multiply bonded ligand at the apex of the square pyramid (apex-base angle 104 degrees, near
+        // VO(acac)2's O=V-O and Re2Cl8 2-'s Re-Re-Cl, from memory), the others round the base.
+        size_t apex_owner = 0;
+        for (size_t s = 0; s < site_owner.size(); ++s)
+            if (multiple_ligand(c.ligands[at(site_owner[s])]) ||
+                (is_metal(c.ligands[at(site_owner[s])].atoms[0]) && c.ligands[at(site_owner[s])].bond_order >= 2)) {
+                apex_owner = s;
+                break;
+            }
+        sites.assign(site_owner.size(), Vector3d::Zero());
+        // Round the base, like donors trans to each other where the order allows (the two chlorides and the two
+        // neutral donors of the benzylidene catalysts are trans; chelates are put cis afterwards).
+        std::vector<size_t> basal;
+        for (size_t s = 0; s < site_owner.size(); ++s)
+            if (s != apex_owner) basal.push_back(s);
+        std::vector<size_t> perm = {1, 2, 3, 4}, best_perm = perm;
+        auto like = [&](size_t a, size_t b) {
+            const LigandDomain& la = c.ligands[at(site_owner[a])];
+            const LigandDomain& lb = c.ligands[at(site_owner[b])];
+            return m_.atoms[at(la.atoms[0])].z == m_.atoms[at(lb.atoms[0])].z && la.bond_order == lb.bond_order;
+        };
+        auto score = [&](const std::vector<size_t>& p) {
+            int n = 0;
+            for (size_t i = 0; i < basal.size() && i < p.size(); ++i)
+                for (size_t j = i + 1; j < basal.size() && j < p.size(); ++j)
+                    if (named[p[i]].dot(named[p[j]]) < -0.5 && like(basal[i], basal[j])) ++n;
+            return n;
+        };
+        int best_score = score(perm);
+        while (basal.size() == 4 && std::next_permutation(perm.begin(), perm.end()))
+            if (const int sc = score(perm); sc > best_score) best_score = sc, best_perm = perm;
+        size_t k = 0;
+        for (size_t s = 0; s < site_owner.size(); ++s) sites[s] = s == apex_owner ? named[0] : named[best_perm[k++]];
+        return sites;
+    }
+
+    // The Kepert arrangement of the centre's sites, solved on the sphere.
+    std::vector<Vector3d> kepert_sites(const MetalCentre& c, const std::vector<int>& site_owner) const {
+        // Kepert: donors on spheres of their own bond lengths; square-planar centres as four bonding domains and
+        // two lone-pair-like domains of the arrangement stage (AX4E2 is square planar there).
+        double longest = 0;
+        for (const LigandDomain& l : c.ligands) longest = std::max(longest, l.length);
+        std::vector<SphereDomain> fitted, arrangement;
+        for (int s : site_owner) {
+            const LigandDomain& l = c.ligands[at(s)];
+            const double r = l.length > 0 && longest > 0 ? l.length / longest : 1.0;
+            // A hydride takes little room: the ligands cis to it lean towards it (HCo(CO)4, HMn(CO)5; common
+            // practice).
+            const bool hydride = !l.hapto() && m_.atoms[at(l.atoms[0])].z == 1;
+            fitted.push_back({hydride ? kHydrideWeight : 1.0, r, kKepertExponent});
+            arrangement.push_back(arrangement_domain(DomainKind::bond));
+        }
+        // The two empty sites of a square-planar centre as lone-pair-like domains of the arrangement stage.
+        const int empty = c.square_planar ? 2 : 0;
+        for (int k = 0; k < empty; ++k) {
+            fitted.push_back(arrangement_domain(DomainKind::lone_pair));
+            arrangement.push_back(arrangement_domain(DomainKind::lone_pair));
+        }
+        std::vector<Vector3d> solved = solve_sphere_staged(arrangement, fitted);
+        solved.resize(site_owner.size());
+        return solved;
+    }
+
+    // Each ligand's direction on the sites: hapto ligands on the closest free sites, sigma donors on their own.
+    std::vector<Vector3d> directions_on_sites(MetalCentre& c, const std::vector<Vector3d>& sites,
+                                              const std::vector<int>& site_owner) {
+        const int nl = static_cast<int>(c.ligands.size());
         // Hapto ligands on the closest free sites, then sigma donors on their own solved site where free.
         std::vector<char> taken(sites.size(), 0);
         std::vector<Vector3d> dirs(at(nl), Vector3d::Zero());
@@ -879,13 +933,7 @@ private:
             if (!taken[s]) free_sites.push_back(s);
         const std::vector<size_t> chosen = assign_sigma_sites(c, sigma, own_site, free_sites, sites);
         for (size_t k = 0; k < sigma.size() && k < chosen.size(); ++k) dirs[at(sigma[k])] = sites[chosen[k]];
-        if (bent_metallocene(c)) {
-            dirs = bent_metallocene_directions(c);
-            c.polyhedron_reason += "; a bent metallocene (each ring one large domain, the sigma ligands between them)";
-        }
-        c.directions = dirs;
-        if (jahn_teller(c)) elongate(c);
-        if (c.square_planar) trans_influence(c);
+        return dirs;
     }
 
     // A bent metallocene (two rings of three sites each and one to three sigma ligands: Cp2TiCl2, Cp2ZrCl2, Cp2WH2,
