@@ -745,3 +745,30 @@ TEST(BuildOptionsSpin, ChargeMustMatchAndMultiplicityMustFitTheElectrons) {
         EXPECT_NE(std::string(e.what()).find("odd multiplicities"), std::string::npos) << e.what();
     }
 }
+
+// Cumulenes: the planes of the two ends are perpendicular across an even number of cumulated double bonds (allene,
+// D2d: H-C-C-H planes at 90 degrees; tetramethylhexapentaene's ends likewise) and coplanar across an odd number
+// (butatriene, D2h) -- the p orbitals alternate along the chain (common practice; the symmetries from memory).
+// Measured from the written coordinates as the dihedral between an end's substituent and the other end's.
+TEST(Assemble, CumuleneEndsArePerpendicularOrCoplanarByTheCountOfDoubleBonds) {
+    struct Case {
+        const char* smiles;
+        int a, end1, end2, d;  // 0-based: a on end1, d on end2 (heavy atoms first, hydrogens after in input order)
+        double expected;       // |dihedral| in degrees
+    };
+    // Atom order: the SMILES atoms, then the hydrogens. Allene C=C=C: C0 C1 C2, H3 H4 on C0, H5 H6 on C2.
+    const Case cases[] = {
+        {"C=C=C", 3, 0, 2, 5, 90.0},
+        {"CC=C=CC", 0, 1, 3, 4, 90.0},                    // 1,3-dimethylallene: C0 on C1, C4 on C3
+        {"CC(C)=C=C=C=C(C)C", 0, 1, 6, 7, 90.0},          // four cumulated double bonds
+        {"C=C=C=C", 4, 0, 3, 6, 0.0},                     // butatriene: three, coplanar (0 or 180)
+    };
+    for (const Case& k : cases) {
+        const Structure s = build(k.smiles);
+        double phi = std::abs(dihedral(s.positions[static_cast<size_t>(k.a)], s.positions[static_cast<size_t>(k.end1)],
+                                       s.positions[static_cast<size_t>(k.end2)], s.positions[static_cast<size_t>(k.d)]) *
+                              180 / M_PI);
+        if (k.expected == 0.0) phi = std::min(phi, 180.0 - phi);  // coplanar: cis or trans
+        EXPECT_NEAR(phi, k.expected, 5.0) << k.smiles;
+    }
+}

@@ -249,7 +249,38 @@ private:
         *r = preferred(p, refs);
         *n = preferred(c, children);
         *target = kPi;  // anti
+        if (*r >= 0 && *n >= 0) straight_chain_reference(p, c, r, target);
         return *r >= 0 && *n >= 0;
+    }
+
+    // Through a straight chain (the middle atoms of an allene or a cumulene, an alkyne) the dihedral r-p-c-n has no
+    // meaning: the reference becomes the first atom off the line, found by walking back along the chain. Across a
+    // chain of cumulated double bonds the ends' planes are perpendicular for an even count (allenes) and coplanar for
+    // an odd one (butatrienes), the p orbitals alternating along the chain (common practice; allene's H-C-C-H planes
+    // are at 90 degrees in its D2d structure, from memory).
+    void straight_chain_reference(int p, int c, int* r, double* target) const {
+        constexpr double kStraight = -0.9962;  // cos 175 degrees
+        int before = c, end = p, ref = *r;
+        bool cumulated = m_.bonds[at(m_.bond_between(p, c))].order == 2;
+        int doubles = 1;
+        bool moved = false;
+        for (int guard = 0; guard < m_.atom_count() && ref >= 0; ++guard) {
+            const Vector3d u = (pos_[at(before)] - pos_[at(end)]).normalized();
+            const Vector3d v = (pos_[at(ref)] - pos_[at(end)]).normalized();
+            if (u.dot(v) > kStraight) break;  // ref is off the line: the reference
+            cumulated = cumulated && m_.bonds[at(m_.bond_between(end, ref))].order == 2;
+            ++doubles;
+            std::vector<int> refs;
+            for (const Neighbor& x : m_.neighbors(ref))
+                if (x.atom != end && placed_[at(x.atom)]) refs.push_back(x.atom);
+            before = end;
+            end = ref;
+            ref = preferred(end, refs);
+            moved = true;
+        }
+        if (!moved || ref < 0) return;
+        *r = ref;
+        if (cumulated) *target = doubles % 2 == 0 ? kPi / 2 : kPi;
     }
 
     // Places the unplaced neighbours of a placed atom.
