@@ -1,0 +1,81 @@
+#!/usr/bin/env python3
+"""xtb from repel's builds of molecules whose symmetric arrangement is a saddle (issue "Conformer ensembles").
+
+Usage (ctest): /usr/bin/python3 check_xtb_saddles.py PATH/TO/repel [--jobs N]
+
+Client: xtb, Debian package `xtb` (/usr/bin/xtb), GFN2-xTB, Bannwarth, Ehlert and Grimme, J. Chem. Theory Comput. 15
+(2019) 1652. A flat allene is a saddle that xtb keeps (by symmetry its gradient across the twist is zero), so a
+build must start in the right basin. For each molecule: `repel build SMILES -o start.xyz`; the dihedral between the
+two end groups of the cumulene from the written coordinates; `xtb start.xyz --opt normal`; the same dihedral at the
+optimum. Expected (common practice, the p orbitals alternate along a cumulene; allene D2d, butatriene D2h, from
+memory): 90 degrees across an even number of cumulated double bonds, 0 or 180 across an odd number, within 10
+degrees both in the start and at the optimum. Closes with `N passed, M failed`; exits 1 on any failure.
+"""
+
+import concurrent.futures
+import os
+import sys
+import time
+
+sys.dont_write_bytecode = True  # no __pycache__ in the source tree
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+import check_xtb_client  # noqa: E402
+from check_xtb_client import begin_check, run_xtb  # noqa: E402
+from common import dihedral_deg, parse_xyz, run_repel  # noqa: E402
+
+check_xtb_client.XTB_TIMEOUT = 300  # a hang guard only: each molecule takes seconds on one core
+
+# name, SMILES, (a, end1, end2, d): 0-based atoms of the dihedral (repel writes the SMILES atoms, then hydrogens), the
+# expected |dihedral| (90, or 0 for coplanar: 0 or 180).
+MOLECULES = [
+    ('allene', 'C=C=C', (3, 0, 2, 5), 90),
+    ('1,3-dimethylallene', 'CC=C=CC', (0, 1, 3, 4), 90),
+    ('1,3-dichloro-1,3-difluoroallene', 'ClC(F)=C=C(F)Cl', (0, 1, 4, 5), 90),
+    ('tetramethylhexapentaene', 'CC(C)=C=C=C=C(C)C', (0, 1, 6, 7), 90),
+    ('butatriene', 'C=C=C=C', (4, 0, 3, 6), 0),
+]
+
+
+def off_target(phi, expected):
+    phi = abs(phi)
+    return abs(phi - 90) if expected == 90 else min(phi, 180 - phi)
+
+
+def one(exe, tmp, k, name, smiles, atoms):
+    work = os.path.join(tmp, f'{k:02d}')
+    os.makedirs(work)
+    r = run_repel(exe, ['build', smiles, '-o', os.path.join(work, 'start.xyz')])
+    if r.returncode != 0:
+        return name, None, None, f'repel build failed: {r.stderr.strip()}'
+    with open(os.path.join(work, 'start.xyz')) as f:
+        symbols, coords, _, _ = parse_xyz(f.read())
+    start = dihedral_deg(*(coords[i] for i in atoms))
+    x = run_xtb(work, 'start.xyz', 0, 0)
+    if x.get('cycles') is None:
+        return name, start, None, f'xtb did not converge ({x.get("error", x.get("returncode"))})'
+    with open(os.path.join(work, 'xtbopt.xyz')) as f:
+        _, opt, _, _ = parse_xyz(f.read())
+    return name, start, dihedral_deg(*(opt[i] for i in atoms)), x['cycles']
+
+
+def main():
+    exe, jobs, t, clock, tmp = begin_check('check_xtb_saddles.py', 'repel_saddles_')
+    with concurrent.futures.ThreadPoolExecutor(max_workers=jobs) as pool:
+        futures = [pool.submit(one, exe, tmp, k, name, smiles, atoms)
+                   for k, (name, smiles, atoms, _) in enumerate(MOLECULES)]
+        results = [f.result() for f in futures]
+    for (name, smiles, atoms, expected), (_, start, opt, extra) in zip(MOLECULES, results):
+        if opt is None:
+            t.check(False, f'{name}: {extra}')
+            continue
+        t.check(off_target(start, expected) <= 10,
+                f'{name}: built end-group dihedral {start:.1f} deg, expected {expected} (0 or 180)')
+        t.check(off_target(opt, expected) <= 10,
+                f'{name}: xtb optimum dihedral {opt:.1f} deg, expected {expected} (0 or 180)')
+        print(f'{name:34s} built {start:7.1f}  xtb {opt:7.1f}  expected {expected:3d}  cycles {extra}')
+    print(f'({time.time() - clock:.1f} s)')
+    t.finish(tmp)
+
+
+if __name__ == '__main__':
+    main()
