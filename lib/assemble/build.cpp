@@ -176,6 +176,114 @@ std::vector<DistanceRestraint> hapto_frame_restraints(const Molecule& skeleton, 
     return out;
 }
 
+// The charge and multiplicity asked for, checked against the written structure (BuildOptions::charge, multiplicity).
+void apply_charge_and_multiplicity(const Molecule& molecule, const MoleculeDomains& domains, const BuildOptions& options,
+                                   Structure& s) {
+    if (options.charge && *options.charge != domains.charge)
+        throw InputError(fmt::format("total charge {} was asked for, but the written formal charges add up to {}; write "
+                                     "the charges on the atoms (e.g. [NH4+], [O-])",
+                                     *options.charge, domains.charge));
+    if (options.multiplicity) {
+        long electrons = -domains.charge;
+        for (const Atom& a : molecule.atoms) electrons += a.z;
+        const long unpaired = static_cast<long>(*options.multiplicity) - 1;
+        if (*options.multiplicity < 1)
+            throw InputError(fmt::format("multiplicity {} is not possible: it is 2S+1, at least 1", *options.multiplicity));
+        if (unpaired > electrons || (electrons - unpaired) % 2 != 0)
+            throw InputError(fmt::format(
+                "multiplicity {} is not possible for {} electrons: it needs {} unpaired electrons, and an {} electron "
+                "count allows only {} multiplicities ({}){}",
+                *options.multiplicity, electrons, unpaired, electrons % 2 == 0 ? "even" : "odd",
+                electrons % 2 == 0 ? "odd" : "even", electrons % 2 == 0 ? "1, 3, 5, ..." : "2, 4, 6, ...",
+                unpaired > electrons ? fmt::format("; at most {}", electrons + 1) : ""));
+        if (*options.multiplicity != domains.multiplicity) {
+            // The analysis's own ground-state warnings no longer hold; say what was written instead.
+            std::erase_if(s.warnings, [](const std::string& w) {
+                return w.find("multiplicity raised by") != std::string::npos ||
+                       w.find("written high-spin") != std::string::npos;
+            });
+            s.warnings.push_back(fmt::format("multiplicity {} as asked for (the Lewis structure as written gives {}); the "
+                                             "coordinates are those of the structure as written",
+                                             *options.multiplicity, domains.multiplicity));
+        }
+        s.multiplicity = *options.multiplicity;
+        s.multiplicity_reason = "as asked";
+    }
+}
+
+// The stereo marks placed in 3D: a target per mark the skeleton can carry; the rest are said in warnings.
+std::vector<ChiralTarget> placed_chiral_targets(const Molecule& molecule, const Molecule& skeleton,
+                                                const MoleculeDomains& domains, std::vector<std::string>& warnings) {
+    std::vector<ChiralTarget> chiral;
+    for (const ChiralTarget& t : chiral_targets(molecule, warnings)) {
+        const CentreDomains& c = domains.atoms[static_cast<size_t>(t.centre)];
+        // A metal centre whose analysis did not place the ligands by the mark (warned there), and a mark whose
+        // neighbours include hapto-bonded atoms (no longer bonded in the skeleton being assembled): no target.
+        const int mc = domains.metals.centre_of_atom.empty() ? -1
+                                                              : domains.metals.centre_of_atom[static_cast<size_t>(t.centre)];
+        if (mc >= 0) {
+            const std::string& note = domains.metals.centres[static_cast<size_t>(mc)].stereo_note;
+            if (!note.empty() && !note.starts_with("ligands placed")) continue;
+        }
+        if (skeleton.bond_between(t.centre, t.n1) < 0 || skeleton.bond_between(t.centre, t.n2) < 0 ||
+            skeleton.bond_between(t.centre, t.n3) < 0)
+            continue;
+        // Three neighbours and no lone pair: a planar centre (a carbocation, a borane) has no handedness.
+        if (c.bonded == 3 && c.lone_pairs + c.single_electrons == 0)
+            warnings.push_back(fmt::format("stereo mark on atom {} not applied: the centre is planar (three "
+                                             "neighbours, no lone pair)",
+                                             t.centre + 1));
+        else
+            chiral.push_back(t);
+    }
+    return chiral;
+}
+
+// Every ring system embedded on its own; strain and missed conditions are said in warnings, and marked in `warned`.
+std::vector<RingSystemCoordinates> embed_ring_systems(const Molecule& skeleton, const MoleculeDomains& domains,
+                                                      const RingInfo& rings, const std::vector<ChiralTarget>& chiral,
+                                                      std::vector<char>& warned_system, std::vector<std::string>& warnings) {
+    std::vector<RingSystemCoordinates> ring_xyz;
+    ring_xyz.reserve(rings.systems.size());
+    warned_system.assign(rings.systems.size(), 0);
+    for (size_t k = 0; k < rings.systems.size(); ++k) {
+        check_deadline("embedding ring systems");
+        RingSystemEmbedding e = embed_ring_system(skeleton, domains, rings, static_cast<int>(k), chiral);
+        const auto& atoms = rings.systems[k];
+        if (e.worst_angle_strain > kStrainWarningDegrees || !e.satisfied) warned_system[k] = 1;
+        if (e.worst_angle_strain > kStrainWarningDegrees)
+            warnings.push_back(fmt::format(
+                "strained ring system (atoms {}..{}, {} atoms): ring angles up to {:.0f} degrees from the domain "
+                "angles; check the geometry with a quantum-chemistry optimisation",
+                atoms.front() + 1, atoms.back() + 1, atoms.size(), e.worst_angle_strain));
+        if (!e.satisfied)
+            warnings.push_back(fmt::format("ring system (atoms {}..{}, {} atoms) could not be given its ideal ring "
+                                             "geometry (bond, angle or torsion targets missed); check it with a "
+                                             "quantum-chemistry optimisation",
+                                             atoms.front() + 1, atoms.back() + 1, atoms.size()));
+        ring_xyz.push_back(std::move(e.coordinates));
+    }
+
+    return ring_xyz;
+}
+
+// The last checks of a built structure: overlapping atoms refuse it, the closest contact is said, and a non-finite
+// coordinate is a bug.
+void final_checks(const Molecule& molecule, Structure& s) {
+    Contact nearest, tightest;
+    closest_contacts(molecule, s.positions, &nearest, &tightest);
+    if (nearest.a >= 0 && nearest.distance < kOverlapDistance)
+        throw UnsupportedError(fmt::format("could not build a structure without overlapping atoms: atoms {} and {} "
+                                           "end up {:.2f} A apart",
+                                           nearest.a + 1, nearest.b + 1, nearest.distance));
+    if (tightest.a >= 0)
+        s.warnings.push_back(fmt::format("close contact: atoms {} and {} are {:.2f} A apart ({:.0f}% of their van der "
+                                         "Waals contact)",
+                                         tightest.a + 1, tightest.b + 1, tightest.distance, 100 * tightest.fraction));
+    for (const Vector3d& p : s.positions)
+        if (!p.allFinite()) throw std::logic_error("assembly produced a non-finite coordinate");
+}
+
 }  // namespace
 
 Structure build_structure(const Molecule& written, const BuildOptions& options) {
@@ -217,87 +325,19 @@ Structure build_structure(const Molecule& written, const BuildOptions& options) 
     s.multiplicity_reason = domains.multiplicity_reason;
     s.warnings = join_notes;
     for (const std::string& w : domains.warnings) s.warnings.push_back(w);
-    if (options.charge && *options.charge != domains.charge)
-        throw InputError(fmt::format("total charge {} was asked for, but the written formal charges add up to {}; write "
-                                     "the charges on the atoms (e.g. [NH4+], [O-])",
-                                     *options.charge, domains.charge));
-    if (options.multiplicity) {
-        long electrons = -domains.charge;
-        for (const Atom& a : molecule.atoms) electrons += a.z;
-        const long unpaired = static_cast<long>(*options.multiplicity) - 1;
-        if (*options.multiplicity < 1)
-            throw InputError(fmt::format("multiplicity {} is not possible: it is 2S+1, at least 1", *options.multiplicity));
-        if (unpaired > electrons || (electrons - unpaired) % 2 != 0)
-            throw InputError(fmt::format(
-                "multiplicity {} is not possible for {} electrons: it needs {} unpaired electrons, and an {} electron "
-                "count allows only {} multiplicities ({}){}",
-                *options.multiplicity, electrons, unpaired, electrons % 2 == 0 ? "even" : "odd",
-                electrons % 2 == 0 ? "odd" : "even", electrons % 2 == 0 ? "1, 3, 5, ..." : "2, 4, 6, ...",
-                unpaired > electrons ? fmt::format("; at most {}", electrons + 1) : ""));
-        if (*options.multiplicity != domains.multiplicity) {
-            // The analysis's own ground-state warnings no longer hold; say what was written instead.
-            std::erase_if(s.warnings, [](const std::string& w) {
-                return w.find("multiplicity raised by") != std::string::npos ||
-                       w.find("written high-spin") != std::string::npos;
-            });
-            s.warnings.push_back(fmt::format("multiplicity {} as asked for (the Lewis structure as written gives {}); the "
-                                             "coordinates are those of the structure as written",
-                                             *options.multiplicity, domains.multiplicity));
-        }
-        s.multiplicity = *options.multiplicity;
-        s.multiplicity_reason = "as asked";
-    }
+    apply_charge_and_multiplicity(molecule, domains, options, s);
     for (int i = 0; i < n; ++i)
         s.molecule.atoms[static_cast<size_t>(i)].radical_electrons =
             domains.atoms[static_cast<size_t>(i)].single_electrons + domains.atoms[static_cast<size_t>(i)].p_single_electrons;
 
-    std::vector<ChiralTarget> chiral;
-    for (const ChiralTarget& t : chiral_targets(molecule, s.warnings)) {
-        const CentreDomains& c = domains.atoms[static_cast<size_t>(t.centre)];
-        // A metal centre whose analysis did not place the ligands by the mark (warned there), and a mark whose
-        // neighbours include hapto-bonded atoms (no longer bonded in the skeleton being assembled): no target.
-        const int mc = domains.metals.centre_of_atom.empty() ? -1
-                                                              : domains.metals.centre_of_atom[static_cast<size_t>(t.centre)];
-        if (mc >= 0) {
-            const std::string& note = domains.metals.centres[static_cast<size_t>(mc)].stereo_note;
-            if (!note.empty() && !note.starts_with("ligands placed")) continue;
-        }
-        if (skeleton.bond_between(t.centre, t.n1) < 0 || skeleton.bond_between(t.centre, t.n2) < 0 ||
-            skeleton.bond_between(t.centre, t.n3) < 0)
-            continue;
-        // Three neighbours and no lone pair: a planar centre (a carbocation, a borane) has no handedness.
-        if (c.bonded == 3 && c.lone_pairs + c.single_electrons == 0)
-            s.warnings.push_back(fmt::format("stereo mark on atom {} not applied: the centre is planar (three "
-                                             "neighbours, no lone pair)",
-                                             t.centre + 1));
-        else
-            chiral.push_back(t);
-    }
+    const std::vector<ChiralTarget> chiral = placed_chiral_targets(molecule, skeleton, domains, s.warnings);
     const auto double_bonds = double_bond_targets(molecule);
 
     const RingInfo rings = perceive_rings(skeleton);
     check_deadline("perceiving rings");
-    std::vector<RingSystemCoordinates> ring_xyz;
-    ring_xyz.reserve(rings.systems.size());
-    std::vector<char> warned_system(rings.systems.size(), 0);
-    for (size_t k = 0; k < rings.systems.size(); ++k) {
-        check_deadline("embedding ring systems");
-        RingSystemEmbedding e = embed_ring_system(skeleton, domains, rings, static_cast<int>(k), chiral);
-        const auto& atoms = rings.systems[k];
-        if (e.worst_angle_strain > kStrainWarningDegrees || !e.satisfied) warned_system[k] = 1;
-        if (e.worst_angle_strain > kStrainWarningDegrees)
-            s.warnings.push_back(fmt::format(
-                "strained ring system (atoms {}..{}, {} atoms): ring angles up to {:.0f} degrees from the domain "
-                "angles; check the geometry with a quantum-chemistry optimisation",
-                atoms.front() + 1, atoms.back() + 1, atoms.size(), e.worst_angle_strain));
-        if (!e.satisfied)
-            s.warnings.push_back(fmt::format("ring system (atoms {}..{}, {} atoms) could not be given its ideal ring "
-                                             "geometry (bond, angle or torsion targets missed); check it with a "
-                                             "quantum-chemistry optimisation",
-                                             atoms.front() + 1, atoms.back() + 1, atoms.size()));
-        ring_xyz.push_back(std::move(e.coordinates));
-    }
-
+    std::vector<char> warned_system;
+    const std::vector<RingSystemCoordinates> ring_xyz =
+        embed_ring_systems(skeleton, domains, rings, chiral, warned_system, s.warnings);
     s.positions = assemble_positions(skeleton, domains, rings, ring_xyz, chiral);
     std::vector<std::optional<Vector3d>> site_shift;
     if (hapto) place_hapto_ligands(skeleton, domains, s.positions, s.warnings, &site_shift);
@@ -330,18 +370,7 @@ Structure build_structure(const Molecule& written, const BuildOptions& options) 
             s.warnings.push_back(fmt::format("double bond {}-{} does not have the written configuration in 3D",
                                              t.b + 1, t.c + 1));
 
-    Contact nearest, tightest;
-    closest_contacts(molecule, s.positions, &nearest, &tightest);
-    if (nearest.a >= 0 && nearest.distance < kOverlapDistance)
-        throw UnsupportedError(fmt::format("could not build a structure without overlapping atoms: atoms {} and {} "
-                                           "end up {:.2f} A apart",
-                                           nearest.a + 1, nearest.b + 1, nearest.distance));
-    if (tightest.a >= 0)
-        s.warnings.push_back(fmt::format("close contact: atoms {} and {} are {:.2f} A apart ({:.0f}% of their van der "
-                                         "Waals contact)",
-                                         tightest.a + 1, tightest.b + 1, tightest.distance, 100 * tightest.fraction));
-    for (const Vector3d& p : s.positions)
-        if (!p.allFinite()) throw std::logic_error("assembly produced a non-finite coordinate");
+    final_checks(molecule, s);
     return s;
 }
 
