@@ -10,7 +10,7 @@
 #include "assemble/hapto.hpp"
 #include "core/neighbor_grid.hpp"
 #include "assemble/ring_embed.hpp"
-#include "assemble/rings.hpp"
+#include "graph/rings.hpp"
 #include "assemble/stereo.hpp"
 #include "core/element.hpp"
 #include "core/error.hpp"

@@ -13,9 +13,9 @@
 #include <cstdlib>
 #include <sstream>
 
-#include "assemble/rings.hpp"
 #include "assemble/stereo.hpp"
 #include "core/error.hpp"
+#include "graph/rings.hpp"
 #include "input/kekulize.hpp"
 #include "input/organic_subset.hpp"
 #include "input/structure_reader.hpp"
@@ -47,27 +47,6 @@ int target_valence(const OrganicElement& e, int charge, int sum) {
     if (const size_t at = message.find(local_start); at != std::string::npos)
         message.replace(at, local_start.size(), fmt::format("record starting on line {})", first_line));
     throw InputError(message, e.text(), e.column());
-}
-
-// Whether a and b are joined by a path of at most max_bonds bonds that avoids the bond between them (a small ring,
-// where a double bond's configuration is fixed by the ring and is not marked).
-bool in_small_ring(const Molecule& m, int bond, int max_bonds) {
-    const Bond& b = m.bonds[static_cast<size_t>(bond)];
-    std::vector<int> depth(static_cast<size_t>(m.atom_count()), -1);
-    std::deque<int> queue{b.a};
-    depth[static_cast<size_t>(b.a)] = 0;
-    while (!queue.empty()) {
-        const int at = queue.front();
-        queue.pop_front();
-        if (depth[static_cast<size_t>(at)] >= max_bonds) continue;
-        for (const Neighbor& n : m.neighbors(at)) {
-            if (n.bond == bond || depth[static_cast<size_t>(n.atom)] >= 0) continue;
-            if (n.atom == b.b) return true;
-            depth[static_cast<size_t>(n.atom)] = depth[static_cast<size_t>(at)] + 1;
-            queue.push_back(n.atom);
-        }
-    }
-    return false;
 }
 
 }  // namespace
@@ -308,7 +287,9 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
         atom.chiral_class = ChiralClass::TH;
         atom.chiral_index = (volume < 0 ? -1 : 1) == kAnticlockwiseSign ? 1 : 2;
     }
-    // Double bonds outside rings of up to 8 atoms, with a substituent at each end: cis or trans as drawn.
+    // Double bonds outside rings of up to 8 atoms, with a substituent at each end: cis or trans as drawn (in a small
+    // ring the ring fixes the configuration, and it is not marked).
+    SmallRingSearch small_rings(m);
     for (int b = 0; b < m.bond_count(); ++b) {
         Bond& bond = m.bonds[static_cast<size_t>(b)];
         if (bond.order != 2 || bond.aromatic) continue;
@@ -321,7 +302,7 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
             return best;
         };
         const int ra = pick(bond.a, bond.b), rb = pick(bond.b, bond.a);
-        if (ra < 0 || rb < 0 || in_small_ring(m, b, 7)) continue;
+        if (ra < 0 || rb < 0 || small_rings.bond_in_ring(b, 8)) continue;
         const Eigen::Vector3d b1 = pos[static_cast<size_t>(bond.a)] - pos[static_cast<size_t>(ra)];
         const Eigen::Vector3d b2 = pos[static_cast<size_t>(bond.b)] - pos[static_cast<size_t>(bond.a)];
         const Eigen::Vector3d b3 = pos[static_cast<size_t>(rb)] - pos[static_cast<size_t>(bond.b)];
