@@ -11,7 +11,7 @@
 #include "core/neighbor_grid.hpp"
 #include "assemble/ring_embed.hpp"
 #include "graph/rings.hpp"
-#include "assemble/stereo.hpp"
+#include "graph/stereo.hpp"
 #include "core/element.hpp"
 #include "core/error.hpp"
 #include "domains/domains.hpp"

@@ -1,6 +1,5 @@
 #include "input/sd_molecule.hpp"
 
-#include "domains/metal.hpp"
 #include "graph/polyhedral_stereo.hpp"
 
 #include <fmt/format.h>
@@ -13,7 +12,8 @@
 #include <cstdlib>
 #include <sstream>
 
-#include "assemble/stereo.hpp"
+#include "graph/stereo.hpp"
+#include "core/element.hpp"
 #include "core/error.hpp"
 #include "graph/rings.hpp"
 #include "input/kekulize.hpp"
@@ -273,7 +273,7 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
             d.push_back(v.normalized());
         }
         if (!wedged) continue;  // a flat drawing without wedges at this centre: no handedness shown
-        // The orientation that the library's chirality targets use (assemble/stereo.hpp): with the neighbours in list
+        // The orientation that the library's chirality targets use (graph/stereo.hpp): with the neighbours in list
         // order n0 n1 n2 n3, '@' puts (n1, n2, n3) at kAnticlockwiseSign seen from the centre, which has the sign of
         // the tetrahedron (n0, n1, n2, n3) since the centre lies on n0's side of the face n1 n2 n3 (this form also
         // works when only n0 is out of the plane of a drawing). With an implicit hydrogen listed second (n0 H n1 n2),
