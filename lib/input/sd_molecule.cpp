@@ -17,20 +17,11 @@
 #include "core/error.hpp"
 #include "graph/rings.hpp"
 #include "input/kekulize.hpp"
-#include "input/organic_subset.hpp"
+#include "graph/valence.hpp"
 #include "input/structure_reader.hpp"
 
 namespace repel {
 namespace {
-
-// The valence an organic-subset atom takes with formal charge q (isoelectronic counting: N+ like C, O- like F, C+ and
-// C- with three bonds, B- like C); common practice, the rule CTfile readers apply to atoms without stated hydrogens.
-int target_valence(const OrganicElement& e, int charge, int sum) {
-    if (charge == 0) return e.lowest_valence_at_least(sum);
-    if (e.z == 6) return 4 - std::abs(charge);
-    if (e.z == 5) return 3 - charge;
-    return e.valences[0] + charge;
-}
 
 // The line numbers of the reader count from the record's first line; the file's count from first_line.
 [[noreturn]] void rethrow_with_file_lines(const InputError& e, long first_line) {
@@ -198,7 +189,7 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
             const OrganicElement* e = organic_element(atom.z);
             if (!e) continue;
             const int sum = m.bond_order_sum(a);
-            const int v = target_valence(*e, atom.charge, sum + 1);
+            const int v = charged_organic_valence(*e, atom.charge, sum + 1);
             const int unpaired = atom.radical_electrons > 0 ? atom.radical_electrons : 0;
             needs[static_cast<size_t>(a)] = v - sum - unpaired >= 1 ? 1 : 0;
         }
@@ -222,7 +213,7 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
         if (on_metal) continue;
         const int sum = m.bond_order_sum(a);
         const int unpaired = atom.radical_electrons > 0 ? atom.radical_electrons : 0;
-        const int v = target_valence(*e, atom.charge, sum + unpaired);
+        const int v = charged_organic_valence(*e, atom.charge, sum + unpaired);
         if (v < 0 || sum + unpaired > v) continue;  // more bonds than a normal valence: hypervalent as written
         atom.hydrogens = v - sum - unpaired;
     }
