@@ -11,7 +11,7 @@
 #include <vector>
 
 #include "assemble/build.hpp"
-#include "assemble/stereo.hpp"
+#include "graph/stereo.hpp"
 #include "core/bond_length.hpp"
 #include "domains/domains.hpp"
 #include "drug_set.hpp"

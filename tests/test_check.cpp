@@ -252,7 +252,7 @@ TEST(Reference, StereocentresDoubleBondsAndAtomsAreComparedWithTheSmiles) {
     b.reference_smiles = "[C@@](F)(Cl)(Br)[H]";
     Audit x = audit_structure(xyz(text), a), y = audit_structure(xyz(text), b);
     // Cl . (Br x H) = +4 (unit-cube directions): positive, which is '@@' (OpenSMILES puts the three neighbours after
-    // the first at negative signed volume for '@'; derivation in assemble/stereo.hpp). So '@' is the mirror image.
+    // the first at negative signed volume for '@'; derivation in graph/stereo.hpp). So '@' is the mirror image.
     EXPECT_TRUE(has(x, "stereocentre", 1)) << describe(x);
     EXPECT_EQ(x.findings.size(), 1u) << describe(x);
     EXPECT_TRUE(y.findings.empty()) << describe(y);

@@ -8,7 +8,7 @@
 #include "assemble/distance_geometry.hpp"
 #include "assemble/place.hpp"
 #include "assemble/ring_embed.hpp"
-#include "assemble/rings.hpp"
+#include "graph/rings.hpp"
 #include "domains/domains.hpp"
 #include "input/smiles.hpp"
 
@@ -31,6 +31,30 @@ std::vector<int> ring_sizes(const RingInfo& r) {
 }
 
 }  // namespace
+
+// The bounded searches: an angle, an atom and a bond in rings of at most a given size (indices as read: SMILES order,
+// hydrogens after the heavy atoms).
+TEST(SmallRingSearch, AngleAtomAndBondMembership) {
+    // Methylcyclopropane: C0 outside, C1 C2 C3 the three-membered ring.
+    const Molecule cp = mol("CC1CC1");
+    SmallRingSearch cps(cp);
+    EXPECT_TRUE(cps.angle_in_ring(2, 1, 3, 3));
+    EXPECT_FALSE(cps.angle_in_ring(0, 1, 2, 9));   // the methyl is on no ring
+    EXPECT_EQ(cps.ring_through(2, 1, 3, 3), (std::vector<int>{1, 2, 3}));
+    EXPECT_TRUE(cps.atom_in_ring(1, 4));
+    EXPECT_FALSE(cps.atom_in_ring(0, 9));
+    EXPECT_TRUE(cps.bond_in_ring(cp.bond_between(1, 2), 3));
+    EXPECT_FALSE(cps.bond_in_ring(cp.bond_between(0, 1), 9));
+    // Cyclohexene: the double bond C0=C1 lies in a six-membered ring, not in one of five or fewer.
+    const Molecule hx = mol("C1=CCCCC1");
+    SmallRingSearch hxs(hx);
+    const int db = hx.bond_between(0, 1);
+    EXPECT_TRUE(hxs.bond_in_ring(db, 6));
+    EXPECT_FALSE(hxs.bond_in_ring(db, 5));
+    EXPECT_TRUE(hxs.angle_in_ring(1, 0, 5, 6));
+    EXPECT_FALSE(hxs.angle_in_ring(1, 0, 5, 5));
+    EXPECT_FALSE(hxs.atom_in_ring(0, 4));
+}
 
 TEST(RingPerception, SmallestSetOfSmallestRings) {
     struct Case {

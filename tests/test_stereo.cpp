@@ -7,7 +7,7 @@
 
 #include "assemble/build.hpp"
 #include "assemble/place.hpp"
-#include "assemble/stereo.hpp"
+#include "graph/stereo.hpp"
 #include "input/smiles.hpp"
 
 using namespace repel;

@@ -6,7 +6,7 @@
 #include <string>
 #include <vector>
 
-#include "assemble/rings.hpp"
+#include "graph/rings.hpp"
 #include "domains/domains.hpp"
 #include "graph/molecule.hpp"
 #include "refine/refine.hpp"

@@ -1,35 +1,15 @@
-// Small geometry for the assembly: the optimal rotation between two sets of directions (Kabsch), dihedral angles,
-// signed volumes, and a centre's bonded directions in its own frame.
+// A centre's bonded directions in its own frame, for the assembly (the plain geometry it uses, Kabsch rotations,
+// dihedral angles and signed volumes, is in core/geometry.hpp).
 #pragma once
 
 #include <Eigen/Core>
-#include <span>
 #include <vector>
 
+#include "core/geometry.hpp"
 #include "domains/domains.hpp"
 #include "graph/molecule.hpp"
 
 namespace repel {
-
-// The proper rotation R minimising sum_i w_i |R a_i - b_i|^2 (Kabsch, Acta Cryst. A32 (1976) 922). With one pair it
-// is the smallest rotation taking a_0 onto b_0; with none, the identity. Weights default to 1.
-Eigen::Matrix3d kabsch_rotation(std::span<const Eigen::Vector3d> a, std::span<const Eigen::Vector3d> b,
-                                std::span<const double> weights = {});
-
-// The smallest rotation taking unit vector `from` onto unit vector `to` (a half turn about a perpendicular axis when
-// they are opposite).
-Eigen::Matrix3d rotation_between(const Eigen::Vector3d& from, const Eigen::Vector3d& to);
-
-// A unit vector perpendicular to v (deterministic).
-Eigen::Vector3d any_perpendicular(const Eigen::Vector3d& v);
-
-// Dihedral angle a-b-c-d in radians, in (-pi, pi].
-double dihedral(const Eigen::Vector3d& a, const Eigen::Vector3d& b, const Eigen::Vector3d& c,
-                const Eigen::Vector3d& d);
-
-// (a - centre) . ((b - centre) x (c - centre)): the signed volume that ChiralTarget refers to.
-double signed_volume(const Eigen::Vector3d& centre, const Eigen::Vector3d& a, const Eigen::Vector3d& b,
-                     const Eigen::Vector3d& c);
 
 // The directions of a centre's bonded neighbours in its own frame, one per entry of Molecule::neighbors(centre), in
 // that order. From the sphere solution when there is one; otherwise (one domain, or an analysis without directions)

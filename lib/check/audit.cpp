@@ -3,6 +3,7 @@
 #include "check/audit.hpp"
 
 #include "domains/metal.hpp"
+#include "graph/rings.hpp"
 
 #include <fmt/format.h>
 
@@ -42,43 +43,6 @@ std::string label(const Molecule& m, int i) {
 constexpr double kFlatTetrahedron = 0.3;
 
 Severity severity_of(double ratio) { return ratio >= 2.0 ? Severity::error : Severity::warning; }
-
-// Pairs of neighbours of a centre whose angle a ring of three or four atoms fixes (a-b bonded, or a and b sharing a
-// neighbour other than the centre): such angles are far from any domain prediction by construction.
-bool small_ring_pair(const Molecule& m, int centre, int a, int b) {
-    if (m.bond_between(a, b) >= 0) return true;
-    for (const Neighbor& na : m.neighbors(a))
-        if (na.atom != centre && m.bond_between(na.atom, b) >= 0) return true;
-    return false;
-}
-
-// True when a and b (neighbours of centre) are joined by a path of at most `bonds` bonds that avoids the centre:
-// the centre and the path close a ring of at most bonds + 2 atoms.
-bool joined_within(const Molecule& m, int centre, int a, int b, int bonds) {
-    std::vector<int> frontier{a}, seen{a};
-    for (int depth = 0; depth < bonds; ++depth) {
-        std::vector<int> next;
-        for (int v : frontier)
-            for (const Neighbor& nb : m.neighbors(v)) {
-                if (nb.atom == centre || std::find(seen.begin(), seen.end(), nb.atom) != seen.end()) continue;
-                if (nb.atom == b) return true;
-                seen.push_back(nb.atom);
-                next.push_back(nb.atom);
-            }
-        frontier.swap(next);
-    }
-    return false;
-}
-
-// A centre in a ring of three or four atoms: ring strain bends every angle at it, the exocyclic ones included
-// (cyclopropene's C-H opens to 150 degrees), so no domain prediction applies there.
-bool in_small_ring(const Molecule& m, int centre) {
-    const auto& nbs = m.neighbors(centre);
-    for (size_t i = 0; i < nbs.size(); ++i)
-        for (size_t j = i + 1; j < nbs.size(); ++j)
-            if (joined_within(m, centre, nbs[i].atom, nbs[j].atom, 2)) return true;
-    return false;
-}
 
 // A nitrogen with one lone pair next to a multiple bond (amide, aniline, pyrrole, enamine): conjugation may flatten
 // it, so a planar centre is accepted as well as the pyramid the domain count predicts (common practice).
@@ -139,7 +103,7 @@ struct AngleFit {
 // directions to neighbours of the same element and bond order (the solver's numbering of equivalent domains is
 // arbitrary: which F of SF4 is axial is the structure's choice).
 AngleFit fit_angles(const Molecule& m, const std::vector<Eigen::Vector3d>& pos, const CentreDomains& c,
-                    bool planar_ok) {
+                    bool planar_ok, SmallRingSearch& rings) {
     AngleFit fit;
     const auto& nbs = m.neighbors(c.atom);
     const int k = static_cast<int>(nbs.size());
@@ -167,8 +131,8 @@ AngleFit fit_angles(const Molecule& m, const std::vector<Eigen::Vector3d>& pos, 
             // The same inside a ring of seven to nine atoms when no smaller ring holds the angle: closing it opens
             // the angles (the imine C-N=C of diazepam's seven-membered ring is 130 degrees in its GFN2-xTB optimum,
             // the isolated centre gives 114; a regular heptagon has 128.6).
-            const bool medium_ring = !joined_within(m, c.atom, a, b, 4) && joined_within(m, c.atom, a, b, 7);
-            use[static_cast<size_t>(i * k + j)] = !joined_within(m, c.atom, a, b, 3) && !medium_ring && !to_metal;
+            const bool medium_ring = !rings.angle_in_ring(a, c.atom, b, 6) && rings.angle_in_ring(a, c.atom, b, 9);
+            use[static_cast<size_t>(i * k + j)] = !rings.angle_in_ring(a, c.atom, b, 5) && !medium_ring && !to_metal;
         }
     auto cls = [&](int i) {
         const Neighbor& nb = nbs[static_cast<size_t>(i)];
@@ -540,6 +504,7 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
         const bool any_excluded = std::find(excluded.begin(), excluded.end(), 1) != excluded.end();
         if (!multiplicity && !any_excluded) out.multiplicity = std::max(out.multiplicity, d.multiplicity);
         for (const std::string& w : d.warnings) out.notes.push_back(w);
+        SmallRingSearch rings(skeleton);
         for (int i = 0; i < n; ++i) {
             if (skip[static_cast<size_t>(i)]) continue;
             const CentreDomains& c = d.atoms[static_cast<size_t>(i)];
@@ -548,11 +513,11 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
                                    pos, opt);
                 continue;
             }
-            if (c.bonded < 2 || c.angles.empty() || in_small_ring(skeleton, i)) continue;
+            if (c.bonded < 2 || c.angles.empty() || rings.atom_in_ring(i, 4)) continue;
             if (angle_opened_by_neighbours(skeleton, i, c)) continue;
             // Two unpaired electrons (a triplet carbene) count as a lone pair in the Lewis structure: no prediction.
             if (valence.unpaired[static_cast<size_t>(i)] >= 2) continue;
-            AngleFit fit = fit_angles(skeleton, pos, c, conjugated_nitrogen(skeleton, i, c));
+            AngleFit fit = fit_angles(skeleton, pos, c, conjugated_nitrogen(skeleton, i, c), rings);
             // A single-electron domain is the model's least certain size (NO2 opens to 134 degrees, CH3 is flat):
             // twice the tolerance at a radical centre.
             // The same next to an atom left with an unpaired electron: where the electron sits in the Lewis
@@ -655,8 +620,8 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
                     for (int b = a + 1; b < 3; ++b) {
                         sum += angle_deg(pos[static_cast<size_t>(nbs[static_cast<size_t>(a)].atom)] - o,
                                          pos[static_cast<size_t>(nbs[static_cast<size_t>(b)].atom)] - o);
-                        ring = ring || small_ring_pair(skeleton, i, nbs[static_cast<size_t>(a)].atom,
-                                                       nbs[static_cast<size_t>(b)].atom);
+                        ring = ring || rings.angle_in_ring(nbs[static_cast<size_t>(a)].atom, i,
+                                                           nbs[static_cast<size_t>(b)].atom, 4);
                     }
                 // An amino N whose pair is shared with a C=C, C=N or an aromatic ring (aniline, enamine, the NH2 of
                 // a neutral guanidine or amidine) is only partly flattened: aniline's NH2 is pyramidal, its angles

@@ -7,7 +7,7 @@
 #include <cstdint>
 #include <map>
 
-#include "assemble/stereo.hpp"
+#include "graph/stereo.hpp"
 #include "core/element.hpp"
 #include "domains/metal.hpp"
 #include "graph/polyhedral_stereo.hpp"

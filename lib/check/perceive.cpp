@@ -15,59 +15,12 @@
 #include "core/limits.hpp"
 #include "core/neighbor_grid.hpp"
 #include "domains/metal.hpp"
+#include "graph/valence.hpp"
 
 namespace repel {
 namespace {
 
-struct State {
-    int valence = 0;
-    int charge = 0;
-};
-
-// Normal valences and the charges that go with them (common practice: the octet rule, with the usual expanded
-// valences of the period-3-and-later p-block elements and the common ions). The first state that holds an atom's
-// bonds is taken first; neutral states come before charged ones.
-std::vector<State> valence_states(int z) {
-    const ElementData& e = element(z);
-    if (z == 1) return {{1, 0}, {0, 1}, {0, -1}};
-    if (is_transition_metal(z)) return {};
-    const int g = e.group;
-    const bool heavy = e.period >= 3;
-    switch (g) {
-        case 1: return {{1, 0}, {0, 1}};
-        case 2: return {{2, 0}, {0, 2}};
-        case 13: return {{3, 0}, {4, -1}};
-        case 14:
-            if (z == 6) return {{4, 0}, {3, 1}, {3, -1}};
-            return {{4, 0}, {2, 0}, {3, -1}, {6, -2}, {5, -1}};
-        case 15:
-            if (!heavy) return {{3, 0}, {4, 1}, {2, -1}};
-            return {{3, 0}, {5, 0}, {4, 1}, {2, -1}, {6, -1}};
-        case 16:
-            if (!heavy) return {{2, 0}, {1, -1}, {3, 1}};
-            return {{2, 0}, {4, 0}, {6, 0}, {1, -1}, {3, 1}, {5, -1}};
-        case 17:
-            if (!heavy) return {{1, 0}, {0, -1}};
-            return {{1, 0}, {3, 0}, {5, 0}, {7, 0}, {0, -1}, {2, -1}, {4, -1}, {2, 1}};
-        case 18:
-            if (z <= 10) return {{0, 0}};
-            return {{0, 0}, {2, 0}, {4, 0}, {6, 0}, {8, 0}};
-        default: return {};
-    }
-}
-
-// The states of an atom cut off a metal (ionic model): its table, then the closed-shell anions a ligand donor can be
-// beyond it (oxo and sulfido O2- S2-, imido and nitrido N2- N3-, phosphido P2- P3-; common practice of the ionic
-// model), one charge step at a time so that rule 2 below reaches them.
-std::vector<State> donor_states(int z) {
-    std::vector<State> s = valence_states(z);
-    const int g = element(z).group;
-    if (g == 15 || g == 16) {
-        const int octet = 18 - g;  // neutral octet valence: N 3, O 2
-        for (int k = 2; k <= octet; ++k) s.push_back({octet - k, -k});
-    }
-    return s;
-}
+using State = ValenceState;
 
 // The first state (in the table's order) of the given charge whose valence holds `bonds`; valence -1 when none.
 State first_state(int z, int bonds, std::optional<int> charge) {
@@ -388,7 +341,7 @@ namespace {
 
 // The assignment of assign_valences. With free_charge the total charge is not imposed: unsatisfied atoms take
 // anionic states until every atom is closed-shell (the ligands of the ionic model); `cut` marks the atoms that were
-// bonded to a metal, which may also take the deeper anion states of donor_states.
+// bonded to a metal, which may also take the deeper anion states of donor_valence_states.
 ValenceResult assign_impl(Molecule& m, const std::vector<Eigen::Vector3d>& pos, int total_charge, int unpaired_allowed,
                           const std::vector<int>* free_bonds, bool fixed_charges, const std::vector<char>* ignore,
                           bool free_charge, const std::vector<char>* cut) {
@@ -555,7 +508,7 @@ ValenceResult assign_impl(Molecule& m, const std::vector<Eigen::Vector3d>& pos, 
             for (int u : order) {
                 const State cur = state[static_cast<size_t>(u)];
                 const int zu = m.atoms[static_cast<size_t>(u)].z;
-                for (const State& s : cut && (*cut)[static_cast<size_t>(u)] ? donor_states(zu) : valence_states(zu))
+                for (const State& s : cut && (*cut)[static_cast<size_t>(u)] ? donor_valence_states(zu) : valence_states(zu))
                     if (s.charge == cur.charge + dq && s.valence == cur.valence - 1 && s.valence >= fixed_sum[static_cast<size_t>(u)]) {
                         changed = try_state(u, s);
                         break;

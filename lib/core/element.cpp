@@ -176,4 +176,10 @@ int element_number(std::string_view symbol) {
 
 bool is_transition_metal(int z) { return (z >= 21 && z <= 30) || (z >= 39 && z <= 48) || (z >= 57 && z <= 80); }
 
+bool is_d_block_metal(int z) {
+    return (z >= 21 && z <= 30) || (z >= 39 && z <= 48) || (z >= 72 && z <= 80);
+}
+
+bool is_f_block_metal(int z) { return z >= 57 && z <= 71; }
+
 }  // namespace repel

@@ -33,4 +33,9 @@ int element_number(std::string_view symbol);
 // True for the d- and f-block metals (groups 3-12 and the lanthanides), which the domain model does not yet handle.
 bool is_transition_metal(int z);
 
+// True for the metals the metal model (domains/metal.cpp) covers: the d block (groups 3-12 of periods 4-6, without the lanthanides).
+bool is_d_block_metal(int z);
+// True for the lanthanides (La-Lu): f-block centres, refused with a message.
+bool is_f_block_metal(int z);
+
 }  // namespace repel

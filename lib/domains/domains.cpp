@@ -9,7 +9,7 @@
 #include "core/element.hpp"
 #include "core/error.hpp"
 #include "domains/model.hpp"
-#include "input/organic_subset.hpp"
+#include "graph/valence.hpp"
 #include "sphere/sphere.hpp"
 
 namespace repel {

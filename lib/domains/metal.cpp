@@ -1117,12 +1117,6 @@ private:
 
 }  // namespace
 
-bool is_d_block_metal(int z) {
-    return (z >= 21 && z <= 30) || (z >= 39 && z <= 48) || (z >= 72 && z <= 80);
-}
-
-bool is_f_block_metal(int z) { return z >= 57 && z <= 71; }
-
 const MetalBond* MetalAnalysis::bond(int donor, int metal) const {
     // bonds are in donor order (count_electrons walks the atoms in order): a binary search, then the few of that donor.
     auto it = std::lower_bound(bonds.begin(), bonds.end(), donor,

@@ -9,14 +9,10 @@
 #include <string>
 #include <vector>
 
+#include "core/element.hpp"
 #include "graph/molecule.hpp"
 
 namespace repel {
-
-// True for the metals this analysis covers: the d block (groups 3-12 of periods 4-6, without the lanthanides).
-bool is_d_block_metal(int z);
-// True for the lanthanides (La-Lu): f-block centres, refused with a message.
-bool is_f_block_metal(int z);
 
 // One ligand domain of a metal centre: a sigma donor atom, or a hapto ligand (every atom of a contiguous pi system
 // bonded to the metal), whose domain points at the centroid of its atoms.

@@ -5,7 +5,7 @@
 // "Octahedral Centers".
 //
 // Site labelling (unit vectors, fixed; "anticlockwise seen from +z" is increasing azimuth, the sense in which '@'
-// means anticlockwise in OpenSMILES, see kAnticlockwiseSign in assemble/stereo.hpp):
+// means anticlockwise in OpenSMILES, see kAnticlockwiseSign in graph/stereo.hpp):
 //   square (SP):  0 +x, 1 +y, 2 -x, 3 -y                  cyclic order; trans pairs 0-2 and 1-3
 //   trigonal bipyramid (TB): 0 +z, 1 -z (axial),
 //                 2, 3, 4 equatorial at azimuth 0, 120, 240 degrees (anticlockwise seen from site 0)

@@ -1,6 +1,5 @@
 #include "input/sd_molecule.hpp"
 
-#include "domains/metal.hpp"
 #include "graph/polyhedral_stereo.hpp"
 
 #include <fmt/format.h>
@@ -13,24 +12,16 @@
 #include <cstdlib>
 #include <sstream>
 
-#include "assemble/rings.hpp"
-#include "assemble/stereo.hpp"
+#include "graph/stereo.hpp"
+#include "core/element.hpp"
 #include "core/error.hpp"
+#include "graph/rings.hpp"
 #include "input/kekulize.hpp"
-#include "input/organic_subset.hpp"
+#include "graph/valence.hpp"
 #include "input/structure_reader.hpp"
 
 namespace repel {
 namespace {
-
-// The valence an organic-subset atom takes with formal charge q (isoelectronic counting: N+ like C, O- like F, C+ and
-// C- with three bonds, B- like C); common practice, the rule CTfile readers apply to atoms without stated hydrogens.
-int target_valence(const OrganicElement& e, int charge, int sum) {
-    if (charge == 0) return e.lowest_valence_at_least(sum);
-    if (e.z == 6) return 4 - std::abs(charge);
-    if (e.z == 5) return 3 - charge;
-    return e.valences[0] + charge;
-}
 
 // The line numbers of the reader count from the record's first line; the file's count from first_line.
 [[noreturn]] void rethrow_with_file_lines(const InputError& e, long first_line) {
@@ -47,27 +38,6 @@ int target_valence(const OrganicElement& e, int charge, int sum) {
     if (const size_t at = message.find(local_start); at != std::string::npos)
         message.replace(at, local_start.size(), fmt::format("record starting on line {})", first_line));
     throw InputError(message, e.text(), e.column());
-}
-
-// Whether a and b are joined by a path of at most max_bonds bonds that avoids the bond between them (a small ring,
-// where a double bond's configuration is fixed by the ring and is not marked).
-bool in_small_ring(const Molecule& m, int bond, int max_bonds) {
-    const Bond& b = m.bonds[static_cast<size_t>(bond)];
-    std::vector<int> depth(static_cast<size_t>(m.atom_count()), -1);
-    std::deque<int> queue{b.a};
-    depth[static_cast<size_t>(b.a)] = 0;
-    while (!queue.empty()) {
-        const int at = queue.front();
-        queue.pop_front();
-        if (depth[static_cast<size_t>(at)] >= max_bonds) continue;
-        for (const Neighbor& n : m.neighbors(at)) {
-            if (n.bond == bond || depth[static_cast<size_t>(n.atom)] >= 0) continue;
-            if (n.atom == b.b) return true;
-            depth[static_cast<size_t>(n.atom)] = depth[static_cast<size_t>(at)] + 1;
-            queue.push_back(n.atom);
-        }
-    }
-    return false;
 }
 
 }  // namespace
@@ -219,7 +189,7 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
             const OrganicElement* e = organic_element(atom.z);
             if (!e) continue;
             const int sum = m.bond_order_sum(a);
-            const int v = target_valence(*e, atom.charge, sum + 1);
+            const int v = charged_organic_valence(*e, atom.charge, sum + 1);
             const int unpaired = atom.radical_electrons > 0 ? atom.radical_electrons : 0;
             needs[static_cast<size_t>(a)] = v - sum - unpaired >= 1 ? 1 : 0;
         }
@@ -243,7 +213,7 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
         if (on_metal) continue;
         const int sum = m.bond_order_sum(a);
         const int unpaired = atom.radical_electrons > 0 ? atom.radical_electrons : 0;
-        const int v = target_valence(*e, atom.charge, sum + unpaired);
+        const int v = charged_organic_valence(*e, atom.charge, sum + unpaired);
         if (v < 0 || sum + unpaired > v) continue;  // more bonds than a normal valence: hypervalent as written
         atom.hydrogens = v - sum - unpaired;
     }
@@ -294,7 +264,7 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
             d.push_back(v.normalized());
         }
         if (!wedged) continue;  // a flat drawing without wedges at this centre: no handedness shown
-        // The orientation that the library's chirality targets use (assemble/stereo.hpp): with the neighbours in list
+        // The orientation that the library's chirality targets use (graph/stereo.hpp): with the neighbours in list
         // order n0 n1 n2 n3, '@' puts (n1, n2, n3) at kAnticlockwiseSign seen from the centre, which has the sign of
         // the tetrahedron (n0, n1, n2, n3) since the centre lies on n0's side of the face n1 n2 n3 (this form also
         // works when only n0 is out of the plane of a drawing). With an implicit hydrogen listed second (n0 H n1 n2),
@@ -308,7 +278,9 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
         atom.chiral_class = ChiralClass::TH;
         atom.chiral_index = (volume < 0 ? -1 : 1) == kAnticlockwiseSign ? 1 : 2;
     }
-    // Double bonds outside rings of up to 8 atoms, with a substituent at each end: cis or trans as drawn.
+    // Double bonds outside rings of up to 8 atoms, with a substituent at each end: cis or trans as drawn (in a small
+    // ring the ring fixes the configuration, and it is not marked).
+    SmallRingSearch small_rings(m);
     for (int b = 0; b < m.bond_count(); ++b) {
         Bond& bond = m.bonds[static_cast<size_t>(b)];
         if (bond.order != 2 || bond.aromatic) continue;
@@ -321,7 +293,7 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
             return best;
         };
         const int ra = pick(bond.a, bond.b), rb = pick(bond.b, bond.a);
-        if (ra < 0 || rb < 0 || in_small_ring(m, b, 7)) continue;
+        if (ra < 0 || rb < 0 || small_rings.bond_in_ring(b, 8)) continue;
         const Eigen::Vector3d b1 = pos[static_cast<size_t>(bond.a)] - pos[static_cast<size_t>(ra)];
         const Eigen::Vector3d b2 = pos[static_cast<size_t>(bond.b)] - pos[static_cast<size_t>(bond.a)];
         const Eigen::Vector3d b3 = pos[static_cast<size_t>(rb)] - pos[static_cast<size_t>(bond.b)];

@@ -14,7 +14,7 @@
 #include "core/error.hpp"
 #include "core/limits.hpp"
 #include "input/kekulize.hpp"
-#include "input/organic_subset.hpp"
+#include "graph/valence.hpp"
 #include "input/smiles_stereo.hpp"
 
 namespace repel {
@@ -100,29 +100,6 @@ std::string capitalized(std::string_view lower) {
     std::string s(lower);
     s[0] = static_cast<char>(s[0] - 'a' + 'A');
     return s;
-}
-
-// Normal valences of an aromatic bracket atom, from its valence electrons less its charge (an ion counts as the
-// isoelectronic neutral atom: [n+] like C, [o+] like N, [n-] like O). Octet rule, with the hypervalent states of
-// period 3 and beyond as for the organic subset (common practice). Empty when the atom cannot take a pi bond.
-int bracket_valences(const Atom& a, std::array<int, 4>& out) {
-    const ElementData& e = element(a.z);
-    const int electrons = e.valence_electrons - a.charge;
-    const bool second_period = e.period <= 2;
-    switch (electrons) {
-    case 3: out = {3}; return 1;
-    case 4: out = {4}; return 1;
-    case 5: out = {3, 5}; return 2;
-    case 6:
-        if (second_period) { out = {2}; return 1; }
-        out = {2, 4, 6};
-        return 3;
-    case 7:
-        if (second_period) { out = {1}; return 1; }
-        out = {1, 3, 5, 7};
-        return 4;
-    default: return 0;
-    }
 }
 
 class Reader {
@@ -740,7 +717,7 @@ void Reader::hydrogens_and_valences() {
         if (a.bracket) {
             if (!a.aromatic || st.pi_satisfied) continue;
             std::array<int, 4> valences{};
-            const int count = bracket_valences(a, valences);
+            const int count = isoelectronic_valences(a.z, a.charge, valences);
             const int sum = st.order_sum + a.hydrogens;
             for (int k = 0; k < count; ++k) {
                 if (valences[static_cast<size_t>(k)] == sum) break;
@@ -792,7 +769,7 @@ bool Reader::dative_metal_bonds(bool heteroatoms_only) {
         bool need = false;
         if (a.bracket) {
             std::array<int, 4> valences{};
-            const int count = bracket_valences(a, valences);
+            const int count = isoelectronic_valences(a.z, a.charge, valences);
             for (int k = 0; k < count; ++k)
                 if (valences[static_cast<size_t>(k)] >= sum) {
                     need = valences[static_cast<size_t>(k)] > sum;

@@ -11,7 +11,7 @@
 #include "core/element.hpp"
 #include "core/error.hpp"
 #include "graph/polyhedral_stereo.hpp"
-#include "input/organic_subset.hpp"
+#include "graph/valence.hpp"
 #include "input/smiles.hpp"
 #include "input/smiles_stereo.hpp"
 

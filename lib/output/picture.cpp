@@ -14,8 +14,8 @@
 #include <span>
 #include <stdexcept>
 
-#include "assemble/place.hpp"
 #include "core/element.hpp"
+#include "core/geometry.hpp"
 #include "output/formats.hpp"
 
 namespace repel {

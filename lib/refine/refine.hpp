@@ -8,22 +8,9 @@
 
 #include "domains/domains.hpp"
 #include "graph/molecule.hpp"
+#include "graph/stereo.hpp"
 
 namespace repel {
-
-// A stereocentre whose handedness must be kept: the signed volume (b-a)x(c-a).(d-a) of neighbours a, b, c, d... of
-// `centre`, taken as (pos[n1]-pos[centre]) . ((pos[n2]-pos[centre]) x (pos[n3]-pos[centre])), has sign `sign`.
-struct ChiralTarget {
-    int centre = -1;
-    int n1 = -1, n2 = -1, n3 = -1;
-    int sign = 0;  // +1 or -1
-};
-
-// A double bond whose configuration must be kept: the torsion a-b=c-d is near 0 (cis) or 180 degrees (trans).
-struct DoubleBondTarget {
-    int a = -1, b = -1, c = -1, d = -1;
-    bool cis = false;
-};
 
 // A distance held near a target besides the bonds (the frame of a metal centre with hapto ligands, whose domains have
 // no angle terms of their own): energy weight * kBond * (d - length)^2.

@@ -10,7 +10,7 @@
 
 #include "core/bond_length.hpp"
 #include "refine/constants.hpp"
-#include "refine/small_rings.hpp"
+#include "graph/rings.hpp"
 
 namespace repel::refine {
 

@@ -1,11 +1,11 @@
-#include "assemble/stereo.hpp"
+#include "graph/stereo.hpp"
 
 #include <algorithm>
 #include <array>
 #include <cmath>
 #include <fmt/format.h>
 
-#include "assemble/place.hpp"
+#include "core/geometry.hpp"
 #include "graph/polyhedral_stereo.hpp"
 
 namespace repel {

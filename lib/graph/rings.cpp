@@ -1,4 +1,4 @@
-#include "assemble/rings.hpp"
+#include "graph/rings.hpp"
 
 #include <algorithm>
 #include <cstdint>
@@ -259,6 +259,81 @@ RingInfo perceive_rings(const Molecule& molecule) {
         info.system_rings.push_back(std::move(ring_ids));
     }
     return info;
+}
+
+SmallRingSearch::SmallRingSearch(const Molecule& molecule)
+    : m_(molecule),
+      stamp_(static_cast<size_t>(molecule.atom_count()), -1),
+      parent_(static_cast<size_t>(molecule.atom_count()), -1) {}
+
+std::vector<int> SmallRingSearch::ring_through(int a, int centre, int b, int max_size) {
+    if (a == b || m_.degree(a) < 2 || m_.degree(b) < 2 || max_size < 3) return {};
+    ++search_;
+    // Shortest path from a to b that avoids the centre: the ring is centre + that path.
+    const int max_depth = max_size - 2;  // bonds on the path from a to b
+    stamp_[static_cast<size_t>(centre)] = search_;
+    stamp_[static_cast<size_t>(a)] = search_;
+    parent_[static_cast<size_t>(a)] = -1;
+    queue_.assign(1, a);
+    size_t level_end = 1;
+    int depth = 0;
+    bool found = false;
+    for (size_t k = 0; k < queue_.size() && !found; ++k) {
+        if (k == level_end) {
+            ++depth;
+            level_end = queue_.size();
+        }
+        if (depth >= max_depth) break;
+        const int at = queue_[k];
+        for (const Neighbor& nb : m_.neighbors(at)) {
+            const int next = nb.atom;
+            if (stamp_[static_cast<size_t>(next)] == search_ || m_.degree(next) < 2) continue;
+            stamp_[static_cast<size_t>(next)] = search_;
+            parent_[static_cast<size_t>(next)] = at;
+            if (next == b) {
+                found = true;
+                break;
+            }
+            queue_.push_back(next);
+        }
+    }
+    if (!found) return {};
+    std::vector<int> ring{centre};
+    std::vector<int> path;
+    for (int at = b; at >= 0; at = parent_[static_cast<size_t>(at)]) path.push_back(at);
+    ring.insert(ring.end(), path.rbegin(), path.rend());
+    return ring;
+}
+
+bool SmallRingSearch::atom_in_ring(int centre, int max_size) {
+    const auto& nbs = m_.neighbors(centre);
+    for (size_t i = 0; i < nbs.size(); ++i)
+        for (size_t j = i + 1; j < nbs.size(); ++j)
+            if (angle_in_ring(nbs[i].atom, centre, nbs[j].atom, max_size)) return true;
+    return false;
+}
+
+bool SmallRingSearch::bond_in_ring(int bond, int max_size) {
+    const Bond& b = m_.bonds[static_cast<size_t>(bond)];
+    const int max_bonds = max_size - 1;  // bonds on the path from one end to the other
+    ++search_;
+    // Breadth first from one end, never along the bond itself; parent_ holds the depth here.
+    stamp_[static_cast<size_t>(b.a)] = search_;
+    parent_[static_cast<size_t>(b.a)] = 0;
+    queue_.assign(1, b.a);
+    for (size_t k = 0; k < queue_.size(); ++k) {
+        const int at = queue_[k];
+        const int depth = parent_[static_cast<size_t>(at)];
+        if (depth >= max_bonds) continue;
+        for (const Neighbor& nb : m_.neighbors(at)) {
+            if (nb.bond == bond || stamp_[static_cast<size_t>(nb.atom)] == search_) continue;
+            if (nb.atom == b.b) return true;
+            stamp_[static_cast<size_t>(nb.atom)] = search_;
+            parent_[static_cast<size_t>(nb.atom)] = depth + 1;
+            queue_.push_back(nb.atom);
+        }
+    }
+    return false;
 }
 
 }  // namespace repel
