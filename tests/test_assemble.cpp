@@ -772,3 +772,27 @@ TEST(Assemble, CumuleneEndsArePerpendicularOrCoplanarByTheCountOfDoubleBonds) {
         EXPECT_NEAR(phi, k.expected, 5.0) << k.smiles;
     }
 }
+
+// Allene marks (OpenSMILES "Tetrahedral Allene-like Systems": the two substituents of each end read as the
+// neighbours of a tetrahedral centre, looking from the first): '@' puts the other three anticlockwise, so
+// det[n1 - c, n2 - c, n3 - c] < 0 about the middle atom c, '@@' > 0 (the definition, as tests/external/common.py's
+// expected_chiral_sign). The ends' implicit hydrogens stand in the mark's list; no "not applied" warning.
+TEST(Assemble, AlleneMarksArePlacedWithTheirHandedness) {
+    for (const char* smiles : {"FC=[C@]=CF", "FC=[C@@]=CF", "CC(F)=[C@AL1]=C(Cl)C", "OC(=O)C=[C@@]=CC"}) {
+        const Structure s = build(smiles);
+        int middle = -1;
+        for (int i = 0; i < s.molecule.atom_count(); ++i)
+            if (s.molecule.atoms[static_cast<size_t>(i)].chiral_class == ChiralClass::AL) middle = i;
+        ASSERT_GE(middle, 0) << smiles;
+        const Atom& a = s.molecule.atoms[static_cast<size_t>(middle)];
+        ASSERT_EQ(a.stereo_neighbors.size(), 4u) << smiles;
+        for (int x : a.stereo_neighbors) ASSERT_GE(x, 0) << smiles << ": an implicit hydrogen left unresolved";
+        const Vector3d c = s.positions[static_cast<size_t>(middle)];
+        const Vector3d n1 = s.positions[static_cast<size_t>(a.stereo_neighbors[1])] - c;
+        const Vector3d n2 = s.positions[static_cast<size_t>(a.stereo_neighbors[2])] - c;
+        const Vector3d n3 = s.positions[static_cast<size_t>(a.stereo_neighbors[3])] - c;
+        const double det = n1.dot(n2.cross(n3));
+        EXPECT_LT(a.chiral_index == 1 ? det : -det, -0.1) << smiles << ": det " << det;
+        for (const std::string& w : s.warnings) EXPECT_EQ(w.find("not applied"), std::string::npos) << smiles << ": " << w;
+    }
+}

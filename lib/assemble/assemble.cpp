@@ -65,7 +65,10 @@ public:
         pos_.assign(n, Vector3d::Zero());
         placed_.assign(n, 0);
         chiral_of_.assign(n, -1);
-        for (size_t i = 0; i < chiral.size(); ++i) chiral_of_[static_cast<size_t>(chiral[i].centre)] = static_cast<int>(i);
+        for (size_t i = 0; i < chiral.size(); ++i) {
+            if (is_allene_target(m, chiral[i])) allene_.push_back(chiral[i]);
+            else chiral_of_[static_cast<size_t>(chiral[i].centre)] = static_cast<int>(i);
+        }
         local_.assign(n, -1);
         for (const auto& sys : rings.systems)
             for (size_t k = 0; k < sys.size(); ++k) local_[static_cast<size_t>(sys[k])] = static_cast<int>(k);
@@ -93,6 +96,7 @@ private:
     std::vector<Vector3d> pos_;
     std::vector<char> placed_;
     std::vector<int> chiral_of_;
+    std::vector<ChiralTarget> allene_;  // allene marks: met by the choice of torsion at an end (grow)
     std::vector<int> local_;
     std::vector<char> system_placed_;
     std::vector<Vector3d> system_centre_;
@@ -253,6 +257,29 @@ private:
         return *r >= 0 && *n >= 0;
     }
 
+    // The allene mark whose last atoms are among `free_atoms` (the others placed), if any.
+    const ChiralTarget* allene_placed_now(const std::vector<int>& free_atoms) const {
+        for (const ChiralTarget& t : allene_) {
+            bool any_free = false, all_there = placed_[at(t.centre)] != 0;
+            for (int x : {t.n1, t.n2, t.n3}) {
+                const bool is_free = std::find(free_atoms.begin(), free_atoms.end(), x) != free_atoms.end();
+                any_free = any_free || is_free;
+                all_there = all_there && (is_free || placed_[at(x)]);
+            }
+            if (any_free && all_there) return &t;
+        }
+        return nullptr;
+    }
+
+    // Whether the allene mark holds with `free_atoms` at `xs` and the rest where they are placed.
+    bool allene_met(const ChiralTarget& t, const std::vector<int>& free_atoms, const std::vector<Vector3d>& xs) const {
+        auto where = [&](int x) -> Vector3d {
+            const auto it = std::find(free_atoms.begin(), free_atoms.end(), x);
+            return it != free_atoms.end() ? xs[static_cast<size_t>(it - free_atoms.begin())] : pos_[at(x)];
+        };
+        return signed_volume(pos_[at(t.centre)], where(t.n1), where(t.n2), where(t.n3)) * t.sign > 0;
+    }
+
     // Through a straight chain (the middle atoms of an allene or a cumulene, an alkyne) the dihedral r-p-c-n has no
     // meaning: the reference becomes the first atom off the line, found by walking back along the chain. Across a
     // chain of cumulated double bonds the ends' planes are perpendicular for an even count (allenes) and coplanar for
@@ -331,6 +358,12 @@ private:
                 const auto x0 = at_angle(0);
                 const size_t in = static_cast<size_t>(std::find(free_atoms.begin(), free_atoms.end(), n) - free_atoms.begin());
                 base = angle_for_dihedral(pos_[at(r)], pos_[at(p)], pos_[at(c)], x0[in], target);
+            }
+            if (const ChiralTarget* t = allene_placed_now(free_atoms)) {
+                // An allene end: the torsion from straight_chain_reference (90 degrees) or its mirror (-90), as
+                // the mark says.
+                if (!allene_met(*t, free_atoms, at_angle(base))) base += kPi;
+                stereo = true;
             }
             xs = best_torsion(free_atoms, offsets(p, c, m_.bond_between(p, c), stereo), base, at_angle);
         }

@@ -225,11 +225,12 @@ std::vector<ChiralTarget> placed_chiral_targets(const Molecule& molecule, const 
             const std::string& note = domains.metals.centres[static_cast<size_t>(mc)].stereo_note;
             if (!note.empty() && !note.starts_with("ligands placed")) continue;
         }
-        if (skeleton.bond_between(t.centre, t.n1) < 0 || skeleton.bond_between(t.centre, t.n2) < 0 ||
-            skeleton.bond_between(t.centre, t.n3) < 0)
+        const bool allene = is_allene_target(molecule, t);  // its atoms are the ends' substituents
+        if (!allene && (skeleton.bond_between(t.centre, t.n1) < 0 || skeleton.bond_between(t.centre, t.n2) < 0 ||
+                        skeleton.bond_between(t.centre, t.n3) < 0))
             continue;
         // Three neighbours and no lone pair: a planar centre (a carbocation, a borane) has no handedness.
-        if (c.bonded == 3 && c.lone_pairs + c.single_electrons == 0)
+        if (!allene && c.bonded == 3 && c.lone_pairs + c.single_electrons == 0)
             warnings.push_back(fmt::format("stereo mark on atom {} not applied: the centre is planar (three "
                                              "neighbours, no lone pair)",
                                              t.centre + 1));
@@ -331,13 +332,18 @@ Structure build_structure(const Molecule& written, const BuildOptions& options) 
             domains.atoms[static_cast<size_t>(i)].single_electrons + domains.atoms[static_cast<size_t>(i)].p_single_electrons;
 
     const std::vector<ChiralTarget> chiral = placed_chiral_targets(molecule, skeleton, domains, s.warnings);
+    // An allene's handedness is set by the assembly's choice of torsion (the refinement has no term across the chain
+    // and keeps it); the ring embedding and the refinement get the targets of stereocentres only.
+    std::vector<ChiralTarget> centre_targets;
+    for (const ChiralTarget& t : chiral)
+        if (!is_allene_target(molecule, t)) centre_targets.push_back(t);
     const auto double_bonds = double_bond_targets(molecule);
 
     const RingInfo rings = perceive_rings(skeleton);
     check_deadline("perceiving rings");
     std::vector<char> warned_system;
     const std::vector<RingSystemCoordinates> ring_xyz =
-        embed_ring_systems(skeleton, domains, rings, chiral, warned_system, s.warnings);
+        embed_ring_systems(skeleton, domains, rings, centre_targets, warned_system, s.warnings);
     s.positions = assemble_positions(skeleton, domains, rings, ring_xyz, chiral);
     std::vector<std::optional<Vector3d>> site_shift;
     if (hapto) place_hapto_ligands(skeleton, domains, s.positions, s.warnings, &site_shift);
@@ -353,7 +359,7 @@ Structure build_structure(const Molecule& written, const BuildOptions& options) 
         refine_options.ring_graph = hapto ? &skeleton : nullptr;
         if (hapto) refine_options.restraints = hapto_frame_restraints(skeleton, domains.metals, s.positions, site_shift);
         const RefineResult r = refine_structure(molecule, hapto ? with_bond_lengths_of(molecule, domains) : domains,
-                                                chiral, double_bonds, s.positions, refine_options);
+                                                centre_targets, double_bonds, s.positions, refine_options);
         if (!r.converged && r.iterations > 0)
             s.warnings.push_back(fmt::format("refinement not converged after {} iterations{}{}", r.iterations,
                                              r.message.empty() ? "" : ": ", r.message));

@@ -1,5 +1,6 @@
 #include "graph/molecule.hpp"
 
+#include <array>
 #include <numeric>
 
 namespace repel {
@@ -41,9 +42,36 @@ int Molecule::total_charge() const {
     return q;
 }
 
+namespace {
+
+// The two end atoms of the cumulated chain through `middle` (an allene's or a cumulene's middle atom): each found by
+// walking double bonds away from the middle while the chain goes on.
+std::array<int, 2> cumulene_ends(const Molecule& m, int middle) {
+    std::array<int, 2> ends{-1, -1};
+    int found = 0;
+    for (const Neighbor& start : m.neighbors(middle)) {
+        if (m.bonds[static_cast<size_t>(start.bond)].order != 2 || found == 2) continue;
+        int prev = middle, cur = start.atom;
+        for (int guard = 0; guard < m.atom_count(); ++guard) {
+            int next = -1;
+            if (m.degree(cur) == 2)
+                for (const Neighbor& nb : m.neighbors(cur))
+                    if (nb.atom != prev && m.bonds[static_cast<size_t>(nb.bond)].order == 2) next = nb.atom;
+            if (next < 0) break;
+            prev = cur;
+            cur = next;
+        }
+        ends[static_cast<size_t>(found++)] = cur;
+    }
+    return ends;
+}
+
+}  // namespace
+
 void Molecule::make_hydrogens_explicit() {
     if (input_atoms_ < 0) input_atoms_ = atom_count();
     const int n = atom_count();
+    std::vector<int> first_hydrogen(static_cast<size_t>(n), -1);
     for (int i = 0; i < n; ++i) {
         int count = atoms[static_cast<size_t>(i)].hydrogens;
         if (count <= 0) continue;
@@ -60,8 +88,26 @@ void Molecule::make_hydrogens_explicit() {
                 // The implicit hydrogen of a stereo mark ([C@H]) is the first one added for that atom.
                 for (int& s : atoms[static_cast<size_t>(i)].stereo_neighbors)
                     if (s == kImplicitHydrogen) s = hi;
+                first_hydrogen[static_cast<size_t>(i)] = hi;
                 first = false;
             }
+        }
+    }
+    // An allene mark lists the two substituents of each end (OpenSMILES "Tetrahedral Allene-like Systems"): an
+    // implicit hydrogen in a half is the hydrogen of that half's end, the end bonded to the half's other substituent.
+    for (int i = 0; i < n; ++i) {
+        Atom& a = atoms[static_cast<size_t>(i)];
+        if (a.chiral_class != ChiralClass::AL || a.stereo_neighbors.size() != 4) continue;
+        const std::array<int, 2> ends = cumulene_ends(*this, i);
+        for (size_t half = 0; half < 2; ++half) {
+            int& x = a.stereo_neighbors[2 * half];
+            int& y = a.stereo_neighbors[2 * half + 1];
+            if ((x == kImplicitHydrogen) == (y == kImplicitHydrogen)) continue;
+            int& implicit = x == kImplicitHydrogen ? x : y;
+            const int real = x == kImplicitHydrogen ? y : x;
+            for (int end : ends)
+                if (end >= 0 && bond_between(end, real) >= 0 && first_hydrogen[static_cast<size_t>(end)] >= 0)
+                    implicit = first_hydrogen[static_cast<size_t>(end)];
         }
     }
 }

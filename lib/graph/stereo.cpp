@@ -21,8 +21,25 @@ std::optional<ChiralTarget> chiral_target(const Molecule& molecule, int atom, st
         if (problem) *problem = why;
         return std::nullopt;
     };
+    if (a.chiral_class == ChiralClass::AL) {
+        // An allene mark: the four substituents of the two ends read as the neighbours of a tetrahedral centre
+        // (OpenSMILES "Tetrahedral Allene-like Systems"), looking from the first; the target's centre is the middle
+        // atom, its three atoms are not its neighbours (assembly and refinement treat it apart, see is_allene_target).
+        const std::vector<int>& l = a.stereo_neighbors;
+        if (l.size() != 4 || std::any_of(l.begin(), l.end(), [](int x) { return x < 0; }))
+            return refuse("an allene mark needs two substituents (atoms or hydrogens) on each end");
+        if (a.chiral_index != 1 && a.chiral_index != 2) return refuse("an allene mark must be @AL1 or @AL2");
+        ChiralTarget t;
+        t.centre = atom;
+        t.n1 = l[1];
+        t.n2 = l[2];
+        t.n3 = l[3];
+        t.sign = a.chiral_index == 1 ? kAnticlockwiseSign : -kAnticlockwiseSign;
+        return t;
+    }
     if (a.chiral_class != ChiralClass::TH)
-        return refuse("only tetrahedral chirality marks ('@', '@@', '@TH1', '@TH2') are placed in 3D so far");
+        return refuse("only tetrahedral and allene chirality marks ('@', '@@', '@TH1', '@TH2', '@AL1', '@AL2') are "
+                      "placed in 3D this way");
     if (a.chiral_index != 1 && a.chiral_index != 2) return refuse("a tetrahedral mark must be @TH1 or @TH2");
     const int degree = molecule.degree(atom);
     std::vector<int> order = a.stereo_neighbors;
@@ -80,6 +97,10 @@ std::vector<DoubleBondTarget> double_bond_targets(const Molecule& molecule) {
         out.push_back({b.ref_a, b.a, b.b, b.ref_b, b.stereo == BondStereo::cis});
     }
     return out;
+}
+
+bool is_allene_target(const Molecule& molecule, const ChiralTarget& t) {
+    return molecule.atoms[static_cast<size_t>(t.centre)].chiral_class == ChiralClass::AL;
 }
 
 bool chirality_met(const ChiralTarget& t, const std::vector<Eigen::Vector3d>& p) {

@@ -39,6 +39,10 @@ std::optional<ChiralTarget> chiral_target(const Molecule& molecule, int atom, st
 // Targets of every tetrahedral stereocentre; marks that cannot be used are listed in `warnings`.
 std::vector<ChiralTarget> chiral_targets(const Molecule& molecule, std::vector<std::string>& warnings);
 
+// Whether a target comes from an allene mark: its atoms are the substituents of the chain's ends, not neighbours of
+// its centre (the middle atom).
+bool is_allene_target(const Molecule& molecule, const ChiralTarget& t);
+
 // Targets of every double bond with a written configuration.
 std::vector<DoubleBondTarget> double_bond_targets(const Molecule& molecule);
 
