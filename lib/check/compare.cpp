@@ -6,6 +6,7 @@
 #include <cmath>
 #include <cstdint>
 #include <map>
+#include <optional>
 
 #include "graph/stereo.hpp"
 #include "core/element.hpp"
@@ -168,50 +169,17 @@ std::string formula(const std::map<int, int>& count) {
     return out;
 }
 
-}  // namespace
+// Centres with an @SP/@TB/@OH mark: which ligands are cis and which trans. The ideal angle of every pair of
+// neighbours (90, 120 or 180 degrees) against the measured one; more than 45 degrees off (halfway from cis to trans
+// in an octahedron or a square) is the other isomer.
+struct Polyhedral {
+    int centre;
+    std::vector<int> neighbours;
+    std::vector<double> angles;  // per pair (i < j), in order
+};
+constexpr double kPolyhedralTolerance = 45.0;
 
-std::vector<Finding> compare_with_reference(const Molecule& s, const std::vector<Eigen::Vector3d>& pos,
-                                            Molecule ref) {
-    std::vector<Finding> out;
-    ref.make_hydrogens_explicit();
-    {
-        // A metallocene written as separate ions is the sandwich the structure has (as the build reads it).
-        std::vector<std::string> notes;
-        join_separated_sandwich_ions(ref, notes);
-    }
-    std::map<int, int> cr, cs;
-    for (const Atom& a : ref.atoms) ++cr[a.z];
-    for (const Atom& a : s.atoms) ++cs[a.z];
-    if (cr != cs) {
-        std::string diff;
-        std::map<int, int> all = cr;
-        for (const auto& entry : cs) all.emplace(entry.first, 0);
-        for (auto [z, n] : all) {
-            const int d = cs[z] - cr[z];
-            if (d != 0) diff += fmt::format(" {} {} {}", d > 0 ? "extra" : "missing", std::abs(d), element(z).symbol);
-        }
-        out.push_back({"formula", {},
-                       fmt::format("the structure is {}, the reference {}:{}", formula(cs), formula(cr), diff),
-                       std::nullopt, std::nullopt, "", Severity::error, 300});
-        return out;
-    }
-    if (ref.bond_count() != s.bond_count()) {
-        out.push_back({"connectivity", {},
-                       fmt::format("the structure has {} bonds, the reference {}", s.bond_count(), ref.bond_count()),
-                       s.bond_count(), ref.bond_count(), "", Severity::error, 300});
-        return out;
-    }
-    std::vector<std::string> warnings;
-    const std::vector<ChiralTarget> chiral = chiral_targets(ref, warnings);
-    const std::vector<DoubleBondTarget> doubles = double_bond_targets(ref);
-    // Centres with an @SP/@TB/@OH mark: which ligands are cis and which trans. The ideal angle of every pair of
-    // neighbours (90, 120 or 180 degrees) against the measured one; more than 45 degrees off (halfway from cis to
-    // trans in an octahedron or a square) is the other isomer.
-    struct Polyhedral {
-        int centre;
-        std::vector<int> neighbours;
-        std::vector<double> angles;  // per pair (i < j), in order
-    };
+std::vector<Polyhedral> polyhedral_marks(const Molecule& ref) {
     std::vector<Polyhedral> polyhedral;
     for (int i = 0; i < ref.atom_count(); ++i) {
         if (polyhedral_neighbor_count(ref.atoms[static_cast<size_t>(i)].chiral_class) == 0) continue;
@@ -224,26 +192,75 @@ std::vector<Finding> compare_with_reference(const Molecule& s, const std::vector
                 p.angles.push_back(std::acos(std::clamp((*dirs)[a].dot((*dirs)[b]), -1.0, 1.0)) * 180.0 / M_PI);
         polyhedral.push_back(std::move(p));
     }
-    constexpr double kPolyhedralTolerance = 45.0;
-    Matcher matcher(ref, s, classes(ref, 3), classes(s, 3));
-    std::vector<int> best;
-    size_t best_wrong = static_cast<size_t>(-1);
-    long matchings = 0;
-    auto wrong = [&](const std::vector<int>& map, std::vector<Finding>* findings) {
+    return polyhedral;
+}
+
+// A different formula or bond count: the one finding, else nothing.
+std::optional<Finding> composition_mismatch(const Molecule& s, const Molecule& ref) {
+    std::map<int, int> cr, cs;
+    for (const Atom& a : ref.atoms) ++cr[a.z];
+    for (const Atom& a : s.atoms) ++cs[a.z];
+    if (cr != cs) {
+        std::string diff;
+        std::map<int, int> all = cr;
+        for (const auto& entry : cs) all.emplace(entry.first, 0);
+        for (auto [z, n] : all) {
+            const int d = cs[z] - cr[z];
+            if (d != 0) diff += fmt::format(" {} {} {}", d > 0 ? "extra" : "missing", std::abs(d), element(z).symbol);
+        }
+        return Finding{"formula", {},
+                       fmt::format("the structure is {}, the reference {}:{}", formula(cs), formula(cr), diff),
+                       std::nullopt, std::nullopt, "", Severity::error, 300};
+    }
+    if (ref.bond_count() != s.bond_count())
+        return Finding{"connectivity", {},
+                       fmt::format("the structure has {} bonds, the reference {}", s.bond_count(), ref.bond_count()),
+                       s.bond_count(), ref.bond_count(), "", Severity::error, 300};
+    return std::nullopt;
+}
+
+// The reference's stereo (marks of stereocentres and allenes, polyhedral marks, double bonds) judged on the
+// structure through one matching of the reference's atoms onto the structure's.
+class StereoJudge {
+public:
+    StereoJudge(const Molecule& s, const std::vector<Eigen::Vector3d>& pos, const Molecule& ref) : s_(s), pos_(pos) {
+        std::vector<std::string> warnings;
+        chiral_ = chiral_targets(ref, warnings);
+        doubles_ = double_bond_targets(ref);
+        polyhedral_ = polyhedral_marks(ref);
+    }
+
+    // How many of them the matching `map` (reference atom -> structure atom) gets wrong; each as a finding too when
+    // `findings` is not null.
+    size_t wrong(const std::vector<int>& map, std::vector<Finding>* findings) const {
+        // In this order (the findings' order): operands of + are evaluated in no fixed order.
+        size_t count = wrong_centres(map, findings);
+        count += wrong_polyhedra(map, findings);
+        count += wrong_double_bonds(map, findings);
+        return count;
+    }
+
+private:
+    size_t wrong_centres(const std::vector<int>& map, std::vector<Finding>* findings) const {
         size_t count = 0;
-        for (const ChiralTarget& t : chiral) {
+        for (const ChiralTarget& t : chiral_) {
             ChiralTarget u{map[static_cast<size_t>(t.centre)], map[static_cast<size_t>(t.n1)],
                            map[static_cast<size_t>(t.n2)], map[static_cast<size_t>(t.n3)], t.sign};
-            if (chirality_met(u, pos)) continue;
+            if (chirality_met(u, pos_)) continue;
             ++count;
             if (findings)
                 findings->push_back({"stereocentre", {u.centre + 1},
                                      fmt::format("{}{} has the opposite handedness to the reference's (a mirrored "
                                                  "stereocentre)",
-                                                 element(s.atoms[static_cast<size_t>(u.centre)].z).symbol, u.centre + 1),
+                                                 element(s_.atoms[static_cast<size_t>(u.centre)].z).symbol, u.centre + 1),
                                      std::nullopt, std::nullopt, "", Severity::error, 80});
         }
-        for (const Polyhedral& p : polyhedral) {
+        return count;
+    }
+
+    size_t wrong_polyhedra(const std::vector<int>& map, std::vector<Finding>* findings) const {
+        size_t count = 0;
+        for (const Polyhedral& p : polyhedral_) {
             const int c = map[static_cast<size_t>(p.centre)];
             size_t k = 0;
             int wa = -1, wb = -1;
@@ -251,8 +268,8 @@ std::vector<Finding> compare_with_reference(const Molecule& s, const std::vector
             for (size_t a = 0; a < p.neighbours.size(); ++a)
                 for (size_t b = a + 1; b < p.neighbours.size(); ++b, ++k) {
                     const int x = map[static_cast<size_t>(p.neighbours[a])], y = map[static_cast<size_t>(p.neighbours[b])];
-                    const Eigen::Vector3d u = pos[static_cast<size_t>(x)] - pos[static_cast<size_t>(c)];
-                    const Eigen::Vector3d v = pos[static_cast<size_t>(y)] - pos[static_cast<size_t>(c)];
+                    const Eigen::Vector3d u = pos_[static_cast<size_t>(x)] - pos_[static_cast<size_t>(c)];
+                    const Eigen::Vector3d v = pos_[static_cast<size_t>(y)] - pos_[static_cast<size_t>(c)];
                     const double angle = std::acos(std::clamp(u.normalized().dot(v.normalized()), -1.0, 1.0)) * 180.0 / M_PI;
                     if (wa < 0 && std::fabs(angle - p.angles[k]) > kPolyhedralTolerance) {
                         wa = x, wb = y, measured = angle, ideal = p.angles[k];
@@ -261,7 +278,7 @@ std::vector<Finding> compare_with_reference(const Molecule& s, const std::vector
             if (wa < 0) continue;
             ++count;
             if (findings) {
-                auto name = [&](int i) { return fmt::format("{}{}", element(s.atoms[static_cast<size_t>(i)].z).symbol, i + 1); };
+                auto name = [&](int i) { return fmt::format("{}{}", element(s_.atoms[static_cast<size_t>(i)].z).symbol, i + 1); };
                 findings->push_back({"stereocentre", {c + 1, wa + 1, wb + 1},
                                      fmt::format("{}: the ligands are arranged otherwise than the reference's mark says "
                                                  "(another isomer): {}-{}-{} is {:.0f} degrees, {:.0f} in the reference",
@@ -269,24 +286,57 @@ std::vector<Finding> compare_with_reference(const Molecule& s, const std::vector
                                      measured, ideal, "degrees", Severity::error, 80});
             }
         }
-        for (const DoubleBondTarget& t : doubles) {
+        return count;
+    }
+
+    size_t wrong_double_bonds(const std::vector<int>& map, std::vector<Finding>* findings) const {
+        size_t count = 0;
+        for (const DoubleBondTarget& t : doubles_) {
             DoubleBondTarget u{map[static_cast<size_t>(t.a)], map[static_cast<size_t>(t.b)], map[static_cast<size_t>(t.c)],
                                map[static_cast<size_t>(t.d)], t.cis};
-            if (double_bond_met(u, pos)) continue;
+            if (double_bond_met(u, pos_)) continue;
             ++count;
             if (findings)
                 findings->push_back({"double bond", {u.b + 1, u.c + 1},
                                      fmt::format("the double bond {}{}={}{} is {} in the structure, {} in the reference",
-                                                 element(s.atoms[static_cast<size_t>(u.b)].z).symbol, u.b + 1,
-                                                 element(s.atoms[static_cast<size_t>(u.c)].z).symbol, u.c + 1,
+                                                 element(s_.atoms[static_cast<size_t>(u.b)].z).symbol, u.b + 1,
+                                                 element(s_.atoms[static_cast<size_t>(u.c)].z).symbol, u.c + 1,
                                                  t.cis ? "trans" : "cis", t.cis ? "cis" : "trans"),
                                      std::nullopt, std::nullopt, "", Severity::error, 80});
         }
         return count;
-    };
+    }
+
+    const Molecule& s_;
+    const std::vector<Eigen::Vector3d>& pos_;
+    std::vector<ChiralTarget> chiral_;
+    std::vector<DoubleBondTarget> doubles_;
+    std::vector<Polyhedral> polyhedral_;
+};
+
+}  // namespace
+
+std::vector<Finding> compare_with_reference(const Molecule& s, const std::vector<Eigen::Vector3d>& pos,
+                                            Molecule ref) {
+    std::vector<Finding> out;
+    ref.make_hydrogens_explicit();
+    {
+        // A metallocene written as separate ions is the sandwich the structure has (as the build reads it).
+        std::vector<std::string> notes;
+        join_separated_sandwich_ions(ref, notes);
+    }
+    if (auto mismatch = composition_mismatch(s, ref)) {
+        out.push_back(std::move(*mismatch));
+        return out;
+    }
+    const StereoJudge judge(s, pos, ref);
+    Matcher matcher(ref, s, classes(ref, 3), classes(s, 3));
+    std::vector<int> best;
+    size_t best_wrong = static_cast<size_t>(-1);
+    long matchings = 0;
     matcher.run([&](const std::vector<int>& map) {
         ++matchings;
-        const size_t w = wrong(map, nullptr);
+        const size_t w = judge.wrong(map, nullptr);
         if (w < best_wrong) {
             best_wrong = w;
             best = map;
@@ -301,7 +351,7 @@ std::vector<Finding> compare_with_reference(const Molecule& s, const std::vector
                        std::nullopt, std::nullopt, "", Severity::error, 300});
         return out;
     }
-    wrong(best, &out);
+    judge.wrong(best, &out);
     return out;
 }
 
