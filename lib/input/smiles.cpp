@@ -116,6 +116,10 @@ private:
     // syntax
     size_t organic_atom(size_t i);
     size_t bracket_atom(size_t i);
+    size_t bracket_isotope(size_t i, Atom& atom);
+    size_t bracket_symbol(size_t i, Atom& atom);
+    size_t bracket_charge(size_t i, Atom& atom);
+    size_t bracket_class(size_t i, Atom& atom);
     size_t chirality(size_t i, Atom& atom);
     size_t ring_number(size_t i);
     void add_atom(Atom& atom, int hydrogen_event);
@@ -244,38 +248,26 @@ size_t Reader::organic_atom(size_t i) {
     return i + length;
 }
 
-size_t Reader::bracket_atom(size_t i) {
+// The mass number of a bracket atom, from its first digit at i; returns the index after it.
+size_t Reader::bracket_isotope(size_t i, Atom& atom) {
     const char* s = text_.data();
-    const int open_column = static_cast<int>(i) + 1;
-    auto at_end = [&](size_t j) {
-        if (j >= end_)
-            error(fmt::format("the bracket atom opened at column {} is never closed: expected ']'", open_column),
-                  open_column);
-    };
-    Atom atom;
-    atom.bracket = true;
-    atom.column = open_column;
-    ++i;
-
-    // isotope
-    at_end(i);
-    const bool has_isotope = is_digit(s[i]);
-    if (has_isotope) {
-        const size_t start = i;
-        int value = 0;
-        while (i < end_ && is_digit(s[i])) {
-            if (i - start >= static_cast<size_t>(kMaxIsotopeDigits))
-                error(fmt::format("isotope '{}' has more than {} digits",
-                                  std::string_view(s + start, std::min(end_, start + 8) - start), kMaxIsotopeDigits),
-                      static_cast<int>(start) + 1);
-            value = value * 10 + (s[i] - '0');
-            ++i;
-        }
-        atom.isotope = value;
-        at_end(i);
+    const size_t start = i;
+    int value = 0;
+    while (i < end_ && is_digit(s[i])) {
+        if (i - start >= static_cast<size_t>(kMaxIsotopeDigits))
+            error(fmt::format("isotope '{}' has more than {} digits",
+                              std::string_view(s + start, std::min(end_, start + 8) - start), kMaxIsotopeDigits),
+                  static_cast<int>(start) + 1);
+        value = value * 10 + (s[i] - '0');
+        ++i;
     }
+    atom.isotope = value;
+    return i;
+}
 
-    // element symbol
+// The element symbol of a bracket atom at i (aromatic in lower case); returns the index after it.
+size_t Reader::bracket_symbol(size_t i, Atom& atom) {
+    const char* s = text_.data();
     const int symbol_column = static_cast<int>(i) + 1;
     if (s[i] == '*')
         error("the wildcard atom '*' stands for an unknown atom, which cannot be built: write a real element",
@@ -316,6 +308,83 @@ size_t Reader::bracket_atom(size_t i) {
     } else {
         error(fmt::format("expected an element symbol in the bracket atom, found {}", quoted(s[i])), symbol_column);
     }
+    return i;
+}
+
+// The charge of a bracket atom from its sign at i (+, ++, +n); returns the index after it.
+size_t Reader::bracket_charge(size_t i, Atom& atom) {
+    const char* s = text_.data();
+    const char sign_char = s[i];
+    const int sign = sign_char == '+' ? 1 : -1;
+    const int charge_column = static_cast<int>(i) + 1;
+    ++i;
+    int magnitude = 1;
+    if (i < end_ && s[i] == sign_char) {
+        magnitude = 2;
+        ++i;
+        if (i < end_ && (s[i] == sign_char || is_digit(s[i])))
+            error(fmt::format("malformed charge: write a charge as {0}, {0}{0} or {0}n with a number n",
+                              sign_char),
+                  charge_column);
+    } else if (i < end_ && is_digit(s[i])) {
+        magnitude = s[i] - '0';
+        ++i;
+        if (i < end_ && is_digit(s[i])) {
+            magnitude = magnitude * 10 + (s[i] - '0');
+            ++i;
+        }
+        if (magnitude > kMaxCharge)
+            error(fmt::format("charge {}{} is out of range (at most {})", sign_char, magnitude, kMaxCharge),
+                  charge_column);
+    }
+    if (i < end_ && (s[i] == '+' || s[i] == '-'))
+        error(fmt::format("malformed charge: {} after the charge", quoted(s[i])), static_cast<int>(i) + 1);
+    atom.charge = sign * magnitude;
+    return i;
+}
+
+// The atom class of a bracket atom from its ':' at i; returns the index after it.
+size_t Reader::bracket_class(size_t i, Atom& atom) {
+    const char* s = text_.data();
+    const int class_column = static_cast<int>(i) + 1;
+    ++i;
+    if (i >= end_ || !is_digit(s[i]))
+        error("expected the atom class number after ':'", i >= end_ ? class_column : static_cast<int>(i) + 1);
+    const size_t start = i;
+    int value = 0;
+    while (i < end_ && is_digit(s[i])) {
+        if (i - start >= static_cast<size_t>(kMaxClassDigits))
+            error(fmt::format("atom class has more than {} digits", kMaxClassDigits), class_column + 1);
+        value = value * 10 + (s[i] - '0');
+        ++i;
+    }
+    atom.atom_class = value;
+    return i;
+}
+
+size_t Reader::bracket_atom(size_t i) {
+    const char* s = text_.data();
+    const int open_column = static_cast<int>(i) + 1;
+    auto at_end = [&](size_t j) {
+        if (j >= end_)
+            error(fmt::format("the bracket atom opened at column {} is never closed: expected ']'", open_column),
+                  open_column);
+    };
+    Atom atom;
+    atom.bracket = true;
+    atom.column = open_column;
+    ++i;
+
+    // isotope
+    at_end(i);
+    const bool has_isotope = is_digit(s[i]);
+    if (has_isotope) {
+        i = bracket_isotope(i, atom);
+        at_end(i);
+    }
+
+    // element symbol
+    i = bracket_symbol(i, atom);
     if (atom.isotope > 0 && atom.isotope < atom.z)
         error(fmt::format("mass number {} is smaller than the atomic number of {} ({})", atom.isotope,
                           element(atom.z).symbol, atom.z),
@@ -349,50 +418,13 @@ size_t Reader::bracket_atom(size_t i) {
 
     // charge
     if (s[i] == '+' || s[i] == '-') {
-        const char sign_char = s[i];
-        const int sign = sign_char == '+' ? 1 : -1;
-        const int charge_column = static_cast<int>(i) + 1;
-        ++i;
-        int magnitude = 1;
-        if (i < end_ && s[i] == sign_char) {
-            magnitude = 2;
-            ++i;
-            if (i < end_ && (s[i] == sign_char || is_digit(s[i])))
-                error(fmt::format("malformed charge: write a charge as {0}, {0}{0} or {0}n with a number n",
-                                  sign_char),
-                      charge_column);
-        } else if (i < end_ && is_digit(s[i])) {
-            magnitude = s[i] - '0';
-            ++i;
-            if (i < end_ && is_digit(s[i])) {
-                magnitude = magnitude * 10 + (s[i] - '0');
-                ++i;
-            }
-            if (magnitude > kMaxCharge)
-                error(fmt::format("charge {}{} is out of range (at most {})", sign_char, magnitude, kMaxCharge),
-                      charge_column);
-        }
-        if (i < end_ && (s[i] == '+' || s[i] == '-'))
-            error(fmt::format("malformed charge: {} after the charge", quoted(s[i])), static_cast<int>(i) + 1);
-        atom.charge = sign * magnitude;
+        i = bracket_charge(i, atom);
         at_end(i);
     }
 
     // atom class
     if (s[i] == ':') {
-        const int class_column = static_cast<int>(i) + 1;
-        ++i;
-        if (i >= end_ || !is_digit(s[i]))
-            error("expected the atom class number after ':'", i >= end_ ? class_column : static_cast<int>(i) + 1);
-        const size_t start = i;
-        int value = 0;
-        while (i < end_ && is_digit(s[i])) {
-            if (i - start >= static_cast<size_t>(kMaxClassDigits))
-                error(fmt::format("atom class has more than {} digits", kMaxClassDigits), class_column + 1);
-            value = value * 10 + (s[i] - '0');
-            ++i;
-        }
-        atom.atom_class = value;
+        i = bracket_class(i, atom);
         at_end(i);
     }
 
