@@ -159,21 +159,10 @@ void metal_stereo_from_coordinates(Molecule& m, const std::vector<Eigen::Vector3
 
 }  // namespace
 
-Molecule molecule_from_sd_record(const std::string& text, long first_line) {
-    std::istringstream in(text);
-    std::vector<ReadStructure> records;
-    try {
-        records = read_sdf(in);
-    } catch (const InputError& e) {
-        rethrow_with_file_lines(e, first_line);
-    }
-    if (records.empty()) throw InputError(fmt::format("line {}: an empty SD record", first_line), "", 0);
-    ReadStructure& rec = records.front();
-    Molecule m = std::move(rec.structure.molecule);
-    const std::vector<Eigen::Vector3d>& pos = rec.structure.positions;
-    const int n = m.atom_count();
-    if (n == 0) throw InputError(fmt::format("line {}: the record has no atoms", first_line), "", 0);
+namespace {
 
+void aromatic_bond_orders(Molecule& m, const ReadStructure& rec, long first_line) {
+    const int n = m.atom_count();
     // Aromatic bonds (type 4): orders by kekulization, one double bond for each aromatic atom that has a valence left.
     if (!rec.needs_orders.empty()) {
         std::vector<unsigned char> needs(static_cast<size_t>(n), 0);
@@ -201,6 +190,10 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
                              "", 0);
     }
 
+}
+
+void implicit_hydrogens(Molecule& m) {
+    const int n = m.atom_count();
     // Hydrogens the file leaves out: organic-subset atoms up to their normal valence.
     for (int a = 0; a < n; ++a) {
         Atom& atom = m.atoms[static_cast<size_t>(a)];
@@ -218,8 +211,10 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
         atom.hydrogens = v - sum - unpaired;
     }
 
-    perceive_aromatic_rings(m);
+}
 
+void tetrahedral_stereo(Molecule& m, const std::vector<Eigen::Vector3d>& pos, const ReadStructure& rec) {
+    const int n = m.atom_count();
     // Stereo from the coordinates. Tetrahedral centres from 3D coordinates, or from a flat drawing's wedge and hash
     // bonds; a centre is marked when its four substituents are not two hydrogens or more.
     bool three_d = false;
@@ -278,6 +273,9 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
         atom.chiral_class = ChiralClass::TH;
         atom.chiral_index = (volume < 0 ? -1 : 1) == kAnticlockwiseSign ? 1 : 2;
     }
+}
+
+void double_bond_stereo(Molecule& m, const std::vector<Eigen::Vector3d>& pos) {
     // Double bonds outside rings of up to 8 atoms, with a substituent at each end: cis or trans as drawn (in a small
     // ring the ring fixes the configuration, and it is not marked).
     SmallRingSearch small_rings(m);
@@ -305,6 +303,31 @@ Molecule molecule_from_sd_record(const std::string& text, long first_line) {
         bond.ref_a = ra;
         bond.ref_b = rb;
     }
+}
+
+}  // namespace
+
+Molecule molecule_from_sd_record(const std::string& text, long first_line) {
+    std::istringstream in(text);
+    std::vector<ReadStructure> records;
+    try {
+        records = read_sdf(in);
+    } catch (const InputError& e) {
+        rethrow_with_file_lines(e, first_line);
+    }
+    if (records.empty()) throw InputError(fmt::format("line {}: an empty SD record", first_line), "", 0);
+    ReadStructure& rec = records.front();
+    Molecule m = std::move(rec.structure.molecule);
+    const std::vector<Eigen::Vector3d>& pos = rec.structure.positions;
+    const int n = m.atom_count();
+    if (n == 0) throw InputError(fmt::format("line {}: the record has no atoms", first_line), "", 0);
+
+    aromatic_bond_orders(m, rec, first_line);
+    implicit_hydrogens(m);
+    perceive_aromatic_rings(m);
+
+    tetrahedral_stereo(m, pos, rec);
+    double_bond_stereo(m, pos);
     m.name = rec.title;
     return m;
 }
