@@ -89,18 +89,8 @@ py::dict result_dict(const repel::python::CheckResult& r) {
     return d;
 }
 
-}  // namespace
-
-PYBIND11_MODULE(repel, m) {
-    m.doc() =
-        "repel: 3D structures from SMILES and single-centre formulas by electron-domain repulsion.\n\n"
-        "build(text) gives a Structure (elements, numpy positions in Angstrom, bonds, charge, multiplicity, warnings)\n"
-        "that writes the same XYZ, SDF, PDB or JSON text as `repel build`; shape(text) gives the electron-domain\n"
-        "analysis of `repel shape --json`. Atom indices are 0-based everywhere in this module (the files it writes\n"
-        "keep their formats' own numbering). Errors: InputError (a ValueError) for input that cannot be read or\n"
-        "built, UnsupportedError (a RuntimeError) for what repel cannot build yet.";
-    m.attr("__version__") = repel::python::version();
-
+// The exception classes and the translation of the library's exceptions.
+void add_exceptions(py::module_& m) {
     g_input_error = PyErr_NewExceptionWithDoc(
         "repel.InputError",
         "Input that cannot be read or built (a SMILES that does not parse, a valence that cannot be satisfied, a\n"
@@ -128,6 +118,10 @@ PYBIND11_MODULE(repel, m) {
         }
     });
 
+}
+
+// repel.Structure: what build() returns.
+void add_structure(py::module_& m) {
     py::class_<Built>(m, "Structure",
                       "A built structure. Immutable: every array property returns a new numpy array on each access.\n"
                       "Atom indices are 0-based, in the atom order of the input (hydrogens added for implicit counts\n"
@@ -207,6 +201,9 @@ PYBIND11_MODULE(repel, m) {
             "else spread evenly over the heavy atoms (for example O2's two). Imports ase when called (ImportError\n"
             "without it).");
 
+}
+
+void add_build_and_shape(py::module_& m) {
     m.def(
         "build",
         [](const py::str& text, const std::optional<std::string>& name, bool refine, std::optional<int> multiplicity,
@@ -246,6 +243,9 @@ PYBIND11_MODULE(repel, m) {
         "and warnings. Atom indices are 0-based (the command line's JSON numbers them from 1); messages in text keep\n"
         "the command line's 1-based numbers. Raises InputError, UnsupportedError, TypeError as build() does.");
 
+}
+
+void add_check(py::module_& m) {
     m.def(
         "check",
         [](const py::object& source, std::optional<int> charge, std::optional<int> multiplicity) {
@@ -304,4 +304,23 @@ PYBIND11_MODULE(repel, m) {
         "it numbers atoms from 1, as the command line does), measured, expected (float or None), unit ('degrees',\n"
         "'angstrom' or ''), severity ('warning' or 'error'). Raises OSError for a file that cannot be opened,\n"
         "InputError for one that cannot be read (an unknown extension, a malformed line).");
+}
+
+}  // namespace
+
+PYBIND11_MODULE(repel, m) {
+    m.doc() =
+        "repel: 3D structures from SMILES and single-centre formulas by electron-domain repulsion.\n\n"
+        "build(text) gives a Structure (elements, numpy positions in Angstrom, bonds, charge, multiplicity, warnings)\n"
+        "that writes the same XYZ, SDF, PDB or JSON text as `repel build`; shape(text) gives the electron-domain\n"
+        "analysis of `repel shape --json`; check(path, Structure or ase.Atoms) audits structures built elsewhere, as\n"
+        "`repel check`. Atom indices are 0-based everywhere in this module (the files it writes\n"
+        "keep their formats' own numbering). Errors: InputError (a ValueError) for input that cannot be read or\n"
+        "built, UnsupportedError (a RuntimeError) for what repel cannot build yet.";
+    m.attr("__version__") = repel::python::version();
+
+    add_exceptions(m);
+    add_structure(m);
+    add_build_and_shape(m);
+    add_check(m);
 }
