@@ -86,7 +86,8 @@ def test_radical_and_ion():
 
 @pytest.mark.parametrize("fmt", ["xyz", "sdf", "pdb", "json"])
 @pytest.mark.parametrize("text,name", [("O", None), (KB101, "kettleburn-analgesic-KB-101"), ("NO2", None),
-                                       ("F[Xe](F)(F)F", "xenon-tetrafluoride-standard")])
+                                       ("F[Xe](F)(F)F", "xenon-tetrafluoride-standard"),
+                                       ("[NH4+]", "Kettleburn café ammonium")])
 def test_same_bytes_as_the_command_line(fmt, text, name):
     args = ["build", text, "--format", fmt] + (["--name", name] if name else [])
     assert repel.build(text, name=name).to_text(fmt).encode() == cli(*args)
@@ -180,6 +181,16 @@ def test_empty_and_impossible_inputs():
         repel.build("O", multiplicity=2)  # 10 electrons: odd multiplicities only
     with pytest.raises(repel.InputError):
         repel.build("O", multiplicity=0)
+
+
+@pytest.mark.parametrize("text", ["(" * 5000 + "C", "C\x00C", "[C+99999999999]", "C1" * 300, "\xff\xfe",
+                                  "C" * 20000 + "(", "F[Xe](F)(F)(F)(F)(F)(F)(F)(F)F"])
+def test_hostile_text_raises_and_never_crashes(text):
+    # Inputs of the kinds in tests/test_hostile.cpp: each is refused with a Python exception, never a crash.
+    with pytest.raises((repel.InputError, repel.UnsupportedError)):
+        repel.build(text)
+    with pytest.raises((repel.InputError, repel.UnsupportedError)):
+        repel.shape(text)
 
 
 def test_wrong_types_give_type_error():
