@@ -20,35 +20,40 @@ namespace {
 const std::map<std::string, double>& corrections() {
     static const std::map<std::string, double> table = {
         // TABLE BEGIN
-        {"C2-H1 1", +0.020},
         {"C2-N1 3", +0.040},
-        {"C2u-C2u 1", -0.025},
         {"C2u-O1 2", -0.020},
-        {"C3-C4 1", +0.010},
         {"C3-N3 2", -0.025},
         {"C3-O1 2", -0.030},
         {"C3-O1 s", -0.045},
         {"C3u-C3u 1", +0.020},
-        {"C3u-C4 1", +0.030},
+        {"C3u-C3u ar f", +0.020},
+        {"C3u-C3u ar r5 f", +0.020},
+        {"C3u-C4 1", +0.025},
         {"C3u-F1 1", -0.015},
-        {"C3u-N3 1", -0.070},
-        {"C3u-N3u ar", +0.030},
+        {"C3u-N2u ar", -0.010},
+        {"C3u-N3 1", -0.075},
+        {"C3u-N3c 1", -0.055},
+        {"C3u-N3u ar", +0.040},
+        {"C3u-N3u ar r5", +0.020},
         {"C3u-O1 2", -0.030},
         {"C3u-O1 s", -0.035},
-        {"C3u-O2 1", -0.015},
-        {"C3u-O2u ar", +0.060},
+        {"C3u-O2 1", -0.020},
+        {"C3u-O2u ar r5", +0.060},
         {"C4-C4 1", +0.015},
         {"C4-C4 1 r3", -0.030},
         {"C4-Cl1 1", +0.020},
-        {"C4-N3 1", -0.020},
+        {"C4-N3 1", -0.015},
+        {"C4-N3c 1", -0.025},
         {"C4-N3u 1", -0.020},
         {"C4-N4 1", +0.010},
         {"C4-S2 1", +0.025},
         {"C4-S4u 1", +0.035},
         {"C4-Si4 1", +0.045},
-        {"H1-N3 1", -0.020},
+        {"H1-N3 1", -0.015},
+        {"H1-N3c 1", -0.025},
         {"H1-N3u 1", -0.020},
         {"H1-O2 1", +0.015},
+        {"H1-O2c 1", +0.020},
         {"H1-S2 1", -0.015},
         {"O1-S4u s", +0.025},
         // TABLE END
@@ -66,12 +71,21 @@ bool multiple(const Bond& b) { return b.aromatic || b.order >= 2; }
 
 std::string bond_kind(const Molecule& m, int e) {
     const Bond& b = m.bonds[static_cast<size_t>(e)];
-    auto end = [&](int i) {
-        bool unsaturated = false;
+    auto unsaturated = [&](int i, int other) {
         for (const Neighbor& nb : m.neighbors(i))
-            if (nb.bond != e && multiple(m.bonds[static_cast<size_t>(nb.bond)])) unsaturated = true;
-        return std::string(element(m.atoms[static_cast<size_t>(i)].z).symbol) + std::to_string(neighbour_count(m, i)) +
-               (unsaturated ? "u" : "");
+            if (nb.atom != other && multiple(m.bonds[static_cast<size_t>(nb.bond)])) return true;
+        return false;
+    };
+    auto end = [&](int i, int other) {
+        const int z = m.atoms[static_cast<size_t>(i)].z;
+        std::string flag;
+        if (unsaturated(i, other)) {
+            flag = "u";
+        } else if (z == 7 || z == 8) {
+            for (const Neighbor& nb : m.neighbors(i))
+                if (nb.atom != other && unsaturated(nb.atom, i)) flag = "c";
+        }
+        return std::string(element(z).symbol) + std::to_string(neighbour_count(m, i)) + flag;
     };
     bool shared = false;
     for (int side = 0; side < 2; ++side) {
@@ -87,17 +101,40 @@ std::string bond_kind(const Molecule& m, int e) {
         }
         shared = shared || (same >= 2 && any_multiple);
     }
-    bool ring3 = false;
+    std::string tags;
     for (const Neighbor& x : m.neighbors(b.a))
-        if (x.atom != b.b && m.bond_between(x.atom, b.b) >= 0) ring3 = true;
-    std::string ea = end(b.a), eb = end(b.b);
-    // Sorted as the fitting script sorts (symbol, count, u): compare symbol first, then the rest.
+        if (x.atom != b.b && m.bond_between(x.atom, b.b) >= 0) {
+            tags += " r3";
+            break;
+        }
+    if (b.aromatic) {
+        // In a five-membered ring: a path a-x-y-z-b besides the bond.
+        bool ring5 = false;
+        for (const Neighbor& x : m.neighbors(b.a)) {
+            if (x.atom == b.b) continue;
+            for (const Neighbor& y : m.neighbors(x.atom)) {
+                if (y.atom == b.a || y.atom == b.b) continue;
+                for (const Neighbor& z : m.neighbors(y.atom))
+                    if (z.atom != b.a && z.atom != b.b && z.atom != x.atom && m.bond_between(z.atom, b.b) >= 0)
+                        ring5 = true;
+            }
+        }
+        auto aromatic_bonds = [&](int i) {
+            int n = 0;
+            for (const Neighbor& nb : m.neighbors(i)) n += m.bonds[static_cast<size_t>(nb.bond)].aromatic ? 1 : 0;
+            return n;
+        };
+        if (ring5) tags += " r5";
+        if (aromatic_bonds(b.a) == 3 && aromatic_bonds(b.b) == 3) tags += " f";
+    }
+    std::string ea = end(b.a, b.b), eb = end(b.b, b.a);
+    // Sorted as the fitting script sorts (symbol, count, flag): compare symbol first, then the rest.
     auto key = [&](int i, const std::string& s) {
         return std::make_pair(std::string(element(m.atoms[static_cast<size_t>(i)].z).symbol), s);
     };
     if (key(b.b, eb) < key(b.a, ea)) std::swap(ea, eb);
     const std::string order = shared ? "s" : b.aromatic ? "ar" : std::to_string(std::clamp(b.order, 1, 3));
-    return ea + "-" + eb + " " + order + (ring3 ? " r3" : "");
+    return ea + "-" + eb + " " + order + tags;
 }
 
 std::vector<double> corrected_lengths(const Molecule& m, const std::vector<double>& model) {
@@ -108,7 +145,8 @@ std::vector<double> corrected_lengths(const Molecule& m, const std::vector<doubl
         const auto it = corrections().find(bond_kind(m, static_cast<int>(e)));
         if (it != corrections().end()) shift[e] = it->second;
     }
-    // Groups of bonds of one atom to one element with equal model lengths (union-find over shared atoms).
+    // Groups of bonds of one atom to one element written with different orders but of equal model lengths: orders the
+    // analysis shared (union-find over shared atoms).
     std::vector<size_t> parent(n);
     std::iota(parent.begin(), parent.end(), size_t{0});
     auto find = [&](size_t x) {
@@ -126,6 +164,7 @@ std::vector<double> corrected_lengths(const Molecule& m, const std::vector<doubl
                 const size_t e = static_cast<size_t>(nbs[p].bond), f = static_cast<size_t>(nbs[q].bond);
                 if (e >= model.size() || f >= model.size() || model[e] <= 0 || model[f] <= 0) continue;
                 if (pair_of(m.bonds[e]) != pair_of(m.bonds[f]) || std::fabs(model[e] - model[f]) > 1e-4) continue;
+                if (m.bonds[e].order == m.bonds[f].order && m.bonds[e].aromatic == m.bonds[f].aromatic) continue;
                 parent[find(e)] = find(f);
             }
     }

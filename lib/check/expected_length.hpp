@@ -10,14 +10,16 @@
 namespace repel {
 
 // The kind of bond e of m (explicit hydrogens): each end's element and neighbour count, `u` when that end has another
-// double, triple or aromatic bond; the order (1, 2, 3, ar), or `s` for a bond to one of two or more terminal atoms of
-// one element on one centre, one of those bonds multiple (carboxylate, nitro, sulfonyl); ` r3` in a three-membered
-// ring. The ends are sorted (element symbol, then count, then `u`): "C3u-N3 1", "C3-O1 s", "C4-C4 1 r3".
+// double, triple or aromatic bond, else `c` for an N or O with another neighbour that has one (its lone pair shared
+// elsewhere: an anilide's N); the order (1, 2, 3, ar), or `s` for a bond to one of two or more terminal atoms of one
+// element on one centre, one of those bonds multiple (carboxylate, nitro, sulfonyl); ` r3` in a three-membered ring;
+// aromatic bonds ` r5` in a five-membered ring, ` f` between two atoms of three aromatic bonds (ring fusion). The
+// ends are sorted (element symbol, then the rest): "C3u-N3 1", "C3-O1 s", "C4-C4 1 r3", "C3u-C3u ar f".
 std::string bond_kind(const Molecule& m, int e);
 
 // The analysis' lengths of m's bonds (model[e], 0 where none) corrected by kind. Bonds of one atom to one element
-// whose model lengths are equal (resonance-shared orders: carboxylate, guanidinium; 0.0001 A) take the mean of their
-// corrections, so that they stay equal.
+// written with different orders whose model lengths are equal (orders the analysis shared: carboxylate, guanidinium;
+// 0.0001 A) take the mean of their corrections, so that they stay equal.
 std::vector<double> corrected_lengths(const Molecule& m, const std::vector<double>& model);
 
 }  // namespace repel

@@ -10,8 +10,10 @@ is then a finding). To refit, empty the table in the C++ source and rebuild: the
 analysis' own lengths. With the table in place the script takes it off again (read from the source), which is exact
 only where no two bonds of one atom end at equal corrected lengths by chance; the "with the table" lines are exact. The kind of a bond is computed as bond_kind() in
 lib/check/expected_length.cpp computes it: each end's element and neighbour count, `u` when that end has another
-double, triple or aromatic bond; the order (1, 2, 3, ar), or `s` for the bonds of two or more terminal atoms of one
-element on one centre, one of those bonds multiple (shared orders: carboxylate, nitro, sulfonyl); ` r3` for a bond of a three-membered ring.
+double, triple or aromatic bond, else `c` for an N or O with another neighbour that has one (its lone pair shared
+elsewhere: the N of an anilide, of a biguanide); the order (1, 2, 3, ar), or `s` for the bonds of two or more terminal atoms of one
+element on one centre, one of those bonds multiple (shared orders: carboxylate, nitro, sulfonyl); ` r3` for a bond of a three-membered ring;
+for aromatic bonds ` r5` in a five-membered ring and ` f` between two atoms of three aromatic bonds (ring fusion).
 Usage: fit_check_lengths.py /path/to/repel      (prints both halves and the table to paste)
 Not a test: a tool to refit the table when the length model changes.
 """
@@ -46,8 +48,8 @@ def current_table():
     return out
 
 
-def end(symbol, degree, unsaturated):
-    return f"{symbol}{degree}{'u' if unsaturated else ''}"
+def end(symbol, degree, flag):
+    return f"{symbol}{degree}{flag}"
 
 
 def kinds(symbols, bonds):
@@ -57,11 +59,31 @@ def kinds(symbols, bonds):
         adj[a].append((b, w))
         adj[b].append((a, w))
     out = {}
+    def unsat(x, other):
+        return any(y != other and v != "single" for y, v in adj[x])
+
+    def flag(x, other):
+        if unsat(x, other):
+            return "u"
+        if symbols[x] in ("N", "O") and any(y != other and unsat(y, x) for y, _ in adj[x]):
+            return "c"
+        return ""
+
+    def ring5(a, b):
+        for x, _ in adj[a]:
+            if x == b:
+                continue
+            for y, _ in adj[x]:
+                if y in (a, b):
+                    continue
+                for z, _ in adj[y]:
+                    if z not in (a, b, x) and any(t == b for t, _ in adj[z]):
+                        return True
+        return False
+
     for (a, b), w in bonds.items():
-        def unsat(x, other):
-            return any(y != other and v != "single" for y, v in adj[x])
-        ea = (symbols[a], len(adj[a]), unsat(a, b))
-        eb = (symbols[b], len(adj[b]), unsat(b, a))
+        ea = (symbols[a], len(adj[a]), flag(a, b))
+        eb = (symbols[b], len(adj[b]), flag(b, a))
         order = {"single": "1", "double": "2", "triple": "3", "aromatic": "ar"}[w]
         for centre, term in ((a, b), (b, a)):
             if len(adj[term]) != 1 or len(adj[centre]) < 2:
@@ -69,15 +91,22 @@ def kinds(symbols, bonds):
             same = [v for y, v in adj[centre] if symbols[y] == symbols[term] and len(adj[y]) == 1]
             if len(same) >= 2 and any(v != "single" for v in same):
                 order = "s"
-        ring3 = bool({y for y, _ in adj[a]} & {y for y, _ in adj[b]})
+        tags = ""
+        if {y for y, _ in adj[a]} & {y for y, _ in adj[b]}:
+            tags += " r3"
+        if w == "aromatic":
+            if ring5(a, b):
+                tags += " r5"
+            if all(sum(1 for _, v in adj[x] if v == "aromatic") == 3 for x in (a, b)):
+                tags += " f"
         lo, hi = sorted([ea, eb])
-        out[(a, b)] = f"{end(*lo)}-{end(*hi)} {order}{' r3' if ring3 else ''}"
+        out[(a, b)] = f"{end(*lo)}-{end(*hi)} {order}{tags}"
     return out
 
 
-def groups(symbols, lengths):
-    """Group index per bond: bonds of one atom to one element with equal lengths (0.0001 A) share one correction,
-    as corrected_lengths() in lib/check/expected_length.cpp shares it."""
+def groups(symbols, lengths, words):
+    """Group index per bond: bonds of one atom to one element written with different orders but of equal lengths
+    (0.0001 A: resonance-shared) share one correction, as corrected_lengths() in lib/check/expected_length.cpp does."""
     bonds = list(lengths)
     parent = {b: b for b in bonds}
 
@@ -89,6 +118,8 @@ def groups(symbols, lengths):
         for q in range(p + 1, len(bonds)):
             e, f = bonds[p], bonds[q]
             if not set(e) & set(f) or sorted(symbols[x] for x in e) != sorted(symbols[x] for x in f):
+                continue
+            if words[e] == words[f]:
                 continue
             if abs(lengths[e] - lengths[f]) <= 1e-4:
                 parent[find(e)] = find(f)
@@ -122,7 +153,7 @@ def collect(repel):
             bonds[(a, b)] = re.search(r"(single|double|triple|aromatic) bond", f["message"]).group(1)
             data[(a, b)] = (f["measured"], f["expected"])
         kind_of = kinds(s[1], bonds)
-        group_of = groups(s[1], {b: v[1] for b, v in data.items()})
+        group_of = groups(s[1], {b: v[1] for b, v in data.items()}, bonds)
         applied = shared(table, kind_of, group_of)
         for ab, kind in kind_of.items():
             measured, expected = data[ab]
