@@ -15,6 +15,7 @@
 #include <set>
 #include <unordered_map>
 
+#include "check/expected_length.hpp"
 #include "core/bond_length.hpp"
 #include "core/element.hpp"
 #include "core/limits.hpp"
@@ -657,7 +658,8 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
         out.notes.push_back(std::string("no shape check: ") + e.what());
     }
 
-    // 3. Bond lengths.
+    // 3. Bond lengths, against the analysis' lengths corrected by kind of bond (expected_length.hpp).
+    model_length = corrected_lengths(m, model_length);
     for (size_t e = 0; e < m.bonds.size(); ++e) {
         const Bond& b = m.bonds[e];
         if (excluded[static_cast<size_t>(b.a)] || excluded[static_cast<size_t>(b.b)]) continue;

@@ -6,6 +6,7 @@
 #include <cmath>
 #include <set>
 
+#include "check/expected_length.hpp"
 #include "check/shape_measure.hpp"
 #include "core/element.hpp"
 #include "core/error.hpp"
@@ -117,6 +118,8 @@ CleanResult clean_structure(const Audit& audit) {
         // along one bond shortens its other ring bond by 0.12 A, under the threshold): its bonds take the model's
         // lengths too.
         if (d.bond_lengths.size() == m.bonds.size()) {
+            // The lengths the audit judged against (the analysis' corrected by kind of bond).
+            d.bond_lengths = corrected_lengths(m, d.bond_lengths);
             std::set<int> flagged;
             for (const Finding& f : audit.findings)
                 for (int a : f.atoms) flagged.insert(a - 1);
