@@ -16,6 +16,7 @@
 #include "assemble/build.hpp"
 #include "commands.hpp"
 #include "core/error.hpp"
+#include "core/replace_file.hpp"
 #include "batch/batch.hpp"
 #include "input/records.hpp"
 #include "input/sd_molecule.hpp"
@@ -44,37 +45,27 @@ std::istream* open_input(const std::string& path, std::ifstream& file, const cha
 
 namespace {
 
-// Writes to a temporary file beside the target and renames it at the end, so that a file is never left half written.
+// A file written whole or not at all (core/replace_file.hpp), or standard output when the path is empty.
 class OutputFile {
 public:
     explicit OutputFile(const std::string& path) : path_(path) {
-        if (path_.empty()) return;
-        tmp_ = path_ + ".partial";
-        file_.open(tmp_, std::ios::binary | std::ios::trunc);
-        if (!file_) throw std::runtime_error(fmt::format("cannot write {}", path_));
+        if (!path_.empty()) file_.open(path_);
     }
     void write(const std::string& text) {
+        if (path_.empty()) std::fwrite(text.data(), 1, text.size(), stdout);
+        else file_.write(text);
+    }
+    void commit() {
         if (path_.empty()) {
-            std::fwrite(text.data(), 1, text.size(), stdout);
-        } else {
-            file_ << text;
+            if (std::fflush(stdout) != 0) throw std::runtime_error("cannot write standard output");
+            return;
         }
-    }
-    bool commit() {
-        if (path_.empty()) return std::fflush(stdout) == 0;
-        file_.close();
-        if (!file_) return false;
-        std::error_code ec;
-        std::filesystem::rename(tmp_, path_, ec);
-        return !ec;
-    }
-    ~OutputFile() {
-        if (!path_.empty() && std::filesystem::exists(tmp_)) std::filesystem::remove(tmp_);
+        file_.commit();
     }
 
 private:
-    std::string path_, tmp_;
-    std::ofstream file_;
+    std::string path_;
+    ReplaceFile file_;
 };
 
 // SIGINT / SIGTERM during a batch: stop reading, write what is built, leave the checkpoint. A second signal ends the
@@ -128,7 +119,7 @@ private:
 void write_whole_file(const std::string& path, const std::string& text) {
     OutputFile out(path);
     out.write(text);
-    if (!out.commit()) throw std::runtime_error("cannot write " + path);
+    out.commit();
 }
 
 int run_batch(const BuildArgs& args, const StructureWriter& writer, const BuildOptions& options);
@@ -188,7 +179,7 @@ int run_build(const BuildArgs& args) {
             if (!args.picture.empty()) write_whole_file(args.picture, picture);
             OutputFile out(args.output_file);
             out.write(record);  // one molecule: the record alone (a JSON object, not an array)
-            if (!out.commit()) throw std::runtime_error("cannot write " + args.output_file);
+            out.commit();
         } catch (const std::exception& e) {
             std::cerr << "repel build: " << e.what() << "\n";
             return 2;

@@ -15,6 +15,7 @@
 #include "commands.hpp"
 #include "core/error.hpp"
 #include "core/limits.hpp"
+#include "core/replace_file.hpp"
 #include "input/smiles.hpp"
 #include "input/structure_reader.hpp"
 #include "output/writer.hpp"
@@ -173,20 +174,11 @@ int run_check(const CheckArgs& args) {
         }
     }
     if (writer) {
-        // Written whole or not at all: a temporary file renamed at the end.
-        const std::string tmp = args.output_file + ".partial";
-        {
-            std::ofstream out(tmp, std::ios::binary | std::ios::trunc);
-            out << cleaned;
-            if (!out) {
-                std::cerr << "repel check: cannot write " << args.output_file << "\n";
-                std::remove(tmp.c_str());
-                return 2;
-            }
-        }
-        if (std::rename(tmp.c_str(), args.output_file.c_str()) != 0) {
+        // Written whole or not at all (core/replace_file.hpp).
+        try {
+            replace_file(args.output_file, cleaned);
+        } catch (const std::exception&) {
             std::cerr << "repel check: cannot write " << args.output_file << "\n";
-            std::remove(tmp.c_str());
             return 2;
         }
     }

@@ -272,20 +272,8 @@ bool load_checkpoint(const std::string& path, Checkpoint& cp) {
 // ---- files
 void AppendFile::open(const std::string& path, bool resume, std::uint64_t offset) {
     path_ = path;
-    const std::string partial = path + ".partial";
-    if (resume) {
-        fd_ = ::open(partial.c_str(), O_WRONLY);
-        if (fd_ < 0) throw std::runtime_error(fmt::format("cannot resume: {} is missing ({})", partial, std::strerror(errno)));
-        struct stat st {};
-        if (::fstat(fd_, &st) != 0 || static_cast<std::uint64_t>(st.st_size) < offset)
-            throw std::runtime_error(fmt::format("cannot resume: {} is shorter than its checkpoint says", partial));
-        if (::ftruncate(fd_, static_cast<off_t>(offset)) != 0 || ::lseek(fd_, static_cast<off_t>(offset), SEEK_SET) < 0)
-            throw std::runtime_error(fmt::format("cannot resume: cannot truncate {}", partial));
-        offset_ = offset;
-    } else {
-        fd_ = ::open(partial.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0666);
-        if (fd_ < 0) throw std::runtime_error(fmt::format("cannot write {} ({})", partial, std::strerror(errno)));
-    }
+    if (resume) file_.resume(path, offset);
+    else file_.open(path, ReplaceFile::Unfinished::keep);
 }
 
 void AppendFile::open_stdout() {
@@ -293,17 +281,18 @@ void AppendFile::open_stdout() {
     fd_ = STDOUT_FILENO;
 }
 
-AppendFile::~AppendFile() {
-    if (!path_.empty() && fd_ >= 0) ::close(fd_);
-}
+AppendFile::~AppendFile() = default;
 
 void AppendFile::write(std::string_view text) {
+    if (!path_.empty()) {
+        file_.write(text);
+        return;
+    }
     while (!text.empty()) {
         const ssize_t n = ::write(fd_, text.data(), text.size());
         if (n < 0) {
             if (errno == EINTR) continue;
-            throw std::runtime_error(fmt::format("cannot write {}: {}", path_.empty() ? "standard output" : path_,
-                                                 std::strerror(errno)));
+            throw std::runtime_error(fmt::format("cannot write standard output: {}", std::strerror(errno)));
         }
         text.remove_prefix(static_cast<size_t>(n));
         offset_ += static_cast<std::uint64_t>(n);
@@ -312,14 +301,7 @@ void AppendFile::write(std::string_view text) {
 
 void AppendFile::finish() {
     if (path_.empty()) return;
-    if (::close(fd_) != 0) {
-        fd_ = -1;
-        throw std::runtime_error("cannot write " + path_);
-    }
-    fd_ = -1;
-    std::error_code ec;
-    std::filesystem::rename(path_ + ".partial", path_, ec);
-    if (ec) throw std::runtime_error("cannot write " + path_ + ": " + ec.message());
+    file_.commit();
 }
 
 // ---- the ordered writer

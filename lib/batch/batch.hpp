@@ -16,6 +16,8 @@
 #include <string_view>
 #include <vector>
 
+#include "core/replace_file.hpp"
+
 namespace repel::batch {
 
 // One input record as read: its 0-based index among all records of the input (before sharding), its 1-based line,
@@ -132,14 +134,15 @@ public:
     AppendFile(const AppendFile&) = delete;
     AppendFile& operator=(const AppendFile&) = delete;
     void write(std::string_view text);
-    std::uint64_t offset() const { return offset_; }
-    // Closes and renames path.partial to path.
+    std::uint64_t offset() const { return path_.empty() ? offset_ : file_.offset(); }
+    // Flushes, closes and renames path.partial to path.
     void finish();
     bool is_file() const { return !path_.empty(); }
 
 private:
     std::string path_;
-    int fd_ = -1;
+    ReplaceFile file_;  // path.partial (kept when the run stops, for --resume)
+    int fd_ = -1;       // standard output
     std::uint64_t offset_ = 0;
 };
 

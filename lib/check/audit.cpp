@@ -3,6 +3,7 @@
 #include "check/audit.hpp"
 
 #include "domains/metal.hpp"
+#include "graph/conjugation.hpp"
 #include "graph/rings.hpp"
 
 #include <fmt/format.h>
@@ -44,17 +45,6 @@ std::string label(const Molecule& m, int i) {
 constexpr double kFlatTetrahedron = 0.3;
 
 Severity severity_of(double ratio) { return ratio >= 2.0 ? Severity::error : Severity::warning; }
-
-// A nitrogen with one lone pair next to a multiple bond (amide, aniline, pyrrole, enamine): conjugation may flatten
-// it, so a planar centre is accepted as well as the pyramid the domain count predicts (common practice).
-bool conjugated_nitrogen(const Molecule& m, int centre, const CentreDomains& c) {
-    if (m.atoms[static_cast<size_t>(centre)].z != 7 || c.lone_pairs + c.delocalised_lone_pairs != 1 || c.bonded != 3)
-        return false;
-    for (const Neighbor& nb : m.neighbors(centre))
-        for (const Neighbor& nn : m.neighbors(nb.atom))
-            if (m.bonds[static_cast<size_t>(nn.bond)].order >= 2) return true;
-    return false;
-}
 
 // An O or N with lone pairs bonded to Si, P, B, Al, Ge, As or a sulfonyl S: its angle opens far beyond what the
 // isolated centre's domains give (Si-O-Si 140-180 degrees, the P-O-P of a diphosphate 130-140, trisilylamine
@@ -518,7 +508,7 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
             if (angle_opened_by_neighbours(skeleton, i, c)) continue;
             // Two unpaired electrons (a triplet carbene) count as a lone pair in the Lewis structure: no prediction.
             if (valence.unpaired[static_cast<size_t>(i)] >= 2) continue;
-            AngleFit fit = fit_angles(skeleton, pos, c, conjugated_nitrogen(skeleton, i, c), rings);
+            AngleFit fit = fit_angles(skeleton, pos, c, conjugated_nitrogen(skeleton, i, c.lone_pairs + c.delocalised_lone_pairs, c.bonded), rings);
             // A single-electron domain is the model's least certain size (NO2 opens to 134 degrees, CH3 is flat):
             // twice the tolerance at a radical centre.
             // The same next to an atom left with an unpaired electron: where the electron sits in the Lewis
@@ -590,7 +580,7 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
                 on_metal = on_metal || (zn == 8 && m.atoms[static_cast<size_t>(nb.atom)].radical_electrons > 0);
             }
             if (c.bonded == 3 && c.steric_number == 4 && c.lone_pairs == 1 && c.delocalised_lone_pairs == 0 &&
-                !on_metal && !conjugated_nitrogen(skeleton, i, c)) {
+                !on_metal && !conjugated_nitrogen(skeleton, i, c.lone_pairs + c.delocalised_lone_pairs, c.bonded)) {
                 const auto& nbs = skeleton.neighbors(i);
                 const Eigen::Vector3d& o = pos[static_cast<size_t>(i)];
                 double sum = 0;

@@ -9,6 +9,7 @@
 #include "core/element.hpp"
 #include "core/error.hpp"
 #include "domains/model.hpp"
+#include "graph/conjugation.hpp"
 #include "graph/valence.hpp"
 #include "sphere/sphere.hpp"
 
@@ -167,47 +168,6 @@ std::vector<double> length_orders(const Molecule& m) {
     return orders;
 }
 
-// Whether one lone pair of atom i is delocalised into a neighbouring pi system, so that it takes no sigma domain of
-// its own (common practice: the lone pair of an amide N, an aniline N, a pyrrole N, an ester or aryl-ether O, the
-// O of an enol ether or a nitrite lies in a p orbital parallel to the neighbour's pi bond; amides are planar, and
-// the C-O-C of esters opens to 114-118 degrees, G2 methyl formate 114.0, methyl nitrite 114.6). The rule:
-// - a neutral N or O (period 2: its lone pair overlaps a second-row pi bond; F stays out, its pairs are held too
-//   tightly, common practice) with a lone pair and no single electron;
-// - all its own bonds single (an atom with a double bond of its own, pyridine's N, keeps its pair in the sigma
-//   plane; aromatic bonds count by their Kekule order, so pyrrole's N and furan's O qualify);
-// - bonded to a neutral or cationic period-2 atom (C, N, O, B) that has a double, triple or aromatic bond to a third
-//   atom (hypervalent neighbours, the S of a sulfonamide or the P of a phosphate, are left out: their S=O and P=O
-//   are not pi bonds the pair can join);
-// - not in a three-membered ring (N-acyl aziridines stay pyramidal, common practice);
-// - an oxygen only between two heavy atoms: the hydroxyl O of an acid does not open (G2, MP2(full)/6-31G(d):
-//   C-O-H 106.0 in formic, 105.4 in acetic acid, against 107.4 in methanol), where counting its pair as delocalised
-//   would give 111; the opening at an oxygen comes with two heavy ligands (ester, nitrite, aryl and enol ethers).
-// - or bonded to a three-coordinate neutral boron with single bonds only (an empty p orbital: aminoboranes, borazine,
-//   boronic esters and acids are planar at N and O, common practice); next to boron a hydroxyl O counts too (the
-//   B-O-H of boronic acids opens to about 113 deg, from memory).
-// - or bonded to a carbene carbon that donates its lone pair to a metal by a single bond (its p orbital is empty
-//   as boron's: the N of an N-heterocyclic carbene is planar and its C-N short, common practice).
-// - or an oxygen between two heavy atoms of which one is of period 3 or later and less electronegative than O by at
-//   least kPolarBridge (p block: Si, P, S, Al, Ge, As): its pairs are partly given to the neighbours' sigma* orbitals
-//   (negative hyperconjugation, Reed and Schleyer, J. Am. Chem. Soc. 112 (1990) 1434; the Si-O bond is largely ionic
-//   and the wide Si-O-Si angle follows, Gillespie and Johnson, Inorg. Chem. 36 (1997) 3031, from memory). Measured
-//   angles (from memory): Si-O-Si 144 in disiloxane and 148 in hexamethyldisiloxane (gas-phase electron diffraction),
-//   P-O-P about 130 and C-O-P about 118 in pyrophosphates and ATP, S-O-S about 124 in pyrosulfate (crystal
-//   structures), C-O-C 111 in dimethyl ether; counted as one delocalised pair the centre is AX2E, trigonal.
-// At most one pair per atom is delocalised.
-bool carbene_on_metal(const Molecule& m, int j) {
-    const Atom& c = m.atoms[static_cast<size_t>(j)];
-    if (c.z != 6 || c.charge != 0 || std::max(0, c.hydrogens) != 0 || m.degree(j) != 3) return false;
-    int metal = 0, hetero = 0;
-    for (const Neighbor& nb : m.neighbors(j)) {
-        const Atom& o = m.atoms[static_cast<size_t>(nb.atom)];
-        if (m.bonds[static_cast<size_t>(nb.bond)].order != 1) return false;
-        if (is_d_block_metal(o.z)) ++metal;
-        else if ((o.z == 7 || o.z == 8 || o.z == 16) && o.charge == 0) ++hetero;
-    }
-    return metal == 1 && hetero >= 1;
-}
-
 // A carbene carbon on a metal, written with a single bond (carbene_on_metal) or a double one (M=C(NR)2).
 bool carbene_donor_carbon(const Molecule& m, int j) {
     if (carbene_on_metal(m, j)) return true;
@@ -222,44 +182,6 @@ bool carbene_donor_carbon(const Molecule& m, int j) {
         else if ((o.z == 7 || o.z == 8 || o.z == 16) && o.charge == 0) ++hetero;
     }
     return metal == 1 && hetero >= 1;
-}
-
-bool empty_p_boron(const Molecule& m, int j) {
-    const Atom& b = m.atoms[static_cast<size_t>(j)];
-    if (b.z == 5)
-        return b.charge == 0 && m.degree(j) + std::max(0, b.hydrogens) == 3 &&
-               m.bond_order_sum(j) + std::max(0, b.hydrogens) == 3;
-    return carbene_on_metal(m, j);
-}
-
-bool delocalised_lone_pair(const Molecule& m, int i, int lone_pairs, int single_electrons) {
-    const Atom& a = m.atoms[static_cast<size_t>(i)];
-    if ((a.z != 7 && a.z != 8) || a.charge != 0 || lone_pairs < 1 || single_electrons != 0) return false;
-    int heavy = 0;
-    for (const Neighbor& nb : m.neighbors(i)) {
-        if (m.bonds[static_cast<size_t>(nb.bond)].order != 1) return false;
-        if (m.atoms[static_cast<size_t>(nb.atom)].z != 1) ++heavy;
-    }
-    const auto& nbs = m.neighbors(i);
-    bool boron = false;
-    for (const Neighbor& nb : nbs) boron = boron || empty_p_boron(m, nb.atom);
-    if (a.z == 8 && !boron && (heavy != 2 || a.hydrogens > 0)) return false;
-    for (size_t p = 0; p < nbs.size(); ++p)
-        for (size_t q = p + 1; q < nbs.size(); ++q)
-            if (m.bond_between(nbs[p].atom, nbs[q].atom) >= 0) return false;
-    for (const Neighbor& nb : nbs)
-        if (a.z == 8 && is_polar_bridge_neighbour(m.atoms[static_cast<size_t>(nb.atom)].z)) return true;
-    for (const Neighbor& nb : nbs) {
-        const Atom& j = m.atoms[static_cast<size_t>(nb.atom)];
-        if (empty_p_boron(m, nb.atom)) return true;
-        if (element(j.z).period != 2 || j.charge < 0) continue;
-        for (const Neighbor& nn : m.neighbors(nb.atom)) {
-            if (nn.atom == i) continue;
-            const Bond& b = m.bonds[static_cast<size_t>(nn.bond)];
-            if (b.order >= 2 || b.aromatic) return true;
-        }
-    }
-    return false;
 }
 
 // The odd electron of a radical written on a terminal atom next to a centre with a pi bond and a lone pair ([O]N=O,

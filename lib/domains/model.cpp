@@ -41,14 +41,6 @@ bool hypervalent(int centre_z, CentreKind kind) {
 }
 }  // namespace
 
-bool is_polar_bridge_neighbour(int z) {
-    // Pauling units: S (2.58 against O's 3.44) is in, Cl (3.16), Br and I are out (a choice).
-    constexpr double kPolarBridge = 0.8;
-    const ElementData& j = element(z);
-    return j.period >= 3 && j.group >= 13 && j.electronegativity > 0 &&
-           element(8).electronegativity - j.electronegativity >= kPolarBridge;
-}
-
 double bridge_polarity(const std::vector<int>& neighbour_z) {
     double sum = 0;
     for (int z : neighbour_z)

@@ -5,6 +5,7 @@
 #include <cstdint>
 #include <vector>
 
+#include "graph/conjugation.hpp"
 #include "graph/molecule.hpp"
 #include "sphere/sphere.hpp"
 
@@ -49,9 +50,6 @@ struct CentreKind {
 };
 // A ligand atom CentreKind::heavy_ligands counts.
 bool is_heavy_ligand(int z);
-// A neighbour that draws a bridging oxygen's lone pair towards it: a p-block atom of period 3 or later less
-// electronegative than O by at least 0.8 Pauling units (Si, P, S, Al, Ge, As; not Cl, Br, I).
-bool is_polar_bridge_neighbour(int z);
 // Of an oxygen with the given neighbours: the sum of (chi_O - chi) over its polar-bridge neighbours (0 if none).
 double bridge_polarity(const std::vector<int>& neighbour_z);
 // The weight factor of the lone pair left at such an oxygen.

@@ -10,6 +10,7 @@
 
 #include "core/bond_length.hpp"
 #include "refine/constants.hpp"
+#include "graph/conjugation.hpp"
 #include "graph/rings.hpp"
 
 namespace repel::refine {
@@ -117,30 +118,14 @@ private:
         }
     }
 
-    // A centre with three domains and a double or aromatic bond: part of a pi system. A neutral three-coordinate
-    // boron counts too: its empty p orbital takes a neighbour's lone pair (aminoboranes, borazine, boronic esters;
-    // delocalised_lone_pair in domains.cpp).
+    // Per atom: pi_centre_for_planarity and conjugated_donor (graph/conjugation.hpp) on the analysis' counts.
     bool pi_centre(int i) const {
-        if (centre(i).steric_number != 3) return false;
-        if (atom_z(i) == 5 && centre(i).bonded == 3 && m_.atoms[static_cast<size_t>(i)].charge == 0) return true;
-        for (const Neighbor& nb : m_.neighbors(i)) {
-            const Bond& b = m_.bonds[static_cast<size_t>(nb.bond)];
-            if (b.aromatic || b.order == 2) return true;
-        }
-        return false;
+        return pi_centre_for_planarity(m_, i, centre(i).steric_number, centre(i).bonded);
     }
-
-    // A nitrogen or oxygen with a lone pair (four domains) on an aromatic ring or next to a pi centre: amides,
-    // anilines, pyrrole-type ring nitrogens, esters, phenols, furans. Its lone pair conjugates with the pi system
-    // (common practice). The domain analysis marks most of them (a delocalised lone pair, domains.cpp); the rest
-    // (a hydroxyl O, an N in a three-membered ring) keep four domains and are found here.
     bool conjugated_donor(int i) const {
         const CentreDomains& c = centre(i);
-        if ((atom_z(i) != 7 && atom_z(i) != 8) || c.single_electrons != 0) return false;
-        if (c.delocalised_lone_pairs == 0 && (c.lone_pairs < 1 || c.steric_number != 4)) return false;
-        for (const Neighbor& nb : m_.neighbors(i))
-            if (m_.bonds[static_cast<size_t>(nb.bond)].aromatic || pi_[static_cast<size_t>(nb.atom)]) return true;
-        return false;
+        return repel::conjugated_donor(m_, i, {c.lone_pairs, c.delocalised_lone_pairs, c.single_electrons, c.steric_number},
+                                       pi_);
     }
 
     // Three domains for the torsion rules, counting a conjugated three-coordinate nitrogen as trigonal.
