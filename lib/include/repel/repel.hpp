@@ -31,7 +31,7 @@ enum class TextNotation { automatic, smiles, formula, sd_record };
 
 struct BuildSettings {
     TextNotation notation = TextNotation::automatic;
-    std::string name;        // kept as Molecule::name of the result (from text only)
+    std::string name;        // Molecule::name of the result (from text only; empty: an SD record's title, or none)
     long first_line = 1;     // sd_record: the record's 1-based line in its file, so that messages name the file's line
     bool refine = true;      // the whole-molecule refinement after assembly
     double time_limit = 60;  // wall-clock seconds per molecule (0: none); past it a LimitError
