@@ -13,13 +13,12 @@
 #include <memory>
 #include <sstream>
 
-#include "assemble/build.hpp"
+#include "api/front_door.hpp"
 #include "commands.hpp"
 #include "core/error.hpp"
 #include "core/replace_file.hpp"
 #include "batch/batch.hpp"
 #include "input/records.hpp"
-#include "input/sd_molecule.hpp"
 #include "mpi_driver.hpp"
 #include "output/picture.hpp"
 
@@ -122,7 +121,7 @@ void write_whole_file(const std::string& path, const std::string& text) {
     out.commit();
 }
 
-int run_batch(const BuildArgs& args, const StructureWriter& writer, const BuildOptions& options);
+int run_batch(const BuildArgs& args, const StructureWriter& writer, const BuildSettings& options);
 
 int run_build(const BuildArgs& args) {
     std::unique_ptr<StructureWriter> writer;
@@ -135,13 +134,14 @@ int run_build(const BuildArgs& args) {
         std::cerr << "repel build: " << e.what() << "\n";
         return 2;
     }
-    BuildOptions options;
+    BuildSettings options;
+    options.notation = text_notation(args.notation);
     options.refine = args.refine;
     options.time_limit = args.time_limit;
     options.charge = args.charge;
     options.multiplicity = args.multiplicity;
     try {
-        options.metals = metal_options(args.polyhedra);
+        options.polyhedra = metal_options(args.polyhedra).polyhedra;
     } catch (const std::exception& e) {
         std::cerr << "repel build: " << e.what() << "\n";
         return 2;
@@ -149,10 +149,9 @@ int run_build(const BuildArgs& args) {
 
     Structure built;
     auto build_one = [&](const std::string& text, const std::string& name) {
-        Molecule mol = read_species(text, args.notation);
-        mol.name = name;
-        mol.make_hydrogens_explicit();
-        built = build_structure(mol, options);
+        BuildSettings settings = options;
+        settings.name = name;
+        built = build(text, settings);
         return writer->record(built, name.empty() ? text : name);
     };
 
@@ -191,7 +190,7 @@ int run_build(const BuildArgs& args) {
     return run_batch(args, *writer, options);
 }
 
-int run_batch(const BuildArgs& args, const StructureWriter& writer, const BuildOptions& options) {
+int run_batch(const BuildArgs& args, const StructureWriter& writer, const BuildSettings& options) {
     const bool mpi_run = mpi::size() > 1;
     const bool root = mpi::rank() == 0;
     std::string input_format = args.input_format;
@@ -206,10 +205,11 @@ int run_batch(const BuildArgs& args, const StructureWriter& writer, const BuildO
     batch::BuildFn build = [&](const batch::Item& item) -> batch::Outcome {
         batch::Outcome o;
         try {
-            Molecule mol = sdf ? molecule_from_sd_record(item.text, item.line) : read_species(item.text, args.notation);
-            mol.name = item.name;
-            mol.make_hydrogens_explicit();
-            Structure s = build_structure(mol, options);
+            BuildSettings settings = options;
+            if (sdf) settings.notation = TextNotation::sd_record;
+            settings.name = item.name;
+            settings.first_line = item.line;
+            Structure s = repel::build(item.text, settings);
             o.record = writer.record(s, item.name.empty() ? (sdf ? std::string("record ") + std::to_string(item.index + 1) : item.text) : item.name);
             o.ok = true;
         } catch (const std::exception& e) {

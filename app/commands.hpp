@@ -8,6 +8,8 @@
 #include <string>
 #include <vector>
 
+#include <repel/repel.hpp>
+
 #include "core/limits.hpp"
 #include "domains/metal.hpp"
 #include "input/species.hpp"
@@ -46,6 +48,12 @@ struct ShapeArgs {
     std::string picture;      // --picture FILE.svg: the built molecule with every centre's lone pairs (refused with -i)
     bool picture_hydrogens = true;
 };
+
+// The front door's notation for the command line's.
+inline TextNotation text_notation(Notation n) {
+    return n == Notation::smiles ? TextNotation::smiles : n == Notation::formula ? TextNotation::formula
+                                                                                : TextNotation::automatic;
+}
 
 // --polyhedron ATOM=NAME values (ATOM 1-based) as the library's per-centre choices. Throws InputError naming the
 // value that is not of that form or names no polyhedron the library knows.

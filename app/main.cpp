@@ -2,6 +2,7 @@
 #include <CLI/CLI.hpp>
 #include <cstdio>
 #include <iostream>
+#include <repel/repel.hpp>
 
 #include "check_command.hpp"
 #include "commands.hpp"
@@ -24,7 +25,7 @@ int run(int argc, char** argv) {
     const bool root = mpi::rank() == 0;
     CLI::App app{"repel: 3D structures from electron domains (VSEPR). Builds coordinates from SMILES or a formula,\n"
                  "explains each centre's electron-domain shape, and checks structures built elsewhere."};
-    app.set_version_flag("--version", std::string("repel ") + REPEL_VERSION);
+    app.set_version_flag("--version", std::string("repel ") + repel::version());
     app.require_subcommand(1);
 
     BuildArgs build;

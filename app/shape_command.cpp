@@ -5,10 +5,9 @@
 #include <fstream>
 #include <iostream>
 
-#include "assemble/build.hpp"
+#include "api/front_door.hpp"
 #include "commands.hpp"
 #include "core/error.hpp"
-#include "domains/domains.hpp"
 #include "input/records.hpp"
 #include "output/picture.hpp"
 #include "output/shape_report.hpp"
@@ -22,30 +21,20 @@ int run_shape(const ShapeArgs& args) {
     }
     std::string picture;
     auto analyse = [&](const std::string& text, const std::string& name, nlohmann::json* doc, std::string* table) {
-        Molecule mol = read_species(text, args.notation);
-        mol.name = name;
-        mol.make_hydrogens_explicit();
-        std::vector<std::string> notes;
-        join_separated_sandwich_ions(mol, notes);  // as build does: ion-separated metallocenes are sandwiches
-        const MetalOptions options = metal_options(args.polyhedra);
-        MoleculeDomains d;
-        bool metal = false;
-        for (const Atom& a : mol.atoms) metal = metal || is_d_block_metal(a.z);
-        if (metal && !options.polyhedra.empty()) {
-            const MetalAnalysis metals = analyse_metals(mol, true, options);
-            d = analyse_domains(mol, true, &metals);
-        } else {
-            if (!options.polyhedra.empty())
-                throw InputError("--polyhedron names a metal atom, and this molecule has no d-block metal");
-            d = analyse_domains(mol);
-        }
-        d.warnings.insert(d.warnings.begin(), notes.begin(), notes.end());
+        BuildSettings settings;
+        settings.notation = text_notation(args.notation);
+        settings.name = name;
+        Molecule mol = read_molecule(text, settings);
+        settings.polyhedra = metal_options(args.polyhedra).polyhedra;
+        const Shape result = shape(std::move(mol), settings);
+        const Molecule& m = result.molecule;
+        const MoleculeDomains& d = result.detail->domains;
         const std::string title = name.empty() ? text : name;
-        if (doc) *doc = shape_json(mol, d, title);
-        if (table) *table = shape_table(mol, d, title);
+        if (doc) *doc = shape_json(m, d, title);
+        if (table) *table = shape_table(m, d, title);
         if (!args.picture.empty()) {
             // The lobes need coordinates: the structure `repel build` would write, with this analysis's directions.
-            const Structure built = build_structure(mol);
+            const Structure built = build(m);
             picture = shape_picture_svg(built, d, title, args.picture_hydrogens);
         }
     };

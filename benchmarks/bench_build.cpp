@@ -9,6 +9,8 @@
 #include <string>
 #include <vector>
 
+#include <repel/repel.hpp>
+
 #include "assemble/build.hpp"
 #include "drug_set.hpp"
 #include "input/smiles.hpp"
@@ -23,11 +25,7 @@ struct Prepared {
     int failed = 0;
 };
 
-Molecule prepare(const std::string& smiles) {
-    Molecule m = read_smiles(smiles);
-    m.make_hydrogens_explicit();
-    return m;
-}
+Molecule prepare(const std::string& smiles) { return read_molecule(smiles, {.notation = TextNotation::smiles}); }
 
 // The drug set, keeping the molecules that build once with these options without an exception; failures are
 // counted (the failed counter), not timed.

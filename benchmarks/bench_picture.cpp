@@ -5,6 +5,8 @@
 
 #include <string>
 
+#include <repel/repel.hpp>
+
 #include "assemble/build.hpp"
 #include "check/audit.hpp"
 #include "check/report_page.hpp"
@@ -20,9 +22,7 @@ const Structure& large_structure() {
     static const Structure s = [] {
         std::string smiles;
         for (int k = 0; k < 999; ++k) smiles += "N[C@@H](C)C(=O)";
-        Molecule m = read_smiles(smiles + "O");
-        m.make_hydrogens_explicit();
-        return build_structure(m);
+        return build(smiles + "O", {.notation = TextNotation::smiles});
     }();
     return s;
 }

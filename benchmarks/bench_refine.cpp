@@ -10,6 +10,8 @@
 #include <numbers>
 #include <vector>
 
+#include <repel/repel.hpp>
+
 #include "assemble/build.hpp"
 #include "graph/stereo.hpp"
 #include "core/bond_length.hpp"
@@ -151,12 +153,8 @@ const std::vector<Assembled>& assembled_drugs() {
     static const std::vector<Assembled> set = [] {
         std::vector<Assembled> out;
         for (const bench::DrugRecord& r : bench::drug_set()) {
-            Molecule m = read_smiles(r.smiles);
-            m.make_hydrogens_explicit();
-            BuildOptions options;
-            options.refine = false;
             Assembled a;
-            a.structure = build_structure(m, options);
+            a.structure = build(r.smiles, {.notation = TextNotation::smiles, .refine = false});
             a.domains = analyse_domains(a.structure.molecule);
             std::vector<std::string> warnings;
             a.chiral = chiral_targets(a.structure.molecule, warnings);

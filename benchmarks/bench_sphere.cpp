@@ -9,6 +9,8 @@
 #include <thread>
 #include <vector>
 
+#include <repel/repel.hpp>
+
 #include "domains/domains.hpp"
 #include "domains/model.hpp"
 #include "input/smiles.hpp"
@@ -136,9 +138,7 @@ REPEL_SPHERE_CASE(XeF8);
 // Imatinib (37 heavy atoms, 68 with hydrogens): the domain analysis of every atom, counting only and with the
 // directions from the (warm) sphere cache. items = atoms.
 Molecule imatinib() {
-    Molecule m = read_smiles("Cc1ccc(NC(=O)c2ccc(CN3CCN(C)CC3)cc2)cc1Nc1nccc(-c2cccnc2)n1");
-    m.make_hydrogens_explicit();
-    return m;
+    return read_molecule("Cc1ccc(NC(=O)c2ccc(CN3CCN(C)CC3)cc2)cc1Nc1nccc(-c2cccnc2)n1", {.notation = TextNotation::smiles});
 }
 
 void BM_AnalyseDomainsCount(benchmark::State& state) {

@@ -1,5 +1,6 @@
 // The Python module's calls into the library (see library.hpp): the same steps as app/build_command.cpp and
 // app/shape_command.cpp for one species.
+#include "repel/repel.hpp"
 #include "library.hpp"
 
 #include <algorithm>
@@ -205,6 +206,6 @@ CheckResult check_atoms(const std::vector<int>& numbers, const std::vector<doubl
     return audit_one(input, request);
 }
 
-std::string version() { return REPEL_VERSION; }
+std::string version() { return repel::version(); }
 
 }  // namespace repel::python

@@ -12,8 +12,10 @@ import sys
 # Earliest first. core: elements, lengths, errors, limits, plain geometry; graph: molecules, rings, stereo marks and
 # targets, valences; input: readers; sphere: the repulsion solver; domains: the domain analysis; refine: the energy
 # and its minimiser; assemble: the build pipeline; output: writers and pictures; check: perception, audit, report;
-# batch: the batch machinery (no chemistry, last so that nothing below it depends on batches).
-STAGES = ["core", "graph", "input", "sphere", "domains", "refine", "assemble", "output", "check", "batch"]
+# batch: the batch machinery (no chemistry, so that nothing below it depends on batches); api: the front door, which
+# calls every stage; include: the installed public headers (lib/include/repel/), which forward to core and graph.
+STAGES = ["core", "graph", "input", "sphere", "domains", "refine", "assemble", "output", "check", "batch", "api",
+          "include"]
 
 root = pathlib.Path(sys.argv[1] if len(sys.argv) > 1 else pathlib.Path(__file__).resolve().parents[1])
 rank = {name: i for i, name in enumerate(STAGES)}
@@ -26,6 +28,8 @@ for path in files:
         problems.append(f"{path.relative_to(root)}: folder lib/{own} is not in STAGES")
         continue
     for target in include.findall(path.read_text()):
+        if target.startswith("../"):  # a forwarding public header: the path from lib/
+            target = (path.parent / target).resolve().relative_to((root / "lib").resolve()).as_posix()
         parts = target.split("/")
         if len(parts) != 2 or parts[0] not in rank:
             problems.append(f'{path.relative_to(root)}: #include "{target}" is not a lib/<stage>/ header')

@@ -8,6 +8,8 @@
 #include <cmath>
 #include <sstream>
 
+#include <repel/repel.hpp>
+
 #include "assemble/build.hpp"
 #include "check/audit.hpp"
 #include "check/clean.hpp"
@@ -23,9 +25,7 @@ namespace {
 
 // The complex built by repel, written as XYZ (elements and coordinates, charge in the comment) and read back.
 ReadStructure built(const std::string& smiles) {
-    Molecule m = read_smiles(smiles);
-    m.make_hydrogens_explicit();
-    const Structure s = build_structure(m);
+    const Structure s = build(smiles, {.notation = TextNotation::smiles});
     std::istringstream in(make_writer(Format::xyz)->record(s, smiles));
     return read_xyz(in).at(0);
 }
@@ -254,9 +254,7 @@ TEST(CheckMetals, OwnSdfFilesGiveNoFinding) {
     // SD files state orders and charges as the build writes them (NH3 with four bonds, neutral Cl bonded to Pt, C5H5
     // rings bonded through all five atoms): no valence finding at the donors.
     for (const char* smiles : {kCisplatin, kFerrocene, "[O+]#[C-][Ni]([C-]#[O+])([C-]#[O+])[C-]#[O+]"}) {
-        Molecule m = read_smiles(smiles);
-        m.make_hydrogens_explicit();
-        std::istringstream in(make_writer(Format::sdf)->record(build_structure(m), smiles));
+        std::istringstream in(make_writer(Format::sdf)->record(build(smiles, {.notation = TextNotation::smiles}), smiles));
         const Audit a = audit_structure(read_sdf(in).at(0));
         EXPECT_TRUE(a.findings.empty()) << smiles << "\n" << audit_text(a, 1);
         ASSERT_EQ(a.metals.size(), 1u) << smiles;

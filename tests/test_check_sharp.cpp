@@ -7,6 +7,8 @@
 #include <cmath>
 #include <sstream>
 
+#include <repel/repel.hpp>
+
 #include "assemble/build.hpp"
 #include "check/audit.hpp"
 #include "check/clean.hpp"
@@ -27,9 +29,7 @@ ReadStructure xyz(const std::string& text) {
 
 // The molecule built by repel, written as XYZ and read back (bonds to be perceived).
 ReadStructure built(const std::string& smiles) {
-    Molecule m = read_smiles(smiles);
-    m.make_hydrogens_explicit();
-    const Structure s = build_structure(m);
+    const Structure s = build(smiles, {.notation = TextNotation::smiles});
     std::istringstream in(make_writer(Format::xyz)->record(s, smiles));
     return read_xyz(in).at(0);
 }

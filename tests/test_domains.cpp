@@ -4,6 +4,8 @@
 #include <Eigen/Geometry>
 #include <cmath>
 
+#include <repel/repel.hpp>
+
 #include "core/error.hpp"
 #include "core/bond_length.hpp"
 #include "domains/domains.hpp"
@@ -15,11 +17,7 @@ using namespace repel;
 namespace {
 MoleculeDomains of(const char* formula) { return analyse_domains(read_formula(formula)); }
 
-Molecule from_smiles(const char* smiles) {
-    Molecule m = read_smiles(smiles);
-    m.make_hydrogens_explicit();
-    return m;
-}
+Molecule from_smiles(const char* smiles) { return read_molecule(smiles, {.notation = TextNotation::smiles}); }
 
 // The target length of the bond between atoms a and b (0-based) of a SMILES.
 double target_length(const char* smiles, int a, int b) {

@@ -20,6 +20,8 @@
 #include <string>
 #include <vector>
 
+#include <repel/repel.hpp>
+
 #include "assemble/build.hpp"
 #include "check/audit.hpp"
 #include "core/limits.hpp"
@@ -412,11 +414,7 @@ std::string run(const Case& k) {
             break;
         }
         case Step::build: {
-            Molecule m = read_species(input);
-            m.make_hydrogens_explicit();
-            BuildOptions options;
-            options.time_limit = k.time_limit;
-            const Structure s = build_structure(m, options);
+            const Structure s = build(input, {.time_limit = k.time_limit});
             if (!fuzz::all_finite(s.positions)) return "a non-finite coordinate was built";
             for (Format f : {Format::xyz, Format::pdb, Format::sdf, Format::json}) {
                 try {
@@ -560,9 +558,7 @@ namespace {
 // must match its own SMILES without a finding about atoms or connectivity (stack overflow before the change).
 TEST(Limits, SmilesComparisonOfA90000AtomChainDoesNotRecurse) {
     const std::string smiles = repeat("C", 30000);
-    Molecule m = read_smiles(smiles);
-    m.make_hydrogens_explicit();
-    const Structure built = build_structure(m);
+    const Structure built = build(smiles, {.notation = TextNotation::smiles});
     std::string xyz = make_writer(Format::xyz)->record(built, "chain");
     std::istringstream in(xyz);
     const std::vector<ReadStructure> read = read_xyz(in);

@@ -11,6 +11,8 @@
 #include <string>
 #include <vector>
 
+#include <repel/repel.hpp>
+
 #include "assemble/build.hpp"
 #include "core/error.hpp"
 #include "domains/domains.hpp"
@@ -22,11 +24,7 @@
 namespace repel {
 namespace {
 
-Molecule molecule(const std::string& smiles) {
-    Molecule m = read_smiles(smiles);
-    m.make_hydrogens_explicit();
-    return m;
-}
+Molecule molecule(const std::string& smiles) { return read_molecule(smiles, {.notation = TextNotation::smiles}); }
 
 // The first metal centre of the analysis of a SMILES.
 MetalCentre centre(const std::string& smiles) {
@@ -385,8 +383,7 @@ TEST(MetalInput, SdRecordKeepsTheArrangementOfTheFile) {
     const Structure cis = build("Cl[Pt@SP1](Cl)([NH3])[NH3]");
     std::ostringstream sdf;
     sdf << make_writer(Format::sdf)->record(cis, "cisplatin");
-    Molecule m = molecule_from_sd_record(sdf.str(), 1);
-    m.make_hydrogens_explicit();
+    const Molecule m = read_molecule(sdf.str(), {.notation = TextNotation::sd_record});
     EXPECT_EQ(m.atom_count(), cis.molecule.atom_count());
     const Structure again = build_structure(m);
     EXPECT_NEAR(angle(again, 0, 1, 2), 90, 5);

@@ -11,6 +11,9 @@
 #include <string>
 #include <vector>
 
+#include <repel/repel.hpp>
+
+#include "api/front_door.hpp"
 #include "assemble/build.hpp"
 #include "check/audit.hpp"
 #include "check/report_page.hpp"
@@ -163,12 +166,11 @@ struct Drawn {
     std::vector<Element> elements;
 };
 
-Drawn draw_shape(const std::string& text, Notation notation = Notation::automatic, bool hydrogens = true) {
+Drawn draw_shape(const std::string& text, TextNotation notation = TextNotation::automatic, bool hydrogens = true) {
     Drawn d;
-    Molecule mol = read_species(text, notation);
-    mol.make_hydrogens_explicit();
-    d.domains = analyse_domains(mol);
-    d.structure = build_structure(mol);
+    const Shape sh = shape(text, {.notation = notation});
+    d.domains = sh.detail->domains;
+    d.structure = build(sh.molecule);
     d.svg = shape_picture_svg(d.structure, d.domains, text, hydrogens);
     d.elements = parse_xml(d.svg);
     return d;
@@ -200,7 +202,7 @@ TEST(XmlChecker, RejectsWhatIsNotWellFormed) {
 // XeF4, AX4E2 (square planar): two lone-pair lobes at Xe, opposite each other and perpendicular to the Xe-F bonds;
 // the terminal F atoms get none (their lone pairs are not drawn: they are not centres).
 TEST(Picture, SquarePlanarXenonHasTwoOppositeLobes) {
-    const Drawn d = draw_shape("XeF4", Notation::formula);
+    const Drawn d = draw_shape("XeF4", TextNotation::formula);
     EXPECT_EQ(with_class(d.elements, "atom").size(), 5u);
     const auto lobes = with_class(d.elements, "lone-pair");
     ASSERT_EQ(lobes.size(), 2u);
@@ -224,7 +226,7 @@ TEST(Picture, SquarePlanarXenonHasTwoOppositeLobes) {
 // SF4, AX4E (seesaw): one lobe at S, in the plane of the two equatorial F atoms, pointing away from them (opposite
 // their bisector), and perpendicular to the axial F-S-F line.
 TEST(Picture, SeesawSulfurHasOneEquatorialLobe) {
-    const Drawn d = draw_shape("SF4", Notation::formula);
+    const Drawn d = draw_shape("SF4", TextNotation::formula);
     const auto lobes = with_class(d.elements, "lone-pair");
     ASSERT_EQ(lobes.size(), 1u);
     const int s = atom_of_element(d.structure, 16);
@@ -266,7 +268,7 @@ TEST(Picture, WaterLobesStandOutOfTheMolecularPlane) {
 
 // A radical centre: the nitrogen of NO2 carries one single-electron lobe, drawn differently from a lone pair.
 TEST(Picture, NitrogenDioxideHasASingleElectronLobe) {
-    const Drawn d = draw_shape("NO2", Notation::formula);
+    const Drawn d = draw_shape("NO2", TextNotation::formula);
     const auto singles = with_class(d.elements, "single-electron");
     ASSERT_EQ(singles.size(), 1u);
     EXPECT_EQ(singles[0].attrs.at("data-centre"), std::to_string(atom_of_element(d.structure, 7) + 1));
@@ -286,7 +288,7 @@ TEST(Picture, ChairCyclohexaneCounts) {
         rmin = std::min(rmin, r), rmax = std::max(rmax, r);
     }
     EXPECT_GT(rmax / rmin, 1.03);  // a chair is not flat: some carbons are farther than others
-    const Drawn no_h = draw_shape("C1CCCCC1", Notation::automatic, false);
+    const Drawn no_h = draw_shape("C1CCCCC1", TextNotation::automatic, false);
     EXPECT_EQ(with_class(no_h.elements, "atom").size(), 6u);
     EXPECT_EQ(with_class(no_h.elements, "bond").size(), 6u);
     for (const Element& e : with_class(no_h.elements, "atom")) EXPECT_EQ(e.attrs.at("data-element"), "C");
@@ -295,9 +297,7 @@ TEST(Picture, ChairCyclohexaneCounts) {
 // Bond orders are visible: ethyne's C#C is three parallel sticks, carbon dioxide's C=O two.
 TEST(Picture, MultipleBondsAreParallelSticks) {
     for (const auto& [smiles, order] : std::vector<std::pair<std::string, int>>{{"C#C", 3}, {"O=C=O", 2}}) {
-        Molecule mol = read_species(smiles);
-        mol.make_hydrogens_explicit();
-        const Structure s = build_structure(mol);
+        const Structure s = build(smiles);
         const std::string svg = picture_svg(s);
         const auto all = parse_xml(svg);
         // Each stick is two lines (a half per atom, each in its atom's colour).
@@ -315,9 +315,7 @@ TEST(Picture, MultipleBondsAreParallelSticks) {
 // Hostile titles and marked atoms: the document stays well-formed, the title is escaped, each marked atom gets one
 // marker ring.
 TEST(Picture, TitleIsEscapedAndMarkedAtomsAreRinged) {
-    Molecule mol = read_species("CCO");
-    mol.make_hydrogens_explicit();
-    const Structure s = build_structure(mol);
+    const Structure s = build("CCO");
     PictureOptions o;
     o.title = std::string("</svg><x a=\"1\"> & 'y' \x01 \xff\xfe");
     o.marked = {0, 2};
@@ -393,9 +391,7 @@ TEST(ReportPage, LargeStructuresGetTheViewOnly) {
 // The same structure always gives the same bytes (no clock, no randomness), and a non-finite coordinate is refused
 // like the writers refuse it, naming the atom.
 TEST(Picture, DeterministicAndRefusesNonFiniteCoordinates) {
-    Molecule mol = read_species("CC(=O)Oc1ccccc1C(=O)O");
-    mol.make_hydrogens_explicit();
-    Structure s = build_structure(mol);
+    Structure s = build("CC(=O)Oc1ccccc1C(=O)O");
     EXPECT_EQ(picture_svg(s), picture_svg(s));
     s.positions[3].y() = std::nan("");
     try {

@@ -13,6 +13,8 @@
 #include <string>
 #include <vector>
 
+#include <repel/repel.hpp>
+
 #include "core/error.hpp"
 #include "graph/polyhedral_stereo.hpp"
 #include "input/smiles.hpp"
@@ -50,8 +52,7 @@ std::map<int, Eigen::Vector3d> directions_by_atom(const Molecule& m, int centre)
 // the neighbours sorted by atomic number: equal for two SMILES exactly when they describe the same arrangement.
 int index_by_element(const std::string& smiles) {
     SCOPED_TRACE(smiles);
-    Molecule m = read_smiles(smiles);
-    m.make_hydrogens_explicit();
+    const Molecule m = read_molecule(smiles, {.notation = TextNotation::smiles});
     const int centre = marked_atom(m);
     const auto dirs = directions_by_atom(m, centre);
     std::vector<std::pair<int, Eigen::Vector3d>> by_z;
@@ -169,8 +170,7 @@ TEST(SquarePlanar, CisAndTransplatin) {
     };
     for (const Case& c : cases) {
         SCOPED_TRACE(c.smiles);
-        Molecule m = read_smiles(c.smiles);
-        m.make_hydrogens_explicit();
+        const Molecule m = read_molecule(c.smiles, {.notation = TextNotation::smiles});
         const int pt = marked_atom(m);
         std::vector<Eigen::Vector3d> cl;
         for (const auto& [atom, dir] : directions_by_atom(m, pt))
@@ -299,8 +299,7 @@ TEST(ShorthandMarks, AtOnFiveAndSixNeighboursReadsAsTbAndOh) {
 // of them trans when they stand opposite on the square or on the axis (mer).
 TEST(Octahedral, FacAndMerIsomers) {
     auto chloride_angles = [](const std::string& smiles) {
-        Molecule m = read_smiles(smiles);
-        m.make_hydrogens_explicit();
+        const Molecule m = read_molecule(smiles, {.notation = TextNotation::smiles});
         const int co = marked_atom(m);
         std::vector<Eigen::Vector3d> cl;
         for (const auto& [atom, dir] : directions_by_atom(m, co))
@@ -326,8 +325,7 @@ TEST(Octahedral, TrisChelateEnantiomersHaveOppositeVolumeTargets) {
     std::vector<std::vector<Eigen::Vector3d>> positions;
     for (const char* s : {"[Co@OH1]123(NCCN1)(NCCN2)NCCN3", "[Co@OH2]123(NCCN1)(NCCN2)NCCN3"}) {
         SCOPED_TRACE(s);
-        Molecule m = read_smiles(s);
-        m.make_hydrogens_explicit();
+        const Molecule m = read_molecule(s, {.notation = TextNotation::smiles});
         const auto dirs = directions_by_atom(m, 0);
         // each chelate's two N are cis
         for (const Bond& b : m.bonds) {

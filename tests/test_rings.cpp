@@ -5,6 +5,8 @@
 #include <algorithm>
 #include <cmath>
 
+#include <repel/repel.hpp>
+
 #include "assemble/distance_geometry.hpp"
 #include "assemble/place.hpp"
 #include "assemble/ring_embed.hpp"
@@ -17,11 +19,7 @@ using Eigen::Vector3d;
 
 namespace {
 
-Molecule mol(const std::string& smi) {
-    Molecule m = read_smiles(smi);
-    m.make_hydrogens_explicit();
-    return m;
-}
+Molecule mol(const std::string& smi) { return read_molecule(smi, {.notation = TextNotation::smiles}); }
 
 std::vector<int> ring_sizes(const RingInfo& r) {
     std::vector<int> s;

@@ -7,6 +7,8 @@
 #include <Eigen/Geometry>
 #include <fmt/format.h>
 
+#include <repel/repel.hpp>
+
 #include "assemble/build.hpp"
 #include "core/error.hpp"
 #include "input/sd_molecule.hpp"
@@ -17,10 +19,7 @@ using namespace repel;
 
 namespace {
 
-Structure build_from(Molecule m) {
-    m.make_hydrogens_explicit();
-    return build_structure(m);
-}
+Structure build_from(Molecule m) { return build(std::move(m)); }  // hydrogens made explicit inside
 
 std::string sd_of(const std::string& smiles) {
     return make_writer(Format::sdf)->record(build_from(read_species(smiles, Notation::smiles)), "lab compound");

@@ -5,6 +5,8 @@
 #include <cmath>
 #include <string>
 
+#include <repel/repel.hpp>
+
 #include "assemble/build.hpp"
 #include "assemble/place.hpp"
 #include "graph/stereo.hpp"
@@ -15,12 +17,8 @@ using Eigen::Vector3d;
 
 namespace {
 
-Structure build(const std::string& smiles, bool refine = true) {
-    Molecule m = read_smiles(smiles);
-    m.make_hydrogens_explicit();
-    BuildOptions o;
-    o.refine = refine;
-    return build_structure(m, o);
+Structure build_smiles(const std::string& smiles, bool refine = true) {
+    return repel::build(smiles, {.notation = TextNotation::smiles, .refine = refine});
 }
 
 // (a - c) . ((b - c) x (d - c)) for atoms given by index.
@@ -70,20 +68,20 @@ TEST(Stereo, LAlanineIsS) {
     // L-alanine is (S)-alanine (common practice). N[C@@H](C)C(=O)O: atoms N0 C1 C2(methyl) C3(carboxyl) O4 O5, H.
     // CIP priorities: N > COOH > CH3 > H.
     for (bool refine : {false, true}) {
-        const Structure s = build("N[C@@H](C)C(=O)O", refine);
+        const Structure s = build_smiles("N[C@@H](C)C(=O)O", refine);
         EXPECT_GT(volume(s, 1, 0, 3, 2), 0) << "refine=" << refine;
     }
 }
 
 TEST(Stereo, DAlanineIsR) {
-    const Structure s = build("N[C@H](C)C(=O)O");
+    const Structure s = build_smiles("N[C@H](C)C(=O)O");
     EXPECT_LT(volume(s, 1, 0, 3, 2), 0);
 }
 
 TEST(Stereo, LCysteineIsR) {
     // L-cysteine is (R) although written like L-alanine: CH2SH outranks COOH (common practice).
     // N0 C1 C2(CH2) S3 C4(carboxyl): priorities N > CH2SH > COOH > H.
-    const Structure s = build("N[C@@H](CS)C(=O)O");
+    const Structure s = build_smiles("N[C@@H](CS)C(=O)O");
     EXPECT_LT(volume(s, 1, 0, 2, 4), 0);
 }
 
@@ -105,7 +103,7 @@ TEST(Stereo, EnantiomerPairsHaveOppositeVolumes) {
     };
     for (const Case& k : cases)
         for (bool refine : {false, true}) {
-            const Structure s1 = build(k.at, refine), s2 = build(k.atat, refine);
+            const Structure s1 = build_smiles(k.at, refine), s2 = build_smiles(k.atat, refine);
             expect_all_stereo_met(s1, k.at);
             expect_all_stereo_met(s2, k.atat);
             EXPECT_LT(volume(s1, k.c, k.a, k.b, k.d) * volume(s2, k.c, k.a, k.b, k.d), 0) << k.at;
@@ -115,11 +113,11 @@ TEST(Stereo, EnantiomerPairsHaveOppositeVolumes) {
 TEST(Stereo, SameMoleculeWrittenTwoWaysHasOneHandedness) {
     // F[C@H](Cl)Br and [C@@H](F)(Cl)Br are the same enantiomer (swapping the first two neighbours of the list flips
     // the mark; OpenSMILES). Compare the volume of F, Cl, Br around C.
-    const Structure a = build("F[C@H](Cl)Br");          // F0 C1 Cl2 Br3
-    const Structure b = build("[C@@H](F)(Cl)Br");       // C0 F1 Cl2 Br3
+    const Structure a = build_smiles("F[C@H](Cl)Br");          // F0 C1 Cl2 Br3
+    const Structure b = build_smiles("[C@@H](F)(Cl)Br");       // C0 F1 Cl2 Br3
     EXPECT_GT(volume(a, 1, 0, 2, 3) * volume(b, 0, 1, 2, 3), 0);
     // And with the hydrogen written as an atom: F[C@]([H])(Cl)Br is F[C@H](Cl)Br.
-    const Structure c = build("F[C@]([H])(Cl)Br");      // F0 C1 H2 Cl3 Br4
+    const Structure c = build_smiles("F[C@]([H])(Cl)Br");      // F0 C1 H2 Cl3 Br4
     EXPECT_GT(volume(a, 1, 0, 2, 3) * volume(c, 1, 0, 3, 4), 0);
 }
 
@@ -143,7 +141,7 @@ TEST(Stereo, DoubleBondsAsWritten) {
     };
     for (const Case& k : cases)
         for (bool refine : {false, true}) {
-            const Structure s = build(k.smi, refine);
+            const Structure s = build_smiles(k.smi, refine);
             expect_all_stereo_met(s, k.smi);
             const double t = std::abs(torsion_deg(s, k.a, k.b, k.c, k.d));
             if (k.cis) EXPECT_LT(t, 30.0) << k.smi;
@@ -154,20 +152,20 @@ TEST(Stereo, DoubleBondsAsWritten) {
 TEST(Stereo, DoubleBondsInsideLargeRings) {
     // The ring-closure bond "/1" on atom 0 is written from atom 0 towards its ring partner 11, like the branch in
     // C(/F)=C/F: so C/1=C/C...1 is cis-cyclododecene and C/1=C\C...1 is trans (OpenSMILES bond directions).
-    const Structure c = build("C/1=C/CCCCCCCCCC1");
+    const Structure c = build_smiles("C/1=C/CCCCCCCCCC1");
     EXPECT_LT(std::abs(torsion_deg(c, 11, 0, 1, 2)), 30.0);
-    const Structure t = build("C/1=C\\CCCCCCCCCC1");
+    const Structure t = build_smiles("C/1=C\\CCCCCCCCCC1");
     EXPECT_GT(std::abs(torsion_deg(t, 11, 0, 1, 2)), 150.0);
     expect_all_stereo_met(t, "trans-cyclododecene");
     expect_all_stereo_met(c, "cis-cyclododecene");
     // trans in a 14-membered ring written the other way round: the bond marks inside the chain.
-    const Structure t14 = build("C1CCCCC/C=C/CCCCCC1");
+    const Structure t14 = build_smiles("C1CCCCC/C=C/CCCCCC1");
     EXPECT_GT(std::abs(torsion_deg(t14, 5, 6, 7, 8)), 150.0);
     expect_no_overlap_hint(t14);
 }
 
 TEST(Stereo, UnmarkedDoubleBondInASmallRingIsCis) {
-    const Structure s = build("C1=CCCCCC1");
+    const Structure s = build_smiles("C1=CCCCCC1");
     EXPECT_LT(std::abs(torsion_deg(s, 6, 0, 1, 2)), 30.0);
 }
 
@@ -175,12 +173,12 @@ TEST(Stereo, RingFusionHydrogensCisOrTransAsWritten) {
     // Decalin written with both fusion hydrogens: the two marks decide cis or trans; the H-C-C-H torsion is about
     // 60 degrees for cis and 180 for trans (both chairs), whichever the marks say, and the marks are met.
     for (const char* smi : {"[C@@H]12CCCC[C@H]1CCCC2", "[C@@H]12CCCC[C@@H]1CCCC2"}) {
-        const Structure s = build(smi);
+        const Structure s = build_smiles(smi);
         expect_all_stereo_met(s, smi);
         const double t = std::abs(torsion_deg(s, hydrogen_on(s.molecule, 0), 0, 5, hydrogen_on(s.molecule, 5)));
         EXPECT_TRUE(std::abs(t - 60) < 25 || std::abs(t - 180) < 25) << smi << " " << t;
     }
-    const Structure a = build("[C@@H]12CCCC[C@H]1CCCC2"), b = build("[C@@H]12CCCC[C@@H]1CCCC2");
+    const Structure a = build_smiles("[C@@H]12CCCC[C@H]1CCCC2"), b = build_smiles("[C@@H]12CCCC[C@@H]1CCCC2");
     const double ta = std::abs(torsion_deg(a, hydrogen_on(a.molecule, 0), 0, 5, hydrogen_on(a.molecule, 5)));
     const double tb = std::abs(torsion_deg(b, hydrogen_on(b.molecule, 0), 0, 5, hydrogen_on(b.molecule, 5)));
     EXPECT_GT(std::abs(ta - tb), 60.0);  // one cis, one trans
@@ -195,22 +193,20 @@ TEST(Stereo, NaturalProductsKeepEveryCentre) {
                             "CN1CC[C@]23c4c5ccc(O)c4O[C@H]2[C@@H](O)C=C[C@H]3[C@H]1C5",
                             "OC[C@H]1O[C@@](CO)(O[C@H]2O[C@H](CO)[C@@H](O)[C@H](O)[C@H]2O)[C@@H](O)[C@@H]1O"}) {
         for (bool refine : {false, true}) {
-            const Structure s = build(smi, refine);
+            const Structure s = build_smiles(smi, refine);
             expect_all_stereo_met(s, smi);
         }
     }
 }
 
 TEST(Stereo, TargetsListEveryMark) {
-    Molecule m = read_smiles("N[C@@H](C)C(=O)O");
-    m.make_hydrogens_explicit();
+    const Molecule m = read_molecule("N[C@@H](C)C(=O)O", {.notation = TextNotation::smiles});
     std::vector<std::string> w;
     const auto t = chiral_targets(m, w);
     ASSERT_EQ(t.size(), 1u);
     EXPECT_EQ(t[0].centre, 1);
     EXPECT_TRUE(w.empty());
-    Molecule d = read_smiles("F/C=C/F");
-    d.make_hydrogens_explicit();
+    const Molecule d = read_molecule("F/C=C/F", {.notation = TextNotation::smiles});
     const auto db = double_bond_targets(d);
     ASSERT_EQ(db.size(), 1u);
     EXPECT_FALSE(db[0].cis);

@@ -1,0 +1,32 @@
+// What the front door's result types hold beyond their public fields, and the conversions the front end shares with
+// it. Private to the library and its own front end (app/): users see <repel/repel.hpp> only.
+#pragma once
+
+#include <repel/repel.hpp>
+
+#include "assemble/build.hpp"
+#include "check/audit.hpp"
+#include "domains/domains.hpp"
+#include "input/species.hpp"
+#include "input/structure_reader.hpp"
+
+namespace repel {
+
+struct ShapeDetail {
+    MoleculeDomains domains;
+};
+
+struct CheckDetail {
+    Audit audit;
+};
+
+// The library's own options for the front door's settings.
+BuildOptions build_options(const BuildSettings& settings);
+AuditOptions audit_options(const CheckSettings& settings);
+Notation notation_of(TextNotation notation);
+
+// The library's own structure record and back.
+ReadStructure read_structure_of(const StructureRecord& record);
+StructureRecord structure_record_of(ReadStructure read);
+
+}  // namespace repel
