@@ -11,6 +11,8 @@
 
 #include "assemble/build.hpp"
 #include "check/audit.hpp"
+#include "check/perceive.hpp"
+#include "core/limits.hpp"
 #include "check/report.hpp"
 #include "domains/domains.hpp"
 #include "input/smiles.hpp"
@@ -154,4 +156,16 @@ TEST(FrontDoor, VersionIsThePackageVersion) {
 }
 
 }  // namespace
+
+// The public settings' defaults are the library's own (lib/api/front_door.cpp says why this is a test).
+TEST(FrontDoor, DefaultsAreTheLibrarys) {
+    EXPECT_EQ(BuildSettings{}.time_limit, kDefaultTimeLimit);
+    EXPECT_EQ(CheckSettings{}.time_limit, kDefaultTimeLimit);
+    EXPECT_EQ(CheckSettings{}.angle_threshold, AuditOptions{}.angle_rms);
+    EXPECT_EQ(CheckSettings{}.angle_threshold, AuditOptions{}.angle_worst);
+    EXPECT_EQ(CheckSettings{}.bond_threshold, AuditOptions{}.bond_deviation);
+    EXPECT_EQ(CheckSettings{}.contact_fraction, AuditOptions{}.contact_fraction);
+    EXPECT_EQ(CheckSettings{}.bond_tolerance, PerceptionOptions{}.tolerance);
+}
+
 }  // namespace repel
