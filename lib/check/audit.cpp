@@ -299,66 +299,55 @@ void check_valences(Audit& out, const ValenceResult& v, int unpaired_allowed, bo
     }
 }
 
-}  // namespace
-
-Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
-    const ScopedDeadline deadline(opt.time_limit);
-    Audit out;
-    out.title = in.title;
-    out.line = in.line;
-    out.structure = in.structure;
-    Molecule& m = out.structure.molecule;
-    const auto& pos = out.structure.positions;
-    const int n = m.atom_count();
-    out.charge = opt.charge ? *opt.charge : in.has_charge ? in.structure.charge : 0;
-    std::optional<int> multiplicity = opt.multiplicity;
-    if (!multiplicity && in.has_multiplicity) multiplicity = in.structure.multiplicity;
-    out.charge_given = opt.charge.has_value() || in.has_charge;
-    out.multiplicity_given = multiplicity.has_value();
-    const int unpaired_allowed = multiplicity ? *multiplicity - 1 : 0;
-
-    // 1. What the file does not state.
-    std::vector<char> excluded(static_cast<size_t>(n), 0);
+// Step 1 of the audit: bonds from distances where the file states none; every overlap found is a finding, and the
+// atoms left out of the perception are marked in `excluded`. Returns the overlapping pairs (0-based, a < b).
+std::set<std::pair<int, int>> perceive_and_report_overlaps(Audit& out, Molecule& m, const std::vector<Eigen::Vector3d>& pos,
+                                                         const AuditOptions& opt, std::vector<char>& excluded) {
     std::set<std::pair<int, int>> overlapping;  // pairs reported as overlaps (0-based, a < b): not contacts again
-    if (!in.has_bonds) {
-        out.bonds_from_coordinates = true;
-        for (const Overlap& o : perceive_bonds(m, pos, opt.perception)) {
-            overlapping.emplace(std::min(o.a, o.b), std::max(o.a, o.b));
-            for (int x : o.also) overlapping.emplace(std::min(x, o.b), std::max(x, o.b));
-            if (!o.left_out) {
-                out.findings.push_back({"overlap", {std::min(o.a, o.b) + 1, std::max(o.a, o.b) + 1},
-                                        fmt::format("{} and {} overlap: {:.2f} A apart, within bonding distance, but "
-                                                    "each hydrogen has a bond of its own (one is misplaced or "
-                                                    "duplicated); they are not bonded to each other",
-                                                    label(m, o.a), label(m, o.b), o.distance),
-                                        o.distance, std::nullopt, "angstrom", Severity::error, 200});
-                continue;
-            }
-            excluded[static_cast<size_t>(o.b)] = 1;
-            if (!o.also.empty()) {
-                std::string others;
-                std::vector<int> atoms{o.b + 1, o.a + 1};
-                for (int x : o.also) {
-                    others += ", " + label(m, x);
-                    atoms.push_back(x + 1);
-                }
-                out.findings.push_back({"overlap", atoms,
-                                        fmt::format("{} overlaps {}{}: within bonding distance of {} atoms (nearest "
-                                                    "{:.2f} A), but a hydrogen bonds to one (it is misplaced); {} is "
-                                                    "left out of the bond perception",
-                                                    label(m, o.b), label(m, o.a), others, o.also.size() + 1,
-                                                    o.distance, label(m, o.b)),
-                                        o.distance, std::nullopt, "angstrom", Severity::error, 200});
-                continue;
-            }
+    out.bonds_from_coordinates = true;
+    for (const Overlap& o : perceive_bonds(m, pos, opt.perception)) {
+        overlapping.emplace(std::min(o.a, o.b), std::max(o.a, o.b));
+        for (int x : o.also) overlapping.emplace(std::min(x, o.b), std::max(x, o.b));
+        if (!o.left_out) {
             out.findings.push_back({"overlap", {std::min(o.a, o.b) + 1, std::max(o.a, o.b) + 1},
-                                    fmt::format("{} and {} overlap: {:.2f} A apart (one is misplaced or "
-                                                "duplicated); {} is left out of the bond perception",
-                                                label(m, o.a), label(m, o.b), o.distance, label(m, o.b)),
+                                    fmt::format("{} and {} overlap: {:.2f} A apart, within bonding distance, but "
+                                                "each hydrogen has a bond of its own (one is misplaced or "
+                                                "duplicated); they are not bonded to each other",
+                                                label(m, o.a), label(m, o.b), o.distance),
                                     o.distance, std::nullopt, "angstrom", Severity::error, 200});
+            continue;
         }
+        excluded[static_cast<size_t>(o.b)] = 1;
+        if (!o.also.empty()) {
+            std::string others;
+            std::vector<int> atoms{o.b + 1, o.a + 1};
+            for (int x : o.also) {
+                others += ", " + label(m, x);
+                atoms.push_back(x + 1);
+            }
+            out.findings.push_back({"overlap", atoms,
+                                    fmt::format("{} overlaps {}{}: within bonding distance of {} atoms (nearest "
+                                                "{:.2f} A), but a hydrogen bonds to one (it is misplaced); {} is "
+                                                "left out of the bond perception",
+                                                label(m, o.b), label(m, o.a), others, o.also.size() + 1,
+                                                o.distance, label(m, o.b)),
+                                    o.distance, std::nullopt, "angstrom", Severity::error, 200});
+            continue;
+        }
+        out.findings.push_back({"overlap", {std::min(o.a, o.b) + 1, std::max(o.a, o.b) + 1},
+                                fmt::format("{} and {} overlap: {:.2f} A apart (one is misplaced or "
+                                            "duplicated); {} is left out of the bond perception",
+                                            label(m, o.a), label(m, o.b), o.distance, label(m, o.b)),
+                                o.distance, std::nullopt, "angstrom", Severity::error, 200});
     }
-    check_deadline("perceiving bonds");
+    return overlapping;
+}
+
+// Step 1: bond orders and formal charges where the file does not state them (the ionic model at metals), the
+// unpaired electrons left; overbonded atoms join `excluded`.
+ValenceResult orders_and_charges(Audit& out, const ReadStructure& in, Molecule& m, const std::vector<Eigen::Vector3d>& pos,
+                                 const AuditOptions& opt, int unpaired_allowed, std::vector<char>& excluded) {
+    const int n = m.atom_count();
     ValenceResult valence;
     bool any_metal = false;
     for (const Atom& a : m.atoms) any_metal = any_metal || is_d_block_metal(a.z);
@@ -395,6 +384,11 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
             m.atoms[static_cast<size_t>(i)].radical_electrons = -1;
         }
     for (int i : valence.overbonded) excluded[static_cast<size_t>(i)] = 1;
+    return valence;
+}
+
+// Step 1: aromatic rings from the assigned Kekule orders.
+void mark_aromatic_rings(Molecule& m, const std::vector<char>& excluded) {
     // Aromatic rings (and so their bonds' order 1.5) from the assigned Kekule orders: one Kekule structure draws a
     // benzene ring's equal bonds alternately single and double, and judging or cleaning the ring by it would call
     // every bond 0.06 A wrong (and --fix would make it so). Found on a copy without the atoms left out, so that a
@@ -414,7 +408,13 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
                 m.atoms[static_cast<size_t>(b.a)].aromatic = m.atoms[static_cast<size_t>(b.b)].aromatic = true;
             }
     }
-    check_deadline("perceiving aromatic rings");
+}
+
+// Step 1: the electron count against the charge and multiplicity given; the multiplicity written out.
+void judge_charge_and_spin(Audit& out, Molecule& m, ValenceResult& valence, const std::optional<int>& multiplicity,
+                           const AuditOptions& opt, int unpaired_allowed,
+                           const std::set<std::pair<int, int>>& overlapping) {
+    const int n = m.atom_count();
     if (!multiplicity) {
         // Without a multiplicity, two electrons short on a divalent centre (a carbene, a silylene) or on a bare
         // group-2 atom are read as the lone pair of a singlet, as the Lewis structure writes them (the domain
@@ -454,6 +454,280 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
                                             electrons % 2 ? "even" : "odd"),
                                 *multiplicity, std::nullopt, "", Severity::error, 40});
     out.multiplicity = multiplicity ? *multiplicity : valence.total_unpaired + 1;
+
+}
+
+// Step 2, one centre: its angles against the predicted ones. True when that is a finding.
+bool angle_finding(Audit& out, const Molecule& m, const Molecule& skeleton, const std::vector<Eigen::Vector3d>& pos,
+                   const CentreDomains& c, int i, const ValenceResult& valence, SmallRingSearch& rings,
+                   const AuditOptions& opt) {
+        AngleFit fit = fit_angles(skeleton, pos, c, conjugated_nitrogen(skeleton, i, c.lone_pairs + c.delocalised_lone_pairs, c.bonded), rings);
+        // A single-electron domain is the model's least certain size (NO2 opens to 134 degrees, CH3 is flat):
+        // twice the tolerance at a radical centre.
+        // The same next to an atom left with an unpaired electron: where the electron sits in the Lewis
+        // structure is a choice (NO2's O=N-O. has it on O; the molecule has most of it on N).
+        bool radical_near = c.single_electrons > 0 || valence.unpaired[static_cast<size_t>(i)] > 0;
+        for (const Neighbor& nb : skeleton.neighbors(i))
+            radical_near = radical_near || valence.unpaired[static_cast<size_t>(nb.atom)] > 0;
+        const double threshold = radical_near ? 2 * opt.angle_rms : opt.angle_rms;
+        const double worst_threshold = radical_near ? 2 * opt.angle_worst : opt.angle_worst;
+        if (fit.pairs > 0 && (fit.rms > threshold || fit.worst > worst_threshold)) {
+            const double ratio = std::max(fit.rms / threshold, fit.worst / worst_threshold);
+            out.findings.push_back(
+                {"geometry", {i + 1},
+                 fmt::format("{} ({}, {}{}): its angles deviate from the predicted ones by {:.1f} degrees RMS; "
+                             "worst {}-{}-{} measured {:.1f}, predicted {:.1f}",
+                             label(m, i), c.axe, c.electron_geometry, c.shape == c.electron_geometry ? "" : " -> " + c.shape,
+                             fit.rms, label(m, fit.worst_a), label(m, i), label(m, fit.worst_b), fit.worst_measured,
+                             fit.worst_predicted),
+                 fit.worst_measured, fit.worst_predicted, "degrees", severity_of(ratio), ratio});
+            return true;
+        }
+    return false;
+}
+
+// Step 2, one centre: a tetrahedral centre drawn flat. True when that is a finding.
+bool flat_tetrahedron_finding(Audit& out, const Molecule& m, const Molecule& skeleton,
+                              const std::vector<Eigen::Vector3d>& pos, const CentreDomains& c, int i) {
+        // A tetrahedral centre (four bonds, no lone pair) with three neighbours nearly coplanar with it (a CH3
+        // drawn flat against its C-X bond) can keep its RMS under the threshold (90 and 120 against 109.5):
+        // the triple product of three bond directions is 0.770 in a regular tetrahedron, 0 when flat.
+        if (c.bonded == 4 && c.steric_number == 4) {
+            const auto& nbs = skeleton.neighbors(i);
+            const Eigen::Vector3d& o = pos[static_cast<size_t>(i)];
+            double flattest = 1;
+            int fa = -1, fb = -1, fc = -1;
+            for (int a = 0; a < 4; ++a)
+                for (int b = a + 1; b < 4; ++b)
+                    for (int e = b + 1; e < 4; ++e) {
+                        const int x = nbs[static_cast<size_t>(a)].atom, y = nbs[static_cast<size_t>(b)].atom,
+                                  z = nbs[static_cast<size_t>(e)].atom;
+                        const Eigen::Vector3d u = (pos[static_cast<size_t>(x)] - o).normalized();
+                        const Eigen::Vector3d v = (pos[static_cast<size_t>(y)] - o).normalized();
+                        const Eigen::Vector3d w = (pos[static_cast<size_t>(z)] - o).normalized();
+                        const double t = std::fabs(u.dot(v.cross(w)));
+                        if (t < flattest) {
+                            flattest = t;
+                            fa = x;
+                            fb = y;
+                            fc = z;
+                        }
+                    }
+            if (flattest < kFlatTetrahedron) {
+                const double ratio = 2.0 * (kFlatTetrahedron - flattest) / kFlatTetrahedron + 1.0;
+                out.findings.push_back(
+                    {"geometry", {i + 1},
+                     fmt::format("{} ({}, tetrahedral) is drawn flat: {}, {} and {} lie almost in one plane with "
+                                 "it (triple product of the bond directions {:.2f}; 0.77 when tetrahedral)",
+                                 label(m, i), c.axe, label(m, fa), label(m, fb), label(m, fc), flattest),
+                     flattest, 0.770, "", severity_of(ratio), ratio});
+                return true;
+            }
+        }
+    return false;
+}
+
+// Step 2, one centre: a pyramidal centre drawn flat. True when that is a finding.
+bool flat_pyramid_finding(Audit& out, const Molecule& m, const Molecule& skeleton, const std::vector<Eigen::Vector3d>& pos,
+                          const CentreDomains& c, int i) {
+        // A pyramidal centre (three bonds and a lone pair of its own: an amine N, a phosphine, a sulfoxide S)
+        // drawn flat: the RMS against the pyramid's angles (107 against 120 degrees) stays under the threshold.
+        // Sound pyramids sum to 300-345 degrees (NH3 about 320, trimethylamine about 333; conjugated N, which may
+        // be flat, are left out); a sum above kFlatPyramid is a finding.
+        // A donor on a metal is left out: its geometry towards the metal is soft (coordinated water runs from
+        // pyramidal to flat; GFN2-xTB's [Fe(H2O)6]2+ has it flat).
+        bool on_metal = false;
+        for (const Neighbor& nb : skeleton.neighbors(i)) {
+            const int zn = m.atoms[static_cast<size_t>(nb.atom)].z;
+            on_metal = on_metal || is_d_block_metal(zn) || (zn != 1 && element(zn).group <= 2);
+            // A nitroxide N shares the O's odd electron (a three-electron pi bond): nearly flat (TEMPO's GFN2-xTB
+            // optimum sums to 357 degrees, tests/external/check_xtb_maingroup.py).
+            on_metal = on_metal || (zn == 8 && m.atoms[static_cast<size_t>(nb.atom)].radical_electrons > 0);
+        }
+        if (c.bonded == 3 && c.steric_number == 4 && c.lone_pairs == 1 && c.delocalised_lone_pairs == 0 &&
+            !on_metal && !conjugated_nitrogen(skeleton, i, c.lone_pairs + c.delocalised_lone_pairs, c.bonded)) {
+            const auto& nbs = skeleton.neighbors(i);
+            const Eigen::Vector3d& o = pos[static_cast<size_t>(i)];
+            double sum = 0;
+            for (int a = 0; a < 3; ++a)
+                for (int b = a + 1; b < 3; ++b)
+                    sum += angle_deg(pos[static_cast<size_t>(nbs[static_cast<size_t>(a)].atom)] - o,
+                                     pos[static_cast<size_t>(nbs[static_cast<size_t>(b)].atom)] - o);
+            if (sum > kFlatPyramid) {
+                const double ratio = 1.0 + (sum - kFlatPyramid) / (360.0 - kFlatPyramid);
+                out.findings.push_back(
+                    {"geometry", {i + 1},
+                     fmt::format("{} ({}, {}) is drawn flat: its three angles sum to {:.1f} degrees, a pyramid's "
+                                 "to well under 360",
+                                 label(m, i), c.axe, c.shape, sum),
+                     sum, kFlatPyramid, "degrees", severity_of(ratio), ratio});
+                return true;
+            }
+        }
+    return false;
+}
+
+// Step 2, one centre: a trigonal planar centre drawn pyramidal.
+void pyramidal_trigonal_finding(Audit& out, const Molecule& m, const Molecule& skeleton,
+                                const std::vector<Eigen::Vector3d>& pos, const CentreDomains& c, int i,
+                                SmallRingSearch& rings, const AuditOptions& opt) {
+        // An sp2-like centre (three bonds, no lone pair) must be flat; the RMS alone misses a mild pyramid. A radical
+        // centre with its electron in the p orbital is left out: it is reported as a radical, and a pyramid there
+        // is more often a missing hydrogen than a wrong shape.
+        if (c.bonded == 3 && c.steric_number == 3 && c.p_single_electrons == 0) {
+            const auto& nbs = skeleton.neighbors(i);
+            const Eigen::Vector3d& o = pos[static_cast<size_t>(i)];
+            double sum = 0;
+            bool ring = false;
+            for (int a = 0; a < 3; ++a)
+                for (int b = a + 1; b < 3; ++b) {
+                    sum += angle_deg(pos[static_cast<size_t>(nbs[static_cast<size_t>(a)].atom)] - o,
+                                     pos[static_cast<size_t>(nbs[static_cast<size_t>(b)].atom)] - o);
+                    ring = ring || rings.angle_in_ring(nbs[static_cast<size_t>(a)].atom, i,
+                                                       nbs[static_cast<size_t>(b)].atom, 4);
+                }
+            // An amino N whose pair is shared with a C=C, C=N or an aromatic ring (aniline, enamine, the NH2 of
+            // a neutral guanidine or amidine) is only partly flattened: aniline's NH2 is pyramidal, its angles
+            // summing to about 343 degrees in the gas phase (from memory); amides stay flat. Twice the tolerance.
+            double tolerance = opt.planarity;
+            if (m.atoms[static_cast<size_t>(i)].z == 7 && c.delocalised_lone_pairs > 0) {
+                bool amide = false, has_h = false;
+                for (const Neighbor& nb : skeleton.neighbors(i)) {
+                    has_h = has_h || m.atoms[static_cast<size_t>(nb.atom)].z == 1;
+                    for (const Neighbor& nn : skeleton.neighbors(nb.atom)) {
+                        const int zz = m.atoms[static_cast<size_t>(nn.atom)].z;
+                        if (nn.atom != i && skeleton.bonds[static_cast<size_t>(nn.bond)].order >= 2 &&
+                            (zz == 8 || zz == 16))
+                            amide = true;
+                    }
+                }
+                if (has_h && !amide) tolerance = 2 * opt.planarity;
+            }
+            if (!ring && sum < 360.0 - tolerance) {
+                const double ratio = (360.0 - sum) / tolerance;
+                out.findings.push_back(
+                    {"planarity", {i + 1},
+                     fmt::format("{} ({}, trigonal planar) is pyramidal: its three angles sum to {:.1f} degrees, "
+                                 "not 360",
+                                 label(m, i), c.axe, sum),
+                     sum, 360.0, "degrees", severity_of(ratio), ratio});
+            }
+        }
+}
+
+// Step 3: bond lengths against the analysis' lengths corrected by kind of bond, metal bonds against the metal model.
+void judge_bond_lengths(Audit& out, const Molecule& m, const std::vector<Eigen::Vector3d>& pos, const AuditOptions& opt,
+                        const std::vector<char>& excluded, const std::vector<double>& metal_length,
+                        std::vector<double> model_length) {
+    model_length = corrected_lengths(m, model_length);
+    for (size_t e = 0; e < m.bonds.size(); ++e) {
+        const Bond& b = m.bonds[e];
+        if (excluded[static_cast<size_t>(b.a)] || excluded[static_cast<size_t>(b.b)]) continue;
+        const int za = m.atoms[static_cast<size_t>(b.a)].z, zb = m.atoms[static_cast<size_t>(b.b)].z;
+        if (is_d_block_metal(za) || is_d_block_metal(zb)) {
+            // Against the model's metal-ligand (or metal-metal) length; none without the metal analysis.
+            const double target = metal_length[e];
+            if (target <= 0) continue;
+            const double measured = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm();
+            const double dev = measured - target;
+            if (std::fabs(dev) <= opt.metal_bond_deviation) continue;
+            const double ratio = std::fabs(dev) / opt.metal_bond_deviation;
+            const bool both = is_d_block_metal(za) && is_d_block_metal(zb);
+            out.findings.push_back({"bond length", {b.a + 1, b.b + 1},
+                                    fmt::format("{}-{} {} bond is {:.3f} A, {:.2f} A too {} (expected {:.3f} A)",
+                                                label(m, b.a), label(m, b.b), both ? "metal-metal" : "metal-ligand",
+                                                measured, std::fabs(dev), dev > 0 ? "long" : "short", target),
+                                    measured, target, "angstrom", severity_of(ratio), ratio});
+            continue;
+        }
+        const double expected = model_length[e] > 0 ? model_length[e]
+                                                    : bond_length(za, zb, std::clamp(b.order, 1, 3), b.aromatic);
+        const double measured = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm();
+        const double dev = measured - expected;
+        // Bonds between atoms of the first two periods (H to Ne, the alkali and alkaline-earth metals aside) against
+        // the model's length: opt.bond_deviation. Others (heavier atoms, ionic Li/Be bonds, or no model length but
+        // the table's) spread twice as far (audit.hpp has the measured spreads).
+        auto light = [](int z) { return z == 1 || (z <= 10 && element(z).group != 1 && element(z).group != 2); };
+        const bool tight = model_length[e] > 0 && light(za) && light(zb);
+        const double threshold = tight ? opt.bond_deviation : kHeavyBondFactor * opt.bond_deviation;
+        if (std::fabs(dev) <= threshold) continue;
+        const double ratio = std::fabs(dev) / threshold;
+        static const char* kOrder[] = {"", "single", "double", "triple"};
+        out.findings.push_back({"bond length", {b.a + 1, b.b + 1},
+                                fmt::format("{}-{} {} bond is {:.3f} A, {:.2f} A too {} (expected {:.3f} A)",
+                                            label(m, b.a), label(m, b.b),
+                                            b.aromatic ? "aromatic" : kOrder[std::clamp(b.order, 1, 3)], measured,
+                                            std::fabs(dev), dev > 0 ? "long" : "short", expected),
+                                measured, expected, "angstrom", severity_of(ratio), ratio});
+    }
+
+}
+
+// Step 4: contacts between atoms neither bonded nor sharing a neighbour, through a cell grid.
+void judge_contacts(Audit& out, const Molecule& m, const std::vector<Eigen::Vector3d>& pos, const AuditOptions& opt,
+                    const std::vector<char>& excluded, const std::set<std::pair<int, int>>& overlapping) {
+    const int n = m.atom_count();
+    {
+        double vmax = 0;
+        for (const Atom& a : m.atoms) vmax = std::max(vmax, element(a.z).r_vdw);
+        const double reach = opt.contact_fraction * 2 * vmax;
+        if (n > 1 && reach > 0) {
+            const double cell = std::max(reach, 0.5);
+            NeighborGrid grid(cell);
+            for (int i = 0; i < n; ++i) grid.insert(i, pos[static_cast<size_t>(i)]);
+            std::set<std::pair<int, int>> seen;  // each pair reported once
+            for (int i = 0; i < n; ++i)
+                grid.for_each_near(pos[static_cast<size_t>(i)], [&](int j) {
+                    if (j <= i || excluded[static_cast<size_t>(j)] || excluded[static_cast<size_t>(i)]) return;
+                    const double rv = element(m.atoms[static_cast<size_t>(i)].z).r_vdw +
+                                      element(m.atoms[static_cast<size_t>(j)].z).r_vdw;
+                    const double d = (pos[static_cast<size_t>(i)] - pos[static_cast<size_t>(j)]).norm();
+                    if (rv <= 0 || d >= opt.contact_fraction * rv) return;
+                    if (m.bond_between(i, j) >= 0) return;
+                    for (const Neighbor& nb : m.neighbors(i))
+                        if (m.bond_between(nb.atom, j) >= 0) return;  // 1-3 pairs are angles, not contacts
+                    if (overlapping.count({i, j}) || !seen.emplace(i, j).second) return;
+                    if (hydrogen_bond(m, i, j, d)) return;
+                    const double ratio = (opt.contact_fraction * rv - d) / (0.1 * rv) + 1;
+                    out.findings.push_back(
+                        {"contact", {i + 1, j + 1},
+                         fmt::format("{} and {} are {:.2f} A apart, closer than {:.0f}% of their van der "
+                                     "Waals contact ({:.2f} A)",
+                                     label(m, i), label(m, j), d, 100 * opt.contact_fraction, rv),
+                         d, opt.contact_fraction * rv, "angstrom", severity_of(ratio), ratio});
+                });
+        }
+    }
+
+}
+
+}  // namespace
+
+Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
+    const ScopedDeadline deadline(opt.time_limit);
+    Audit out;
+    out.title = in.title;
+    out.line = in.line;
+    out.structure = in.structure;
+    Molecule& m = out.structure.molecule;
+    const auto& pos = out.structure.positions;
+    const int n = m.atom_count();
+    out.charge = opt.charge ? *opt.charge : in.has_charge ? in.structure.charge : 0;
+    std::optional<int> multiplicity = opt.multiplicity;
+    if (!multiplicity && in.has_multiplicity) multiplicity = in.structure.multiplicity;
+    out.charge_given = opt.charge.has_value() || in.has_charge;
+    out.multiplicity_given = multiplicity.has_value();
+    const int unpaired_allowed = multiplicity ? *multiplicity - 1 : 0;
+
+    // 1. What the file does not state.
+    std::vector<char> excluded(static_cast<size_t>(n), 0);
+    std::set<std::pair<int, int>> overlapping;  // pairs reported as overlaps (0-based, a < b): not contacts again
+    if (!in.has_bonds) overlapping = perceive_and_report_overlaps(out, m, pos, opt, excluded);
+    check_deadline("perceiving bonds");
+    ValenceResult valence = orders_and_charges(out, in, m, pos, opt, unpaired_allowed, excluded);
+    mark_aromatic_rings(m, excluded);
+    check_deadline("perceiving aromatic rings");
+    judge_charge_and_spin(out, m, valence, multiplicity, opt, unpaired_allowed, overlapping);
 
     // 2. The centres against the domain analysis. Atoms with impossible valences lose their bonds in this copy
     //    (so that the analysis can run), and neither they nor their neighbours are judged.
@@ -508,139 +782,10 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
             if (angle_opened_by_neighbours(skeleton, i, c)) continue;
             // Two unpaired electrons (a triplet carbene) count as a lone pair in the Lewis structure: no prediction.
             if (valence.unpaired[static_cast<size_t>(i)] >= 2) continue;
-            AngleFit fit = fit_angles(skeleton, pos, c, conjugated_nitrogen(skeleton, i, c.lone_pairs + c.delocalised_lone_pairs, c.bonded), rings);
-            // A single-electron domain is the model's least certain size (NO2 opens to 134 degrees, CH3 is flat):
-            // twice the tolerance at a radical centre.
-            // The same next to an atom left with an unpaired electron: where the electron sits in the Lewis
-            // structure is a choice (NO2's O=N-O. has it on O; the molecule has most of it on N).
-            bool radical_near = c.single_electrons > 0 || valence.unpaired[static_cast<size_t>(i)] > 0;
-            for (const Neighbor& nb : skeleton.neighbors(i))
-                radical_near = radical_near || valence.unpaired[static_cast<size_t>(nb.atom)] > 0;
-            const double threshold = radical_near ? 2 * opt.angle_rms : opt.angle_rms;
-            const double worst_threshold = radical_near ? 2 * opt.angle_worst : opt.angle_worst;
-            if (fit.pairs > 0 && (fit.rms > threshold || fit.worst > worst_threshold)) {
-                const double ratio = std::max(fit.rms / threshold, fit.worst / worst_threshold);
-                out.findings.push_back(
-                    {"geometry", {i + 1},
-                     fmt::format("{} ({}, {}{}): its angles deviate from the predicted ones by {:.1f} degrees RMS; "
-                                 "worst {}-{}-{} measured {:.1f}, predicted {:.1f}",
-                                 label(m, i), c.axe, c.electron_geometry, c.shape == c.electron_geometry ? "" : " -> " + c.shape,
-                                 fit.rms, label(m, fit.worst_a), label(m, i), label(m, fit.worst_b), fit.worst_measured,
-                                 fit.worst_predicted),
-                     fit.worst_measured, fit.worst_predicted, "degrees", severity_of(ratio), ratio});
-                continue;
-            }
-            // A tetrahedral centre (four bonds, no lone pair) with three neighbours nearly coplanar with it (a CH3
-            // drawn flat against its C-X bond) can keep its RMS under the threshold (90 and 120 against 109.5):
-            // the triple product of three bond directions is 0.770 in a regular tetrahedron, 0 when flat.
-            if (c.bonded == 4 && c.steric_number == 4) {
-                const auto& nbs = skeleton.neighbors(i);
-                const Eigen::Vector3d& o = pos[static_cast<size_t>(i)];
-                double flattest = 1;
-                int fa = -1, fb = -1, fc = -1;
-                for (int a = 0; a < 4; ++a)
-                    for (int b = a + 1; b < 4; ++b)
-                        for (int e = b + 1; e < 4; ++e) {
-                            const int x = nbs[static_cast<size_t>(a)].atom, y = nbs[static_cast<size_t>(b)].atom,
-                                      z = nbs[static_cast<size_t>(e)].atom;
-                            const Eigen::Vector3d u = (pos[static_cast<size_t>(x)] - o).normalized();
-                            const Eigen::Vector3d v = (pos[static_cast<size_t>(y)] - o).normalized();
-                            const Eigen::Vector3d w = (pos[static_cast<size_t>(z)] - o).normalized();
-                            const double t = std::fabs(u.dot(v.cross(w)));
-                            if (t < flattest) {
-                                flattest = t;
-                                fa = x;
-                                fb = y;
-                                fc = z;
-                            }
-                        }
-                if (flattest < kFlatTetrahedron) {
-                    const double ratio = 2.0 * (kFlatTetrahedron - flattest) / kFlatTetrahedron + 1.0;
-                    out.findings.push_back(
-                        {"geometry", {i + 1},
-                         fmt::format("{} ({}, tetrahedral) is drawn flat: {}, {} and {} lie almost in one plane with "
-                                     "it (triple product of the bond directions {:.2f}; 0.77 when tetrahedral)",
-                                     label(m, i), c.axe, label(m, fa), label(m, fb), label(m, fc), flattest),
-                         flattest, 0.770, "", severity_of(ratio), ratio});
-                    continue;
-                }
-            }
-            // A pyramidal centre (three bonds and a lone pair of its own: an amine N, a phosphine, a sulfoxide S)
-            // drawn flat: the RMS against the pyramid's angles (107 against 120 degrees) stays under the threshold.
-            // Sound pyramids sum to 300-345 degrees (NH3 about 320, trimethylamine about 333; conjugated N, which may
-            // be flat, are left out); a sum above kFlatPyramid is a finding.
-            // A donor on a metal is left out: its geometry towards the metal is soft (coordinated water runs from
-            // pyramidal to flat; GFN2-xTB's [Fe(H2O)6]2+ has it flat).
-            bool on_metal = false;
-            for (const Neighbor& nb : skeleton.neighbors(i)) {
-                const int zn = m.atoms[static_cast<size_t>(nb.atom)].z;
-                on_metal = on_metal || is_d_block_metal(zn) || (zn != 1 && element(zn).group <= 2);
-                // A nitroxide N shares the O's odd electron (a three-electron pi bond): nearly flat (TEMPO's GFN2-xTB
-                // optimum sums to 357 degrees, tests/external/check_xtb_maingroup.py).
-                on_metal = on_metal || (zn == 8 && m.atoms[static_cast<size_t>(nb.atom)].radical_electrons > 0);
-            }
-            if (c.bonded == 3 && c.steric_number == 4 && c.lone_pairs == 1 && c.delocalised_lone_pairs == 0 &&
-                !on_metal && !conjugated_nitrogen(skeleton, i, c.lone_pairs + c.delocalised_lone_pairs, c.bonded)) {
-                const auto& nbs = skeleton.neighbors(i);
-                const Eigen::Vector3d& o = pos[static_cast<size_t>(i)];
-                double sum = 0;
-                for (int a = 0; a < 3; ++a)
-                    for (int b = a + 1; b < 3; ++b)
-                        sum += angle_deg(pos[static_cast<size_t>(nbs[static_cast<size_t>(a)].atom)] - o,
-                                         pos[static_cast<size_t>(nbs[static_cast<size_t>(b)].atom)] - o);
-                if (sum > kFlatPyramid) {
-                    const double ratio = 1.0 + (sum - kFlatPyramid) / (360.0 - kFlatPyramid);
-                    out.findings.push_back(
-                        {"geometry", {i + 1},
-                         fmt::format("{} ({}, {}) is drawn flat: its three angles sum to {:.1f} degrees, a pyramid's "
-                                     "to well under 360",
-                                     label(m, i), c.axe, c.shape, sum),
-                         sum, kFlatPyramid, "degrees", severity_of(ratio), ratio});
-                    continue;
-                }
-            }
-            // An sp2-like centre (three bonds, no lone pair) must be flat; the RMS alone misses a mild pyramid. A radical
-            // centre with its electron in the p orbital is left out: it is reported as a radical, and a pyramid there
-            // is more often a missing hydrogen than a wrong shape.
-            if (c.bonded == 3 && c.steric_number == 3 && c.p_single_electrons == 0) {
-                const auto& nbs = skeleton.neighbors(i);
-                const Eigen::Vector3d& o = pos[static_cast<size_t>(i)];
-                double sum = 0;
-                bool ring = false;
-                for (int a = 0; a < 3; ++a)
-                    for (int b = a + 1; b < 3; ++b) {
-                        sum += angle_deg(pos[static_cast<size_t>(nbs[static_cast<size_t>(a)].atom)] - o,
-                                         pos[static_cast<size_t>(nbs[static_cast<size_t>(b)].atom)] - o);
-                        ring = ring || rings.angle_in_ring(nbs[static_cast<size_t>(a)].atom, i,
-                                                           nbs[static_cast<size_t>(b)].atom, 4);
-                    }
-                // An amino N whose pair is shared with a C=C, C=N or an aromatic ring (aniline, enamine, the NH2 of
-                // a neutral guanidine or amidine) is only partly flattened: aniline's NH2 is pyramidal, its angles
-                // summing to about 343 degrees in the gas phase (from memory); amides stay flat. Twice the tolerance.
-                double tolerance = opt.planarity;
-                if (m.atoms[static_cast<size_t>(i)].z == 7 && c.delocalised_lone_pairs > 0) {
-                    bool amide = false, has_h = false;
-                    for (const Neighbor& nb : skeleton.neighbors(i)) {
-                        has_h = has_h || m.atoms[static_cast<size_t>(nb.atom)].z == 1;
-                        for (const Neighbor& nn : skeleton.neighbors(nb.atom)) {
-                            const int zz = m.atoms[static_cast<size_t>(nn.atom)].z;
-                            if (nn.atom != i && skeleton.bonds[static_cast<size_t>(nn.bond)].order >= 2 &&
-                                (zz == 8 || zz == 16))
-                                amide = true;
-                        }
-                    }
-                    if (has_h && !amide) tolerance = 2 * opt.planarity;
-                }
-                if (!ring && sum < 360.0 - tolerance) {
-                    const double ratio = (360.0 - sum) / tolerance;
-                    out.findings.push_back(
-                        {"planarity", {i + 1},
-                         fmt::format("{} ({}, trigonal planar) is pyramidal: its three angles sum to {:.1f} degrees, "
-                                     "not 360",
-                                     label(m, i), c.axe, sum),
-                         sum, 360.0, "degrees", severity_of(ratio), ratio});
-                }
-            }
+            if (angle_finding(out, m, skeleton, pos, c, i, valence, rings, opt)) continue;
+            if (flat_tetrahedron_finding(out, m, skeleton, pos, c, i)) continue;
+            if (flat_pyramid_finding(out, m, skeleton, pos, c, i)) continue;
+            pyramidal_trigonal_finding(out, m, skeleton, pos, c, i, rings, opt);
         }
     } catch (const UnsupportedError& e) {
         out.notes.push_back(std::string("no shape check: ") + e.what());
@@ -649,80 +794,10 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
     }
 
     // 3. Bond lengths, against the analysis' lengths corrected by kind of bond (expected_length.hpp).
-    model_length = corrected_lengths(m, model_length);
-    for (size_t e = 0; e < m.bonds.size(); ++e) {
-        const Bond& b = m.bonds[e];
-        if (excluded[static_cast<size_t>(b.a)] || excluded[static_cast<size_t>(b.b)]) continue;
-        const int za = m.atoms[static_cast<size_t>(b.a)].z, zb = m.atoms[static_cast<size_t>(b.b)].z;
-        if (is_d_block_metal(za) || is_d_block_metal(zb)) {
-            // Against the model's metal-ligand (or metal-metal) length; none without the metal analysis.
-            const double target = metal_length[e];
-            if (target <= 0) continue;
-            const double measured = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm();
-            const double dev = measured - target;
-            if (std::fabs(dev) <= opt.metal_bond_deviation) continue;
-            const double ratio = std::fabs(dev) / opt.metal_bond_deviation;
-            const bool both = is_d_block_metal(za) && is_d_block_metal(zb);
-            out.findings.push_back({"bond length", {b.a + 1, b.b + 1},
-                                    fmt::format("{}-{} {} bond is {:.3f} A, {:.2f} A too {} (expected {:.3f} A)",
-                                                label(m, b.a), label(m, b.b), both ? "metal-metal" : "metal-ligand",
-                                                measured, std::fabs(dev), dev > 0 ? "long" : "short", target),
-                                    measured, target, "angstrom", severity_of(ratio), ratio});
-            continue;
-        }
-        const double expected = model_length[e] > 0 ? model_length[e]
-                                                    : bond_length(za, zb, std::clamp(b.order, 1, 3), b.aromatic);
-        const double measured = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm();
-        const double dev = measured - expected;
-        // Bonds between atoms of the first two periods (H to Ne, the alkali and alkaline-earth metals aside) against
-        // the model's length: opt.bond_deviation. Others (heavier atoms, ionic Li/Be bonds, or no model length but
-        // the table's) spread twice as far (audit.hpp has the measured spreads).
-        auto light = [](int z) { return z == 1 || (z <= 10 && element(z).group != 1 && element(z).group != 2); };
-        const bool tight = model_length[e] > 0 && light(za) && light(zb);
-        const double threshold = tight ? opt.bond_deviation : kHeavyBondFactor * opt.bond_deviation;
-        if (std::fabs(dev) <= threshold) continue;
-        const double ratio = std::fabs(dev) / threshold;
-        static const char* kOrder[] = {"", "single", "double", "triple"};
-        out.findings.push_back({"bond length", {b.a + 1, b.b + 1},
-                                fmt::format("{}-{} {} bond is {:.3f} A, {:.2f} A too {} (expected {:.3f} A)",
-                                            label(m, b.a), label(m, b.b),
-                                            b.aromatic ? "aromatic" : kOrder[std::clamp(b.order, 1, 3)], measured,
-                                            std::fabs(dev), dev > 0 ? "long" : "short", expected),
-                                measured, expected, "angstrom", severity_of(ratio), ratio});
-    }
+    judge_bond_lengths(out, m, pos, opt, excluded, metal_length, model_length);
 
     // 4. Contacts between atoms neither bonded nor sharing a neighbour, through a cell grid.
-    {
-        double vmax = 0;
-        for (const Atom& a : m.atoms) vmax = std::max(vmax, element(a.z).r_vdw);
-        const double reach = opt.contact_fraction * 2 * vmax;
-        if (n > 1 && reach > 0) {
-            const double cell = std::max(reach, 0.5);
-            NeighborGrid grid(cell);
-            for (int i = 0; i < n; ++i) grid.insert(i, pos[static_cast<size_t>(i)]);
-            std::set<std::pair<int, int>> seen;  // each pair reported once
-            for (int i = 0; i < n; ++i)
-                grid.for_each_near(pos[static_cast<size_t>(i)], [&](int j) {
-                    if (j <= i || excluded[static_cast<size_t>(j)] || excluded[static_cast<size_t>(i)]) return;
-                    const double rv = element(m.atoms[static_cast<size_t>(i)].z).r_vdw +
-                                      element(m.atoms[static_cast<size_t>(j)].z).r_vdw;
-                    const double d = (pos[static_cast<size_t>(i)] - pos[static_cast<size_t>(j)]).norm();
-                    if (rv <= 0 || d >= opt.contact_fraction * rv) return;
-                    if (m.bond_between(i, j) >= 0) return;
-                    for (const Neighbor& nb : m.neighbors(i))
-                        if (m.bond_between(nb.atom, j) >= 0) return;  // 1-3 pairs are angles, not contacts
-                    if (overlapping.count({i, j}) || !seen.emplace(i, j).second) return;
-                    if (hydrogen_bond(m, i, j, d)) return;
-                    const double ratio = (opt.contact_fraction * rv - d) / (0.1 * rv) + 1;
-                    out.findings.push_back(
-                        {"contact", {i + 1, j + 1},
-                         fmt::format("{} and {} are {:.2f} A apart, closer than {:.0f}% of their van der "
-                                     "Waals contact ({:.2f} A)",
-                                     label(m, i), label(m, j), d, 100 * opt.contact_fraction, rv),
-                         d, opt.contact_fraction * rv, "angstrom", severity_of(ratio), ratio});
-                });
-        }
-    }
+    judge_contacts(out, m, pos, opt, excluded, overlapping);
 
     // 5. The intended molecule.
     if (!opt.reference_smiles.empty())

@@ -4,6 +4,7 @@
 
 #include <Eigen/Geometry>
 #include <cmath>
+#include <optional>
 #include <set>
 
 #include "check/expected_length.hpp"
@@ -49,12 +50,9 @@ double model_shape(const MetalCentre& c, const std::vector<Eigen::Vector3d>& pos
     return continuous_shape_measure(dirs, Eigen::Vector3d::Zero(), model);
 }
 
-}  // namespace
-
-CleanResult clean_structure(const Audit& audit) {
-    CleanResult out;
-    out.structure = audit.structure;
-    // Findings about the atoms or their connections, which relaxing the coordinates cannot fix, and what can.
+// Findings about the atoms or their connections, which relaxing the coordinates cannot fix: the summary of the
+// refusal that names what can, or nothing when the structure can be refined.
+std::optional<std::string> refusal(const Audit& audit) {
     // The advice names only what applies: no --multiplicity or --charge when one was given (by option or file).
     const std::pair<const char*, const char*> kRefusals[] = {
         {"overlap", "atoms overlap: move or delete the misplaced atom by hand"},
@@ -73,15 +71,49 @@ CleanResult clean_structure(const Audit& audit) {
     // Overlaps first whatever the order of the findings: the atom they misplace is the cause of the others.
     for (const Finding& f : audit.findings)
         if (f.kind == "overlap") {
-            out.summary = fmt::format("not refined: {}", kRefusals[0].second);
-            return out;
+            return fmt::format("not refined: {}", kRefusals[0].second);
         }
     for (const Finding& f : audit.findings)
         for (const auto& [kind, advice] : kRefusals)
             if (f.kind == kind) {
-                out.summary = fmt::format("not refined: {}", advice);
-                return out;
+                return fmt::format("not refined: {}", advice);
             }
+    return std::nullopt;
+}
+
+// The handedness of every stereocentre and the configuration of every double bond as they are: kept by the
+// refinement.
+void stereo_as_found(const Molecule& m, const MoleculeDomains& d, const std::vector<Eigen::Vector3d>& pos,
+                     std::vector<ChiralTarget>& chiral, std::vector<DoubleBondTarget>& doubles) {
+    const Molecule& skeleton = m;
+    for (int i = 0; i < m.atom_count(); ++i) {
+        const auto& nb = skeleton.neighbors(i);
+        if (nb.size() < 3 || d.atoms[static_cast<size_t>(i)].steric_number != 4) continue;
+        const double v = signed_volume(pos, i, nb[0].atom, nb[1].atom, nb[2].atom);
+        if (std::fabs(v) < kMinVolume) continue;
+        chiral.push_back({i, nb[0].atom, nb[1].atom, nb[2].atom, v > 0 ? 1 : -1});
+    }
+    for (const Bond& b : m.bonds) {
+        if (b.order != 2) continue;
+        int a = -1, c = -1;
+        for (const Neighbor& x : skeleton.neighbors(b.a))
+            if (x.atom != b.b) { a = x.atom; break; }
+        for (const Neighbor& x : skeleton.neighbors(b.b))
+            if (x.atom != b.a) { c = x.atom; break; }
+        if (a < 0 || c < 0 || a == c) continue;  // a == c: the double bond of a three-membered ring
+        doubles.push_back({a, b.a, b.b, c, std::fabs(torsion(pos, a, b.a, b.b, c)) < 90});
+    }
+}
+
+}  // namespace
+
+CleanResult clean_structure(const Audit& audit) {
+    CleanResult out;
+    out.structure = audit.structure;
+    if (std::optional<std::string> refused = refusal(audit)) {
+        out.summary = *refused;
+        return out;
+    }
     const Molecule& m = out.structure.molecule;
     auto& pos = out.structure.positions;
     try {
@@ -109,7 +141,6 @@ CleanResult clean_structure(const Audit& audit) {
             out.summary = "nothing to fix (no findings): written unchanged";
             return out;
         }
-        const Molecule& skeleton = m;
         MoleculeDomains d = analyse_domains(m, true, any_metal ? &metals : nullptr);
         // Only what is wrong is changed: a bond without a length finding keeps its measured length as the target, so
         // that cleaning a sound structure does not move its bonds to the model's lengths (the model's own errors, up
@@ -130,24 +161,8 @@ CleanResult clean_structure(const Audit& audit) {
             }
         }
         std::vector<ChiralTarget> chiral;
-        for (int i = 0; i < m.atom_count(); ++i) {
-            const auto& nb = skeleton.neighbors(i);
-            if (nb.size() < 3 || d.atoms[static_cast<size_t>(i)].steric_number != 4) continue;
-            const double v = signed_volume(pos, i, nb[0].atom, nb[1].atom, nb[2].atom);
-            if (std::fabs(v) < kMinVolume) continue;
-            chiral.push_back({i, nb[0].atom, nb[1].atom, nb[2].atom, v > 0 ? 1 : -1});
-        }
         std::vector<DoubleBondTarget> doubles;
-        for (const Bond& b : m.bonds) {
-            if (b.order != 2) continue;
-            int a = -1, c = -1;
-            for (const Neighbor& x : skeleton.neighbors(b.a))
-                if (x.atom != b.b) { a = x.atom; break; }
-            for (const Neighbor& x : skeleton.neighbors(b.b))
-                if (x.atom != b.a) { c = x.atom; break; }
-            if (a < 0 || c < 0 || a == c) continue;  // a == c: the double bond of a three-membered ring
-            doubles.push_back({a, b.a, b.b, c, std::fabs(torsion(pos, a, b.a, b.b, c)) < 90});
-        }
+        stereo_as_found(m, d, pos, chiral, doubles);
         const std::vector<Eigen::Vector3d> before = pos;
         RefineResult r = refine_structure(m, d, chiral, doubles, pos);
         // The refinement must keep each metal's polyhedron: a centre that ends further from the model's polyhedron

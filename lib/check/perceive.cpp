@@ -342,70 +342,139 @@ namespace {
 // The assignment of assign_valences. With free_charge the total charge is not imposed: unsatisfied atoms take
 // anionic states until every atom is closed-shell (the ligands of the ionic model); `cut` marks the atoms that were
 // bonded to a metal, which may also take the deeper anion states of donor_valence_states.
-ValenceResult assign_impl(Molecule& m, const std::vector<Eigen::Vector3d>& pos, int total_charge, int unpaired_allowed,
-                          const std::vector<int>* free_bonds, bool fixed_charges, const std::vector<char>* ignore,
-                          bool free_charge, const std::vector<char>* cut) {
-    const int n = m.atom_count();
-    std::vector<char> is_free(m.bonds.size(), free_bonds ? 0 : 1);
-    if (free_bonds)
-        for (int b : *free_bonds) is_free[static_cast<size_t>(b)] = 1;
-    for (size_t b = 0; b < m.bonds.size(); ++b)
-        if (is_free[b]) m.bonds[b].order = 1;
-    ValenceResult out;
-    out.unpaired.assign(static_cast<size_t>(n), 0);
-
-    std::vector<State> state(static_cast<size_t>(n));
-    std::vector<int> fixed_sum(static_cast<size_t>(n), 0);  // order sum with every free bond single
-    for (int i = 0; i < n; ++i) fixed_sum[static_cast<size_t>(i)] = m.bond_order_sum(i);
-    for (int i = 0; i < n; ++i) {
-        const Atom& a = m.atoms[static_cast<size_t>(i)];
-        const int bonds = fixed_sum[static_cast<size_t>(i)];
-        if (ignore && (*ignore)[static_cast<size_t>(i)]) {
-            state[static_cast<size_t>(i)] = {bonds, fixed_charges ? a.charge : 0};
-            continue;
-        }
-        State s = fixed_charges ? first_state(a.z, bonds + std::max(0, a.radical_electrons), a.charge)
-                                : initial_state(a.z, bonds);
-        if (fixed_charges && s.valence >= 0) s.valence -= std::max(0, a.radical_electrons);
-        if (s.valence < 0) {
-            // No normal valence holds these bonds (a metal, or an atom with too many neighbours): take it as it is.
-            if (!is_transition_metal(a.z) && (fixed_charges ? first_state(a.z, 0, a.charge).valence >= 0
-                                                            : !valence_states(a.z).empty()))
-                out.overbonded.push_back(i);
-            s = {bonds, fixed_charges ? a.charge : 0};
-        }
-        state[static_cast<size_t>(i)] = s;
+// The search for bond orders and formal charges behind assign_valences: a matching of the free bonds' extra orders
+// (OrderMatcher) under each atom's valence state, and rules that change one state at a time while that lowers the
+// number of electrons left unpaired or brings the charge to the target.
+class ValenceSearch {
+public:
+    ValenceSearch(Molecule& m, const std::vector<Eigen::Vector3d>& pos, int total_charge, int unpaired_allowed,
+                  const std::vector<int>* free_bonds, bool fixed_charges, const std::vector<char>* ignore,
+                  bool free_charge, const std::vector<char>* cut)
+        : m_(m), n_(m.atom_count()), unpaired_allowed_(unpaired_allowed), fixed_charges_(fixed_charges),
+          ignore_(ignore), free_charge_(free_charge), cut_(cut), is_free_(m.bonds.size(), free_bonds ? 0 : 1),
+          matcher_(m, pos, (mark_free(free_bonds), is_free_)) {
+        initial_states();
+        residual_ = solve();
+        target_ = fixed_charges_ ? charge() : total_charge;
     }
 
-    OrderMatcher matcher(m, pos, is_free);
-    std::vector<int> x, left;
-    auto solve = [&]() {
-        std::vector<int> need(static_cast<size_t>(n));
-        for (int i = 0; i < n; ++i)
-            need[static_cast<size_t>(i)] = std::max(0, state[static_cast<size_t>(i)].valence - fixed_sum[static_cast<size_t>(i)]);
-        x = matcher.solve(need, left);
-        return std::accumulate(left.begin(), left.end(), 0);
-    };
-    auto charge = [&]() {
-        int q = 0;
-        for (const State& s : state) q += s.charge;
-        return q;
-    };
-    auto electronegativity = [&](int i) { return element(m.atoms[static_cast<size_t>(i)].z).electronegativity; };
+    ValenceResult run() {
+        for (int round = 0; round < 4 * n_ + 8 && tries_ <= kMaxTries; ++round)
+            if (!one_round()) break;
+        last_charge();
+        return result();
+    }
 
-    int residual = solve();
-    const int target = fixed_charges ? charge() : total_charge;
+private:
     // Each trial re-runs the matching; the budget keeps a large structure with many unsatisfied atoms (a protein
     // without hydrogens) from taking long. Real molecules need a handful.
-    constexpr int kMaxTries = 400;
-    int tries = 0;
-    for (int round = 0; round < 4 * n + 8 && tries <= kMaxTries; ++round) {
+    static constexpr int kMaxTries = 400;
+
+    // The free bonds (every bond when none are named) start single.
+    int mark_free(const std::vector<int>* free_bonds) {
+        if (free_bonds)
+            for (int b : *free_bonds) is_free_[static_cast<size_t>(b)] = 1;
+        for (size_t b = 0; b < m_.bonds.size(); ++b)
+            if (is_free_[b]) m_.bonds[b].order = 1;
+        return 0;
+    }
+
+    void initial_states() {
+        Molecule& m = m_;
+        const int n = n_;
+        const bool fixed_charges = fixed_charges_;
+        const std::vector<char>* ignore = ignore_;
+        state_.resize(static_cast<size_t>(n));
+        fixed_sum_.assign(static_cast<size_t>(n), 0);  // order sum with every free bond single
+        for (int i = 0; i < n; ++i) fixed_sum_[static_cast<size_t>(i)] = m.bond_order_sum(i);
+        for (int i = 0; i < n; ++i) {
+            const Atom& a = m.atoms[static_cast<size_t>(i)];
+            const int bonds = fixed_sum_[static_cast<size_t>(i)];
+            if (ignore && (*ignore)[static_cast<size_t>(i)]) {
+                state_[static_cast<size_t>(i)] = {bonds, fixed_charges ? a.charge : 0};
+                continue;
+            }
+            State s = fixed_charges ? first_state(a.z, bonds + std::max(0, a.radical_electrons), a.charge)
+                                    : initial_state(a.z, bonds);
+            if (fixed_charges && s.valence >= 0) s.valence -= std::max(0, a.radical_electrons);
+            if (s.valence < 0) {
+                // No normal valence holds these bonds (a metal, or an atom with too many neighbours): take it as it is.
+                if (!is_transition_metal(a.z) && (fixed_charges ? first_state(a.z, 0, a.charge).valence >= 0
+                                                                : !valence_states(a.z).empty()))
+                    overbonded_.push_back(i);
+                s = {bonds, fixed_charges ? a.charge : 0};
+            }
+            state_[static_cast<size_t>(i)] = s;
+        }
+    }
+
+    int solve() {
+        std::vector<int> need(static_cast<size_t>(n_));
+        for (int i = 0; i < n_; ++i)
+            need[static_cast<size_t>(i)] = std::max(0, state_[static_cast<size_t>(i)].valence - fixed_sum_[static_cast<size_t>(i)]);
+        x_ = matcher_.solve(need, left_);
+        return std::accumulate(left_.begin(), left_.end(), 0);
+    }
+    int charge() const {
+        int q = 0;
+        for (const State& s : state_) q += s.charge;
+        return q;
+    }
+    double electronegativity(int i) const { return element(m_.atoms[static_cast<size_t>(i)].z).electronegativity; }
+
+    bool try_state(int atom, State s) {
+        if (++tries_ > kMaxTries) return false;
+        const State old = state_[static_cast<size_t>(atom)];
+        state_[static_cast<size_t>(atom)] = s;
+        const int r = solve();
+        if (r < residual_) {
+            residual_ = r;
+            return true;
+        }
+        state_[static_cast<size_t>(atom)] = old;
+        residual_ = solve();
+        return false;
+    }
+
+    // Rule 1 is kept only when the atoms it leaves unsatisfied (those to take the -1) are the host's neighbours or
+    // theirs: a charge pair across the molecule (C=Cl+ here, C- there) is no Lewis structure anyone means. One such
+    // atom is enough: the other unsatisfied atoms may belong to another group of the same kind (p-dinitrobenzene's
+    // second nitro group: requiring all of them near left its four O as radicals).
+    bool local(int host) const {
+        for (int i = 0; i < n_; ++i) {
+            if (left_[static_cast<size_t>(i)] <= 0 || i == host) continue;
+            bool near = m_.bond_between(i, host) >= 0;
+            for (const Neighbor& nb : m_.neighbors(host)) near = near || m_.bond_between(i, nb.atom) >= 0;
+            if (near) return true;
+        }
+        return false;
+    }
+
+    // One round of the rules, the first that helps; false when none does (or nothing is left to do).
+    bool one_round() {
+        Molecule& m = m_;
+        const int n = n_;
+        const int unpaired_allowed = unpaired_allowed_;
+        const bool fixed_charges = fixed_charges_, free_charge = free_charge_;
+        const std::vector<char>* ignore = ignore_;
+        const std::vector<char>* cut = cut_;
+        const int target = target_;
+        int& residual = residual_;
+        std::vector<int>& left = left_;
+        std::vector<State>& state = state_;
+        std::vector<int>& fixed_sum = fixed_sum_;
+        std::vector<char>& is_free = is_free_;
+        auto try_state = [&](int atom, State s) { return this->try_state(atom, s); };
+        auto solve = [&]() { return this->solve(); };
+        auto electronegativity = [&](int i) { return this->electronegativity(i); };
+        auto local = [&](int host) { return this->local(host); };
+
         const int q = charge();
-        if (residual <= unpaired_allowed && (free_charge || q == target)) break;
+        if (residual <= unpaired_allowed && (free_charge || q == target)) return false;
         std::vector<int> unsat;
         for (int i = 0; i < n; ++i)
             if (left[static_cast<size_t>(i)] > 0) unsat.push_back(i);
-        if (unsat.empty() && (free_charge || q == target)) break;
+        if (unsat.empty() && (free_charge || q == target)) return false;
         // Saturated neighbours of unsatisfied atoms, least electronegative first (they carry a positive charge best).
         std::vector<int> hosts;
         for (int u : unsat)
@@ -416,112 +485,98 @@ ValenceResult assign_impl(Molecule& m, const std::vector<Eigen::Vector3d>& pos, 
         hosts.erase(std::unique(hosts.begin(), hosts.end()), hosts.end());
         std::stable_sort(hosts.begin(), hosts.end(), [&](int a, int b) { return electronegativity(a) < electronegativity(b); });
 
-        auto try_state = [&](int atom, State s) {
-            if (++tries > kMaxTries) return false;
-            const State old = state[static_cast<size_t>(atom)];
-            state[static_cast<size_t>(atom)] = s;
-            const int r = solve();
-            if (r < residual) {
-                residual = r;
-                return true;
-            }
-            state[static_cast<size_t>(atom)] = old;
-            residual = solve();
-            return false;
-        };
         bool changed = false;
-        // Rule 0: a neighbour takes its next neutral valence (S 4 -> 6, P 3 -> 5).
-        if (residual > unpaired_allowed)
-            for (int h : hosts) {
-                const State cur = state[static_cast<size_t>(h)];
-                for (const State& s : valence_states(m.atoms[static_cast<size_t>(h)].z))
-                    if (s.charge == cur.charge && s.valence == cur.valence + 2) {
-                        changed = try_state(h, s);
-                        break;
-                    }
-                if (changed) break;
-            }
-        // Rule 1 is kept only when the atoms it leaves unsatisfied (those to take the -1) are the host's
-        // neighbours or theirs: a charge pair across the molecule (C=Cl+ here, C- there) is no Lewis structure
-        // anyone means.
-        // One such atom is enough: the other unsatisfied atoms may belong to another group of the same kind
-        // (p-dinitrobenzene's second nitro group: requiring all of them near left its four O as radicals).
-        auto local = [&](int host) {
-            for (int i = 0; i < n; ++i) {
-                if (left[static_cast<size_t>(i)] <= 0 || i == host) continue;
-                bool near = m.bond_between(i, host) >= 0;
-                for (const Neighbor& nb : m.neighbors(host)) near = near || m.bond_between(i, nb.atom) >= 0;
-                if (near) return true;
-            }
-            return false;
-        };
-        // Rule 1: a neighbour takes +1 and one more bond (N+ of a nitro group, O+ of CO), when the charge is to go up
-        // or another atom is left to take the compensating -1.
-        if (!changed && !fixed_charges && residual > unpaired_allowed &&
-            ((!free_charge && q < target) || residual >= 2 + unpaired_allowed))
-            for (int h : hosts) {
-                const State cur = state[static_cast<size_t>(h)];
-                for (const State& s : valence_states(m.atoms[static_cast<size_t>(h)].z))
-                    if (s.charge == cur.charge + 1 && s.valence == cur.valence + 1) {
-                        changed = try_state(h, s);
-                        if (changed && q >= target && !local(h)) {
-                            state[static_cast<size_t>(h)] = cur;
-                            residual = solve();
-                            changed = false;
-                        }
-                        break;
-                    }
-                if (changed) break;
-            }
-        // Rule 1 again for a cation, with any atom of the structure as the host: the matching is global, so an N+
-        // anywhere in a conjugated ring serves (pyridinium: the carbon left over sits para to the N, which is no
-        // neighbour of it; rule 2 then made that carbon the cation and the ring lost its aromaticity).
-        if (!changed && !fixed_charges && !free_charge && residual > unpaired_allowed && q < target) {
-            std::vector<int> others;
-            for (int i = 0; i < n; ++i)
-                if (left[static_cast<size_t>(i)] == 0 && std::find(hosts.begin(), hosts.end(), i) == hosts.end() &&
-                    !(ignore && (*ignore)[static_cast<size_t>(i)]))
-                    others.push_back(i);
-            std::stable_sort(others.begin(), others.end(),
-                             [&](int a, int b) { return electronegativity(a) < electronegativity(b); });
-            for (int h : others) {
-                const State cur = state[static_cast<size_t>(h)];
-                bool free_bond = false;
-                for (const Neighbor& nb : m.neighbors(h)) free_bond = free_bond || is_free[static_cast<size_t>(nb.bond)];
-                if (!free_bond) continue;
-                for (const State& s : valence_states(m.atoms[static_cast<size_t>(h)].z))
-                    if (s.charge == cur.charge + 1 && s.valence == cur.valence + 1) {
-                        changed = try_state(h, s);
-                        break;
-                    }
-                if (changed) break;
-            }
+    // Rule 0: a neighbour takes its next neutral valence (S 4 -> 6, P 3 -> 5).
+    if (residual > unpaired_allowed)
+        for (int h : hosts) {
+            const State cur = state[static_cast<size_t>(h)];
+            for (const State& s : valence_states(m.atoms[static_cast<size_t>(h)].z))
+                if (s.charge == cur.charge && s.valence == cur.valence + 2) {
+                    changed = try_state(h, s);
+                    break;
+                }
+            if (changed) break;
         }
-        // Rule 2: an unsatisfied atom takes a charge and one bond less: an anion on the most electronegative atom
-        // when the charge is to go down, a cation on the least electronegative when it is to go up.
-        if (!changed && !fixed_charges && (free_charge ? residual > unpaired_allowed : q != target) && !unsat.empty()) {
-            const int dq = free_charge || q > target ? -1 : 1;
-            std::vector<int> order = unsat;
-            std::stable_sort(order.begin(), order.end(), [&](int a, int b) {
-                return dq < 0 ? electronegativity(a) > electronegativity(b) : electronegativity(a) < electronegativity(b);
-            });
-            for (int u : order) {
-                const State cur = state[static_cast<size_t>(u)];
-                const int zu = m.atoms[static_cast<size_t>(u)].z;
-                for (const State& s : cut && (*cut)[static_cast<size_t>(u)] ? donor_valence_states(zu) : valence_states(zu))
-                    if (s.charge == cur.charge + dq && s.valence == cur.valence - 1 && s.valence >= fixed_sum[static_cast<size_t>(u)]) {
-                        changed = try_state(u, s);
-                        break;
+    // Rule 1: a neighbour takes +1 and one more bond (N+ of a nitro group, O+ of CO), when the charge is to go up
+    // or another atom is left to take the compensating -1.
+    if (!changed && !fixed_charges && residual > unpaired_allowed &&
+        ((!free_charge && q < target) || residual >= 2 + unpaired_allowed))
+        for (int h : hosts) {
+            const State cur = state[static_cast<size_t>(h)];
+            for (const State& s : valence_states(m.atoms[static_cast<size_t>(h)].z))
+                if (s.charge == cur.charge + 1 && s.valence == cur.valence + 1) {
+                    changed = try_state(h, s);
+                    if (changed && q >= target && !local(h)) {
+                        state[static_cast<size_t>(h)] = cur;
+                        residual = solve();
+                        changed = false;
                     }
-                if (changed) break;
-            }
+                    break;
+                }
+            if (changed) break;
         }
-        if (!changed) break;
+    // Rule 1 again for a cation, with any atom of the structure as the host: the matching is global, so an N+
+    // anywhere in a conjugated ring serves (pyridinium: the carbon left over sits para to the N, which is no
+    // neighbour of it; rule 2 then made that carbon the cation and the ring lost its aromaticity).
+    if (!changed && !fixed_charges && !free_charge && residual > unpaired_allowed && q < target) {
+        std::vector<int> others;
+        for (int i = 0; i < n; ++i)
+            if (left[static_cast<size_t>(i)] == 0 && std::find(hosts.begin(), hosts.end(), i) == hosts.end() &&
+                !(ignore && (*ignore)[static_cast<size_t>(i)]))
+                others.push_back(i);
+        std::stable_sort(others.begin(), others.end(),
+                         [&](int a, int b) { return electronegativity(a) < electronegativity(b); });
+        for (int h : others) {
+            const State cur = state[static_cast<size_t>(h)];
+            bool free_bond = false;
+            for (const Neighbor& nb : m.neighbors(h)) free_bond = free_bond || is_free[static_cast<size_t>(nb.bond)];
+            if (!free_bond) continue;
+            for (const State& s : valence_states(m.atoms[static_cast<size_t>(h)].z))
+                if (s.charge == cur.charge + 1 && s.valence == cur.valence + 1) {
+                    changed = try_state(h, s);
+                    break;
+                }
+            if (changed) break;
+        }
     }
+    // Rule 2: an unsatisfied atom takes a charge and one bond less: an anion on the most electronegative atom
+    // when the charge is to go down, a cation on the least electronegative when it is to go up.
+    if (!changed && !fixed_charges && (free_charge ? residual > unpaired_allowed : q != target) && !unsat.empty()) {
+        const int dq = free_charge || q > target ? -1 : 1;
+        std::vector<int> order = unsat;
+        std::stable_sort(order.begin(), order.end(), [&](int a, int b) {
+            return dq < 0 ? electronegativity(a) > electronegativity(b) : electronegativity(a) < electronegativity(b);
+        });
+        for (int u : order) {
+            const State cur = state[static_cast<size_t>(u)];
+            const int zu = m.atoms[static_cast<size_t>(u)].z;
+            for (const State& s : cut && (*cut)[static_cast<size_t>(u)] ? donor_valence_states(zu) : valence_states(zu))
+                if (s.charge == cur.charge + dq && s.valence == cur.valence - 1 && s.valence >= fixed_sum[static_cast<size_t>(u)]) {
+                    changed = try_state(u, s);
+                    break;
+                }
+            if (changed) break;
+        }
+    }
+        return changed;
+    }
+
+    void last_charge() {
+        Molecule& m = m_;
+        const int n = n_;
+        const bool fixed_charges = fixed_charges_, free_charge = free_charge_;
+        const std::vector<char>* ignore = ignore_;
+        const int target = target_;
+        std::vector<int>& left = left_;
+        std::vector<State>& state = state_;
+        int& residual = residual_;
+        auto electronegativity = [&](int i) { return this->electronegativity(i); };
+        constexpr int kTriesBudget = kMaxTries;
+        const int tries = tries_;
     // Still short of the total charge with every atom satisfied (NH3 read with charge +1: an ammonium that lost a
     // hydrogen): the atom with the fewest neighbours that can hold the charge with one bond more takes it, and the
     // bond it lacks is reported at it as an unpaired electron (a missing hydrogen), not as a charge without a place.
-    if (!fixed_charges && !free_charge && charge() != target && tries <= kMaxTries) {
+    if (!fixed_charges && !free_charge && charge() != target && tries <= kTriesBudget) {
         const int dq = charge() < target ? 1 : -1;
         int best = -1;
         State best_state{};
@@ -540,21 +595,50 @@ ValenceResult assign_impl(Molecule& m, const std::vector<Eigen::Vector3d>& pos, 
         }
         if (best >= 0) {
             state[static_cast<size_t>(best)] = best_state;
-            residual = solve();
+            residual = this->solve();
         }
     }
 
-    for (int b = 0; b < m.bond_count(); ++b)
-        if (is_free[static_cast<size_t>(b)]) m.bonds[static_cast<size_t>(b)].order = 1 + x[static_cast<size_t>(b)];
-    for (int i = 0; i < n; ++i) {
-        Atom& a = m.atoms[static_cast<size_t>(i)];
-        if (!fixed_charges) a.charge = state[static_cast<size_t>(i)].charge;
-        out.unpaired[static_cast<size_t>(i)] = left[static_cast<size_t>(i)];
-        out.total_unpaired += left[static_cast<size_t>(i)];
-        if (left[static_cast<size_t>(i)] > 0) a.radical_electrons = left[static_cast<size_t>(i)];
     }
-    out.charge = charge();
-    return out;
+
+    ValenceResult result() {
+        ValenceResult out;
+        out.unpaired.assign(static_cast<size_t>(n_), 0);
+        out.overbonded = overbonded_;
+        for (int b = 0; b < m_.bond_count(); ++b)
+            if (is_free_[static_cast<size_t>(b)]) m_.bonds[static_cast<size_t>(b)].order = 1 + x_[static_cast<size_t>(b)];
+        for (int i = 0; i < n_; ++i) {
+            Atom& a = m_.atoms[static_cast<size_t>(i)];
+            if (!fixed_charges_) a.charge = state_[static_cast<size_t>(i)].charge;
+            out.unpaired[static_cast<size_t>(i)] = left_[static_cast<size_t>(i)];
+            out.total_unpaired += left_[static_cast<size_t>(i)];
+            if (left_[static_cast<size_t>(i)] > 0) a.radical_electrons = left_[static_cast<size_t>(i)];
+        }
+        out.charge = charge();
+        return out;
+    }
+
+    Molecule& m_;
+    const int n_;
+    const int unpaired_allowed_;
+    const bool fixed_charges_;
+    const std::vector<char>* ignore_;
+    const bool free_charge_;
+    const std::vector<char>* cut_;
+    std::vector<char> is_free_;
+    OrderMatcher matcher_;
+    std::vector<State> state_;
+    std::vector<int> fixed_sum_;  // order sum with every free bond single
+    std::vector<int> overbonded_;
+    std::vector<int> x_, left_;
+    int residual_ = 0, target_ = 0, tries_ = 0;
+};
+
+ValenceResult assign_impl(Molecule& m, const std::vector<Eigen::Vector3d>& pos, int total_charge, int unpaired_allowed,
+                          const std::vector<int>* free_bonds, bool fixed_charges, const std::vector<char>* ignore,
+                          bool free_charge, const std::vector<char>* cut) {
+    return ValenceSearch(m, pos, total_charge, unpaired_allowed, free_bonds, fixed_charges, ignore, free_charge, cut)
+        .run();
 }
 
 }  // namespace

@@ -354,271 +354,262 @@ double metal_bond_length(const MetalAnalysis& ma, const Bond& b) {
 
 }  // namespace
 
-MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalysis* metals) {
-    const DomainModel& model = domain_model();
-    MoleculeDomains out;
-    out.atoms.resize(m.atoms.size());
-    bool any_metal = false;
-    for (const Atom& a : m.atoms) any_metal = any_metal || is_transition_metal(a.z);
-    if (metals != nullptr) out.metals = *metals;
-    else if (any_metal) out.metals = analyse_metals(m, solve);
-    const MetalAnalysis& ma = out.metals;
-    const bool with_metals = !ma.empty();
-    for (const std::string& w : ma.warnings) out.warnings.push_back(w);
-    const std::vector<int> counting = counting_charges(m);
-    for (int i = 0; i < m.atom_count(); ++i) {
-        const Atom& atom = m.atoms[static_cast<size_t>(i)];
-        CentreDomains& c = out.atoms[static_cast<size_t>(i)];
-        c.atom = i;
-        if (with_metals && ma.centre_of_atom[static_cast<size_t>(i)] >= 0) {
-            const MetalCentre& metal = ma.centres[static_cast<size_t>(ma.centre_of_atom[static_cast<size_t>(i)])];
-            metal_centre_domains(m, metal, ma, c);
-            out.unpaired_electrons += metal.unpaired_electrons;
-            continue;
-        }
-        const ElementData& el = element(atom.z);
-        // Bonds to metals: a hapto ligand's atoms give their pi electrons (no sigma domain towards the metal); a
-        // sigma donor's bond is covalent for the units the metal analysis counts so, dative (one lone pair each) for
-        // the rest.
-        int metal_units = 0, covalent_units = 0, hapto_bonds = 0;
-        const bool hapto_atom = with_metals && ma.hapto_atom[static_cast<size_t>(i)];
-        if (with_metals)
-            for (const Neighbor& nb : m.neighbors(i)) {
-                if (!is_d_block_metal(m.atoms[static_cast<size_t>(nb.atom)].z)) continue;
-                if (hapto_atom) {
-                    ++hapto_bonds;
-                    continue;
-                }
-                metal_units += m.bonds[static_cast<size_t>(nb.bond)].order;
-                if (const MetalBond* mb = ma.bond(i, nb.atom)) covalent_units += mb->covalent;
+namespace {
+
+// What the Lewis structure gives one atom (not a metal centre): lone pairs, single electrons, the pair shared with a
+// pi system, bonded neighbours, and the names of its class and shape. Bonds to metals: a hapto ligand's atoms give
+// their pi electrons (no sigma domain towards the metal); a sigma donor's bond is covalent for the units the metal
+// analysis counts so, dative (one lone pair each) for the rest. Returns the number of hapto bonds to metals.
+int lewis_counts(const Molecule& m, int i, const MetalAnalysis& ma, bool with_metals, const std::vector<int>& counting,
+                 CentreDomains& c) {
+    const Atom& atom = m.atoms[static_cast<size_t>(i)];
+    const ElementData& el = element(atom.z);
+    int metal_units = 0, covalent_units = 0, hapto_bonds = 0;
+    const bool hapto_atom = with_metals && ma.hapto_atom[static_cast<size_t>(i)];
+    if (with_metals)
+        for (const Neighbor& nb : m.neighbors(i)) {
+            if (!is_d_block_metal(m.atoms[static_cast<size_t>(nb.atom)].z)) continue;
+            if (hapto_atom) {
+                ++hapto_bonds;
+                continue;
             }
-        int hapto_order = 0;
-        if (hapto_atom)
-            for (const Neighbor& nb : m.neighbors(i))
-                if (is_d_block_metal(m.atoms[static_cast<size_t>(nb.atom)].z)) hapto_order += m.bonds[static_cast<size_t>(nb.bond)].order;
-        const int own_order_sum = m.bond_order_sum(i) + std::max(0, atom.hydrogens) - metal_units - hapto_order;
-        const int order_sum = own_order_sum + metal_units;
-        // Non-bonding electrons of the Lewis structure: valence electrons less the formal charge and the bonds.
-        int nonbonding = el.valence_electrons - counting[static_cast<size_t>(i)] - own_order_sum - covalent_units -
-                         2 * (metal_units - covalent_units);
-        // An atom of a hapto ligand with an odd electron as written takes one from the metal (ionic model).
-        if (hapto_atom && nonbonding % 2 != 0) ++nonbonding;
-        if (nonbonding < 0) {
-            // Four bonds at a neutral B, Al, Ga, In: an anion or a dative bridge written without its charges.
-            const bool acceptor = el.group == 13 && atom.charge == 0 && order_sum == 4;
-            throw InputError(fmt::format("{} has bonds of total order {}, more than its {} valence electrons allow{}{}{}",
-                                         atom_label(m, i), order_sum, el.valence_electrons,
-                                         atom.charge != 0 ? fmt::format(" with charge {:+d}", atom.charge) : "",
-                                         as_read(m, i),
-                                         acceptor ? "; a four-coordinate group-13 atom is an anion ([BH4-], [Al-]) or "
-                                                    "the acceptor of a dative bridge, written with its charges "
-                                                    "(Al2Cl6: Cl[Al-]1(Cl)[Cl+][Al-](Cl)(Cl)[Cl+]1); three-centre "
-                                                    "two-electron bonds (B2H6) are not modelled"
-                                                  : ""),
-                             {}, atom.column);
+            metal_units += m.bonds[static_cast<size_t>(nb.bond)].order;
+            if (const MetalBond* mb = ma.bond(i, nb.atom)) covalent_units += mb->covalent;
         }
-        // First-row atoms keep a duet, second-row atoms an octet (octet expansion only from period 3 on).
-        const int electrons = 2 * order_sum + nonbonding;
-        const int limit = el.period == 1 ? 2 : el.period == 2 ? 8 : 1000;
-        if (electrons > limit)
-            throw InputError(
-                fmt::format("{} would hold {} electrons; a period-{} atom holds at most {}{}{}", atom_label(m, i),
-                            electrons, el.period, limit, as_read(m, i),
-                            el.period == 2 ? " (write the formal charges, e.g. [N+](=O)[O-] for a nitro group)" : ""),
-                {}, atom.column);
-        c.lone_pairs = nonbonding / 2;
-        c.single_electrons = nonbonding % 2;
-        if (hapto_atom) {
-            // Its lone pair is part of the pi system the ligand gives to the metal (C5H5-: every carbon trigonal).
-            c.delocalised_lone_pairs = c.lone_pairs;
-            c.lone_pairs = 0;
-        } else if (delocalised_lone_pair(m, i, c.lone_pairs, c.single_electrons)) {
-            c.delocalised_lone_pairs = 1;
-            --c.lone_pairs;
+    int hapto_order = 0;
+    if (hapto_atom)
+        for (const Neighbor& nb : m.neighbors(i))
+            if (is_d_block_metal(m.atoms[static_cast<size_t>(nb.atom)].z)) hapto_order += m.bonds[static_cast<size_t>(nb.bond)].order;
+    const int own_order_sum = m.bond_order_sum(i) + std::max(0, atom.hydrogens) - metal_units - hapto_order;
+    const int order_sum = own_order_sum + metal_units;
+    // Non-bonding electrons of the Lewis structure: valence electrons less the formal charge and the bonds.
+    int nonbonding = el.valence_electrons - counting[static_cast<size_t>(i)] - own_order_sum - covalent_units -
+                     2 * (metal_units - covalent_units);
+    // An atom of a hapto ligand with an odd electron as written takes one from the metal (ionic model).
+    if (hapto_atom && nonbonding % 2 != 0) ++nonbonding;
+    if (nonbonding < 0) {
+        // Four bonds at a neutral B, Al, Ga, In: an anion or a dative bridge written without its charges.
+        const bool acceptor = el.group == 13 && atom.charge == 0 && order_sum == 4;
+        throw InputError(fmt::format("{} has bonds of total order {}, more than its {} valence electrons allow{}{}{}",
+                                     atom_label(m, i), order_sum, el.valence_electrons,
+                                     atom.charge != 0 ? fmt::format(" with charge {:+d}", atom.charge) : "",
+                                     as_read(m, i),
+                                     acceptor ? "; a four-coordinate group-13 atom is an anion ([BH4-], [Al-]) or "
+                                                "the acceptor of a dative bridge, written with its charges "
+                                                "(Al2Cl6: Cl[Al-]1(Cl)[Cl+][Al-](Cl)(Cl)[Cl+]1); three-centre "
+                                                "two-electron bonds (B2H6) are not modelled"
+                                              : ""),
+                         {}, atom.column);
+    }
+    // First-row atoms keep a duet, second-row atoms an octet (octet expansion only from period 3 on).
+    const int electrons = 2 * order_sum + nonbonding;
+    const int limit = el.period == 1 ? 2 : el.period == 2 ? 8 : 1000;
+    if (electrons > limit)
+        throw InputError(
+            fmt::format("{} would hold {} electrons; a period-{} atom holds at most {}{}{}", atom_label(m, i),
+                        electrons, el.period, limit, as_read(m, i),
+                        el.period == 2 ? " (write the formal charges, e.g. [N+](=O)[O-] for a nitro group)" : ""),
+            {}, atom.column);
+    c.lone_pairs = nonbonding / 2;
+    c.single_electrons = nonbonding % 2;
+    if (hapto_atom) {
+        // Its lone pair is part of the pi system the ligand gives to the metal (C5H5-: every carbon trigonal).
+        c.delocalised_lone_pairs = c.lone_pairs;
+        c.lone_pairs = 0;
+    } else if (delocalised_lone_pair(m, i, c.lone_pairs, c.single_electrons)) {
+        c.delocalised_lone_pairs = 1;
+        --c.lone_pairs;
+    }
+    c.bonded = m.degree(i) - hapto_bonds + std::max(0, atom.hydrogens);
+    // A period-2 radical centre with three bonds and nothing else is planar, its odd electron in the p orbital
+    // (common practice; the methyl radical is planar, D3h: Herzberg, from memory). Electronegative ligands
+    // pyramidalise it (CF3 is pyramidal, F-C-F about 111 deg, from memory), so F, O and Cl keep the domain.
+    if (el.period == 2 && c.single_electrons == 1 && c.lone_pairs == 0 && c.bonded == 3) {
+        bool electronegative = false;
+        for (const Neighbor& nb : m.neighbors(i)) {
+            const int z = m.atoms[static_cast<size_t>(nb.atom)].z;
+            electronegative = electronegative || z == 8 || z == 9 || z == 17;
         }
-        c.bonded = m.degree(i) - hapto_bonds + std::max(0, atom.hydrogens);
-        // A period-2 radical centre with three bonds and nothing else is planar, its odd electron in the p orbital
-        // (common practice; the methyl radical is planar, D3h: Herzberg, from memory). Electronegative ligands
-        // pyramidalise it (CF3 is pyramidal, F-C-F about 111 deg, from memory), so F, O and Cl keep the domain.
-        if (el.period == 2 && c.single_electrons == 1 && c.lone_pairs == 0 && c.bonded == 3) {
-            bool electronegative = false;
+        if (!electronegative) {
+            c.single_electrons = 0;
+            c.p_single_electrons = 1;
+        }
+    }
+    c.steric_number = c.bonded + c.lone_pairs + c.single_electrons;
+    c.axe = axe_class(c.bonded, c.lone_pairs, c.single_electrons);
+    c.electron_geometry = electron_geometry_name(c.steric_number);
+    c.shape = shape_name(c.bonded, c.lone_pairs + c.single_electrons);
+    return hapto_bonds;
+}
+
+// The atom's domains on the sphere (bonds, lone pairs, a single electron) with their weights and sizes, and, when
+// asked (always for five and six domains), their solved directions and the angles between its bonds.
+void sphere_domains(const Molecule& m, int i, bool hapto_atom, int hapto_bonds, bool solve, CentreDomains& c) {
+    const DomainModel& model = domain_model();
+    const Atom& atom = m.atoms[static_cast<size_t>(i)];
+    const std::vector<double> orders = effective_orders(m, i);
+    // What the bonding weights depend on beyond the bond (model.cpp), hapto bonds to a metal aside.
+    CentreKind kind;
+    kind.lone_pairs = c.lone_pairs + c.single_electrons;
+    for (size_t k = 0; k < m.neighbors(i).size(); ++k)
+        if (!(hapto_atom && is_d_block_metal(m.atoms[static_cast<size_t>(m.neighbors(i)[k].atom)].z))) {
+            // Multiple bonds to O or N only: the S(VI)/P(V) term was fitted on S=O and P=O (model.cpp); a
+            // C=S bond of an ylide such as CH2=SF4 keeps the base model (check_xtb_maingroup.py).
+            const int nz = m.atoms[static_cast<size_t>(m.neighbors(i)[k].atom)].z;
+            kind.multiple_bond = kind.multiple_bond || (orders[k] > 1.0 && (nz == 7 || nz == 8));
+            if (is_heavy_ligand(m.atoms[static_cast<size_t>(m.neighbors(i)[k].atom)].z)) ++kind.heavy_ligands;
+        }
+    for (size_t k = 0; k < m.neighbors(i).size(); ++k) {
+        const Neighbor& nb = m.neighbors(i)[k];
+        if (hapto_atom && is_d_block_metal(m.atoms[static_cast<size_t>(nb.atom)].z)) continue;
+        const Bond& b = m.bonds[static_cast<size_t>(nb.bond)];
+        SphereDomain sd = bonding_domain(model, atom.z, m.atoms[static_cast<size_t>(nb.atom)].z, orders[k], kind);
+        c.domains.push_back({DomainKind::bond, nb.atom, nb.bond, b.order, sd.weight, sd.radius});
+    }
+    for (int k = 0; k < std::max(0, atom.hydrogens); ++k) {
+        SphereDomain sd = bonding_domain(model, atom.z, 1, 1, kind);
+        c.domains.push_back({DomainKind::bond, -1, -1, 1, sd.weight, sd.radius});
+    }
+    // At an oxygen bridging polar heavy atoms the pair left is drawn towards them too (model.cpp, stage 4).
+    double lone_pair_factor = 1.0;
+    if (atom.z == 8 && c.delocalised_lone_pairs > 0) {
+        std::vector<int> zs;
+        for (const Neighbor& nb : m.neighbors(i)) zs.push_back(m.atoms[static_cast<size_t>(nb.atom)].z);
+        lone_pair_factor = bridge_lone_pair_factor(model, bridge_polarity(zs));
+    }
+    for (int k = 0; k < c.lone_pairs; ++k) {
+        SphereDomain sd = lone_pair_domain(model, atom.z);
+        sd.weight *= lone_pair_factor;
+        c.domains.push_back({DomainKind::lone_pair, -1, -1, 0, sd.weight, sd.radius});
+    }
+    if (c.single_electrons) {
+        SphereDomain sd = single_electron_domain(model, atom.z);
+        c.domains.push_back({DomainKind::single_electron, -1, -1, 0, sd.weight, sd.radius});
+    }
+    if (c.steric_number > 12)
+        throw UnsupportedError(fmt::format("{} has {} electron domains; at most 12 are supported",
+                                           atom_label(m, i), c.steric_number));
+    // Five- and six-domain centres are solved even when only counting: their bond lengths depend on which bonds
+    // are axial (below), and a length must not depend on the flag. Cleared again at the end.
+    if ((solve || c.steric_number == 5 || c.steric_number == 6) && c.bonded >= 2) {
+        std::vector<SphereDomain> sd, arrangement;
+        sd.reserve(c.domains.size());
+        arrangement.reserve(c.domains.size());
+        for (size_t k = 0; k < c.domains.size(); ++k) {
+            const Domain& d = c.domains[k];
+            sd.push_back({d.weight, d.radius, d.kind == DomainKind::bond ? model.bond_exponent : model.lone_pair_exponent});
+            arrangement.push_back(arrangement_domain(d.kind, k < orders.size() ? orders[k] : 1.0));
+        }
+        c.directions = solve_sphere_staged(arrangement, sd);
+        const int nbonds = m.degree(i) - hapto_bonds;
+        for (int a = 0; a < nbonds; ++a)
+            for (int b = a + 1; b < nbonds; ++b)
+                c.angles.push_back({c.domains[static_cast<size_t>(a)].neighbor, c.domains[static_cast<size_t>(b)].neighbor,
+                                    angle_between(c.directions[static_cast<size_t>(a)], c.directions[static_cast<size_t>(b)])});
+    }
+}
+
+// Every bond's length from the Lewis structure at its two ends (lib/core/bond_length.cpp), metal bonds from the metal
+// analysis.
+void bond_lengths(const Molecule& m, const MetalAnalysis& ma, bool with_metals, MoleculeDomains& out) {
+    const std::vector<double> orders = length_orders(m);
+    out.bond_lengths.reserve(m.bonds.size());
+    // Per atom: electron pairs of the Lewis structure (bond orders, hydrogens, lone pairs) and, at five- and
+    // six-domain centres, which single bonds lie trans (above 150 degrees) to another of its bonds: the axial
+    // bonds of a trigonal bipyramid, the basal ones of a square pyramid (lib/core/bond_length.cpp).
+    constexpr double kTransCos = -0.866;  // cos 150 degrees
+    std::vector<int> pairs(static_cast<size_t>(m.atom_count()), 0), trans_singles(pairs.size(), 0),
+        open_singles(pairs.size(), 0);
+    std::vector<int> trans_end(2 * m.bonds.size(), 0);  // per bond and end (a, b): 0 unknown, 1 trans, 2 open
+    for (int i = 0; i < m.atom_count(); ++i) {
+        const CentreDomains& c = out.atoms[static_cast<size_t>(i)];
+        int sum = c.lone_pairs + c.delocalised_lone_pairs + std::max(0, m.atoms[static_cast<size_t>(i)].hydrogens);
+        for (const Neighbor& nb : m.neighbors(i)) sum += m.bonds[static_cast<size_t>(nb.bond)].order;
+        pairs[static_cast<size_t>(i)] = sum;
+        if (c.steric_number < 5 || c.steric_number > 6 || c.directions.size() != c.domains.size()) continue;
+        for (size_t k = 0; k < c.domains.size(); ++k) {
+            const Domain& d = c.domains[k];
+            if (d.kind != DomainKind::bond || d.bond < 0) continue;
+            bool trans = false;
+            for (size_t j = 0; j < c.domains.size(); ++j)
+                if (j != k && c.domains[j].kind == DomainKind::bond &&
+                    c.directions[k].dot(c.directions[j]) < kTransCos)
+                    trans = true;
+            const Bond& b = m.bonds[static_cast<size_t>(d.bond)];
+            trans_end[2 * static_cast<size_t>(d.bond) + (b.a == i ? 0 : 1)] = trans ? 1 : 2;
+            if (b.order == 1) ++(trans ? trans_singles : open_singles)[static_cast<size_t>(i)];
+        }
+    }
+    for (size_t e = 0; e < m.bonds.size(); ++e) {
+        const Bond& b = m.bonds[e];
+        const CentreDomains& ca = out.atoms[static_cast<size_t>(b.a)];
+        const CentreDomains& cb = out.atoms[static_cast<size_t>(b.b)];
+        BondEnds ends;
+        // The Lewis structure's counts, delocalised pairs included (the radii rules were set on those).
+        ends.lone_pairs_a = ca.lone_pairs + ca.delocalised_lone_pairs;
+        ends.lone_pairs_b = cb.lone_pairs + cb.delocalised_lone_pairs;
+        ends.steric_a = ca.steric_number + ca.delocalised_lone_pairs;
+        ends.steric_b = cb.steric_number + cb.delocalised_lone_pairs;
+        ends.charge_a = m.atoms[static_cast<size_t>(b.a)].charge;
+        ends.charge_b = m.atoms[static_cast<size_t>(b.b)].charge;
+        ends.pairs_a = pairs[static_cast<size_t>(b.a)];
+        ends.pairs_b = pairs[static_cast<size_t>(b.b)];
+        ends.neighbours_a = m.degree(b.a) + std::max(0, m.atoms[static_cast<size_t>(b.a)].hydrogens);
+        ends.neighbours_b = m.degree(b.b) + std::max(0, m.atoms[static_cast<size_t>(b.b)].hydrogens);
+        auto o_or_f = [&](int i) {
+            int n = 0;
             for (const Neighbor& nb : m.neighbors(i)) {
                 const int z = m.atoms[static_cast<size_t>(nb.atom)].z;
-                electronegative = electronegative || z == 8 || z == 9 || z == 17;
+                n += z == 8 || z == 9;
             }
-            if (!electronegative) {
-                c.single_electrons = 0;
-                c.p_single_electrons = 1;
-            }
-        }
-        c.steric_number = c.bonded + c.lone_pairs + c.single_electrons;
-        c.axe = axe_class(c.bonded, c.lone_pairs, c.single_electrons);
-        c.electron_geometry = electron_geometry_name(c.steric_number);
-        c.shape = shape_name(c.bonded, c.lone_pairs + c.single_electrons);
-        out.unpaired_electrons += c.single_electrons + c.p_single_electrons;
-
-        const std::vector<double> orders = effective_orders(m, i);
-        // What the bonding weights depend on beyond the bond (model.cpp), hapto bonds to a metal aside.
-        CentreKind kind;
-        kind.lone_pairs = c.lone_pairs + c.single_electrons;
-        for (size_t k = 0; k < m.neighbors(i).size(); ++k)
-            if (!(hapto_atom && is_d_block_metal(m.atoms[static_cast<size_t>(m.neighbors(i)[k].atom)].z))) {
-                // Multiple bonds to O or N only: the S(VI)/P(V) term was fitted on S=O and P=O (model.cpp); a
-                // C=S bond of an ylide such as CH2=SF4 keeps the base model (check_xtb_maingroup.py).
-                const int nz = m.atoms[static_cast<size_t>(m.neighbors(i)[k].atom)].z;
-                kind.multiple_bond = kind.multiple_bond || (orders[k] > 1.0 && (nz == 7 || nz == 8));
-                if (is_heavy_ligand(m.atoms[static_cast<size_t>(m.neighbors(i)[k].atom)].z)) ++kind.heavy_ligands;
-            }
-        for (size_t k = 0; k < m.neighbors(i).size(); ++k) {
-            const Neighbor& nb = m.neighbors(i)[k];
-            if (hapto_atom && is_d_block_metal(m.atoms[static_cast<size_t>(nb.atom)].z)) continue;
-            const Bond& b = m.bonds[static_cast<size_t>(nb.bond)];
-            SphereDomain sd = bonding_domain(model, atom.z, m.atoms[static_cast<size_t>(nb.atom)].z, orders[k], kind);
-            c.domains.push_back({DomainKind::bond, nb.atom, nb.bond, b.order, sd.weight, sd.radius});
-        }
-        for (int k = 0; k < std::max(0, atom.hydrogens); ++k) {
-            SphereDomain sd = bonding_domain(model, atom.z, 1, 1, kind);
-            c.domains.push_back({DomainKind::bond, -1, -1, 1, sd.weight, sd.radius});
-        }
-        // At an oxygen bridging polar heavy atoms the pair left is drawn towards them too (model.cpp, stage 4).
-        double lone_pair_factor = 1.0;
-        if (atom.z == 8 && c.delocalised_lone_pairs > 0) {
-            std::vector<int> zs;
-            for (const Neighbor& nb : m.neighbors(i)) zs.push_back(m.atoms[static_cast<size_t>(nb.atom)].z);
-            lone_pair_factor = bridge_lone_pair_factor(model, bridge_polarity(zs));
-        }
-        for (int k = 0; k < c.lone_pairs; ++k) {
-            SphereDomain sd = lone_pair_domain(model, atom.z);
-            sd.weight *= lone_pair_factor;
-            c.domains.push_back({DomainKind::lone_pair, -1, -1, 0, sd.weight, sd.radius});
-        }
-        if (c.single_electrons) {
-            SphereDomain sd = single_electron_domain(model, atom.z);
-            c.domains.push_back({DomainKind::single_electron, -1, -1, 0, sd.weight, sd.radius});
-        }
-        if (c.steric_number > 12)
-            throw UnsupportedError(fmt::format("{} has {} electron domains; at most 12 are supported",
-                                               atom_label(m, i), c.steric_number));
-        // Five- and six-domain centres are solved even when only counting: their bond lengths depend on which bonds
-        // are axial (below), and a length must not depend on the flag. Cleared again at the end.
-        if ((solve || c.steric_number == 5 || c.steric_number == 6) && c.bonded >= 2) {
-            std::vector<SphereDomain> sd, arrangement;
-            sd.reserve(c.domains.size());
-            arrangement.reserve(c.domains.size());
-            for (size_t k = 0; k < c.domains.size(); ++k) {
-                const Domain& d = c.domains[k];
-                sd.push_back({d.weight, d.radius, d.kind == DomainKind::bond ? model.bond_exponent : model.lone_pair_exponent});
-                arrangement.push_back(arrangement_domain(d.kind, k < orders.size() ? orders[k] : 1.0));
-            }
-            c.directions = solve_sphere_staged(arrangement, sd);
-            const int nbonds = m.degree(i) - hapto_bonds;
-            for (int a = 0; a < nbonds; ++a)
-                for (int b = a + 1; b < nbonds; ++b)
-                    c.angles.push_back({c.domains[static_cast<size_t>(a)].neighbor, c.domains[static_cast<size_t>(b)].neighbor,
-                                        angle_between(c.directions[static_cast<size_t>(a)], c.directions[static_cast<size_t>(b)])});
-        }
-    }
-    {
-        const std::vector<double> orders = length_orders(m);
-        out.bond_lengths.reserve(m.bonds.size());
-        // Per atom: electron pairs of the Lewis structure (bond orders, hydrogens, lone pairs) and, at five- and
-        // six-domain centres, which single bonds lie trans (above 150 degrees) to another of its bonds: the axial
-        // bonds of a trigonal bipyramid, the basal ones of a square pyramid (lib/core/bond_length.cpp).
-        constexpr double kTransCos = -0.866;  // cos 150 degrees
-        std::vector<int> pairs(static_cast<size_t>(m.atom_count()), 0), trans_singles(pairs.size(), 0),
-            open_singles(pairs.size(), 0);
-        std::vector<int> trans_end(2 * m.bonds.size(), 0);  // per bond and end (a, b): 0 unknown, 1 trans, 2 open
-        for (int i = 0; i < m.atom_count(); ++i) {
-            const CentreDomains& c = out.atoms[static_cast<size_t>(i)];
-            int sum = c.lone_pairs + c.delocalised_lone_pairs + std::max(0, m.atoms[static_cast<size_t>(i)].hydrogens);
-            for (const Neighbor& nb : m.neighbors(i)) sum += m.bonds[static_cast<size_t>(nb.bond)].order;
-            pairs[static_cast<size_t>(i)] = sum;
-            if (c.steric_number < 5 || c.steric_number > 6 || c.directions.size() != c.domains.size()) continue;
-            for (size_t k = 0; k < c.domains.size(); ++k) {
-                const Domain& d = c.domains[k];
-                if (d.kind != DomainKind::bond || d.bond < 0) continue;
-                bool trans = false;
-                for (size_t j = 0; j < c.domains.size(); ++j)
-                    if (j != k && c.domains[j].kind == DomainKind::bond &&
-                        c.directions[k].dot(c.directions[j]) < kTransCos)
-                        trans = true;
-                const Bond& b = m.bonds[static_cast<size_t>(d.bond)];
-                trans_end[2 * static_cast<size_t>(d.bond) + (b.a == i ? 0 : 1)] = trans ? 1 : 2;
-                if (b.order == 1) ++(trans ? trans_singles : open_singles)[static_cast<size_t>(i)];
+            return n;
+        };
+        ends.electronegative_a = o_or_f(b.a);
+        ends.electronegative_b = o_or_f(b.b);
+        ends.trans_a = trans_end[2 * e];
+        ends.trans_b = trans_end[2 * e + 1];
+        ends.trans_singles_a = trans_singles[static_cast<size_t>(b.a)];
+        ends.trans_singles_b = trans_singles[static_cast<size_t>(b.b)];
+        ends.open_singles_a = open_singles[static_cast<size_t>(b.a)];
+        ends.open_singles_b = open_singles[static_cast<size_t>(b.b)];
+        if (with_metals) {
+            const double metal_length = metal_bond_length(ma, b);
+            if (metal_length > 0) {
+                out.bond_lengths.push_back(metal_length);
+                continue;
             }
         }
-        for (size_t e = 0; e < m.bonds.size(); ++e) {
-            const Bond& b = m.bonds[e];
-            const CentreDomains& ca = out.atoms[static_cast<size_t>(b.a)];
-            const CentreDomains& cb = out.atoms[static_cast<size_t>(b.b)];
-            BondEnds ends;
-            // The Lewis structure's counts, delocalised pairs included (the radii rules were set on those).
-            ends.lone_pairs_a = ca.lone_pairs + ca.delocalised_lone_pairs;
-            ends.lone_pairs_b = cb.lone_pairs + cb.delocalised_lone_pairs;
-            ends.steric_a = ca.steric_number + ca.delocalised_lone_pairs;
-            ends.steric_b = cb.steric_number + cb.delocalised_lone_pairs;
-            ends.charge_a = m.atoms[static_cast<size_t>(b.a)].charge;
-            ends.charge_b = m.atoms[static_cast<size_t>(b.b)].charge;
-            ends.pairs_a = pairs[static_cast<size_t>(b.a)];
-            ends.pairs_b = pairs[static_cast<size_t>(b.b)];
-            ends.neighbours_a = m.degree(b.a) + std::max(0, m.atoms[static_cast<size_t>(b.a)].hydrogens);
-            ends.neighbours_b = m.degree(b.b) + std::max(0, m.atoms[static_cast<size_t>(b.b)].hydrogens);
-            auto o_or_f = [&](int i) {
-                int n = 0;
-                for (const Neighbor& nb : m.neighbors(i)) {
-                    const int z = m.atoms[static_cast<size_t>(nb.atom)].z;
-                    n += z == 8 || z == 9;
-                }
-                return n;
-            };
-            ends.electronegative_a = o_or_f(b.a);
-            ends.electronegative_b = o_or_f(b.b);
-            ends.trans_a = trans_end[2 * e];
-            ends.trans_b = trans_end[2 * e + 1];
-            ends.trans_singles_a = trans_singles[static_cast<size_t>(b.a)];
-            ends.trans_singles_b = trans_singles[static_cast<size_t>(b.b)];
-            ends.open_singles_a = open_singles[static_cast<size_t>(b.a)];
-            ends.open_singles_b = open_singles[static_cast<size_t>(b.b)];
-            if (with_metals) {
-                const double metal_length = metal_bond_length(ma, b);
-                if (metal_length > 0) {
-                    out.bond_lengths.push_back(metal_length);
-                    continue;
-                }
-            }
-            double orders_override = 0;
-            // The heteroatom of a carbene on a metal (NHC, Fischer) shares its lone pair with the carbene's empty p:
-            // order 1.5 (C-N 1.35-1.37 A in NHC complexes, Fischer C-OMe 1.33; from memory).
-            if (b.order == 1 && !b.aromatic)
-                for (int side = 0; side < 2; ++side) {
-                    const int c = side == 0 ? b.a : b.b, x = side == 0 ? b.b : b.a;
-                    const Atom& ax = m.atoms[static_cast<size_t>(x)];
-                    if ((ax.z == 7 || ax.z == 8 || ax.z == 16) && ax.charge == 0 && carbene_donor_carbon(m, c))
-                        orders_override = 1.5;
-                }
-            // A nitroxide (R2N-O with the odd electron on O: TEMPO) shares it in a two-centre three-electron pi bond:
-            // N-O of order 1.5 (TEMPO 1.28 A, di-tert-butyl nitroxide 1.28 A; from memory).
-            double order = orders_override > 0 ? orders_override : orders[e];
+        double orders_override = 0;
+        // The heteroatom of a carbene on a metal (NHC, Fischer) shares its lone pair with the carbene's empty p:
+        // order 1.5 (C-N 1.35-1.37 A in NHC complexes, Fischer C-OMe 1.33; from memory).
+        if (b.order == 1 && !b.aromatic)
             for (int side = 0; side < 2; ++side) {
-                const int o = side == 0 ? b.a : b.b, n = side == 0 ? b.b : b.a;
-                const CentreDomains& co = out.atoms[static_cast<size_t>(o)];
-                if (b.order == 1 && m.atoms[static_cast<size_t>(o)].z == 8 && m.atoms[static_cast<size_t>(n)].z == 7 &&
-                    m.atoms[static_cast<size_t>(o)].charge == 0 && m.atoms[static_cast<size_t>(n)].charge == 0 &&
-                    m.degree(o) + std::max(0, m.atoms[static_cast<size_t>(o)].hydrogens) == 1 &&
-                    co.single_electrons + co.p_single_electrons == 1 &&
-                    m.degree(n) + std::max(0, m.atoms[static_cast<size_t>(n)].hydrogens) == 3)
-                    order = 1.5;
+                const int c = side == 0 ? b.a : b.b, x = side == 0 ? b.b : b.a;
+                const Atom& ax = m.atoms[static_cast<size_t>(x)];
+                if ((ax.z == 7 || ax.z == 8 || ax.z == 16) && ax.charge == 0 && carbene_donor_carbon(m, c))
+                    orders_override = 1.5;
             }
-            out.bond_lengths.push_back(bond_length_between(m.atoms[static_cast<size_t>(b.a)].z,
-                                                           m.atoms[static_cast<size_t>(b.b)].z,
-                                                           std::clamp(order, 1.0, 3.0), ends));
+        // A nitroxide (R2N-O with the odd electron on O: TEMPO) shares it in a two-centre three-electron pi bond:
+        // N-O of order 1.5 (TEMPO 1.28 A, di-tert-butyl nitroxide 1.28 A; from memory).
+        double order = orders_override > 0 ? orders_override : orders[e];
+        for (int side = 0; side < 2; ++side) {
+            const int o = side == 0 ? b.a : b.b, n = side == 0 ? b.b : b.a;
+            const CentreDomains& co = out.atoms[static_cast<size_t>(o)];
+            if (b.order == 1 && m.atoms[static_cast<size_t>(o)].z == 8 && m.atoms[static_cast<size_t>(n)].z == 7 &&
+                m.atoms[static_cast<size_t>(o)].charge == 0 && m.atoms[static_cast<size_t>(n)].charge == 0 &&
+                m.degree(o) + std::max(0, m.atoms[static_cast<size_t>(o)].hydrogens) == 1 &&
+                co.single_electrons + co.p_single_electrons == 1 &&
+                m.degree(n) + std::max(0, m.atoms[static_cast<size_t>(n)].hydrogens) == 3)
+                order = 1.5;
         }
+        out.bond_lengths.push_back(bond_length_between(m.atoms[static_cast<size_t>(b.a)].z,
+                                                       m.atoms[static_cast<size_t>(b.b)].z,
+                                                       std::clamp(order, 1.0, 3.0), ends));
     }
-    if (!solve)
-        for (CentreDomains& c : out.atoms) {
-            c.directions.clear();
-            c.angles.clear();
-        }
+}
+
+// Lengths the radii are known to miss: the nitrosyl and nitryl halides' N-X.
+void halide_nitrogen_lengths(const Molecule& m, MoleculeDomains& out) {
     // The halogen-nitrogen bond of a nitrosyl halide (X-N=O) or a nitryl halide (X-[N+](=O)[O-]) is far longer than
     // the radii give: the molecule is partly X- with NO+ (NO2+). Lengthened by the mean excess of the measured
     // gas-phase structures over the radii (CRC Handbook, "Structure of free molecules in the gas phase", from memory):
@@ -644,6 +635,10 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalys
             out.bond_lengths[e] += m.neighbors(n).size() == 2 ? kNitrosylHalide : oxide == 1 ? kNitrylHalide : 0.0;
         }
     }
+}
+
+// Warnings on bonds of alkali metals whose length the radii do not know.
+void alkali_bond_warnings(const Molecule& m, MoleculeDomains& out) {
     // Bonds whose length the radii are known to miss (G2, MP2(full)/6-31G(d), tests/external/check_g2_geometry.py):
     // said in the structure rather than left silent. The ionic bonds of Li, Na and K to O, S and the halogens have
     // radii of their own (lib/core/bond_length.cpp); the others of the alkali metals do not.
@@ -664,9 +659,11 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalys
             break;
         }
     }
-    out.charge = m.total_charge();
-    out.multiplicity = out.unpaired_electrons + 1;
+}
 
+// The multiplicity where the ground state is known to differ from the Lewis structure's count, said in warnings;
+// the metal centres' spin reasons.
+void ground_state(const Molecule& m, const MetalAnalysis& ma, bool with_metals, MoleculeDomains& out) {
     // Ground states the Lewis structure gets wrong (common practice): dioxygen is a triplet; a neutral divalent
     // carbon (a carbene) may be one.
     int ncomp = 0;
@@ -735,6 +732,47 @@ MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalys
                                                ma.centres.size(), out.multiplicity));
         out.multiplicity_reason = reason;
     }
+}
+
+}  // namespace
+
+MoleculeDomains analyse_domains(const Molecule& m, bool solve, const MetalAnalysis* metals) {
+    MoleculeDomains out;
+    out.atoms.resize(m.atoms.size());
+    bool any_metal = false;
+    for (const Atom& a : m.atoms) any_metal = any_metal || is_transition_metal(a.z);
+    if (metals != nullptr) out.metals = *metals;
+    else if (any_metal) out.metals = analyse_metals(m, solve);
+    const MetalAnalysis& ma = out.metals;
+    const bool with_metals = !ma.empty();
+    for (const std::string& w : ma.warnings) out.warnings.push_back(w);
+    const std::vector<int> counting = counting_charges(m);
+    for (int i = 0; i < m.atom_count(); ++i) {
+        CentreDomains& c = out.atoms[static_cast<size_t>(i)];
+        c.atom = i;
+        if (with_metals && ma.centre_of_atom[static_cast<size_t>(i)] >= 0) {
+            const MetalCentre& metal = ma.centres[static_cast<size_t>(ma.centre_of_atom[static_cast<size_t>(i)])];
+            metal_centre_domains(m, metal, ma, c);
+            out.unpaired_electrons += metal.unpaired_electrons;
+            continue;
+        }
+        const bool hapto_atom = with_metals && ma.hapto_atom[static_cast<size_t>(i)];
+        const int hapto_bonds = lewis_counts(m, i, ma, with_metals, counting, c);
+        out.unpaired_electrons += c.single_electrons + c.p_single_electrons;
+        sphere_domains(m, i, hapto_atom, hapto_bonds, solve, c);
+    }
+    bond_lengths(m, ma, with_metals, out);
+    if (!solve)
+        for (CentreDomains& c : out.atoms) {
+            c.directions.clear();
+            c.angles.clear();
+        }
+    halide_nitrogen_lengths(m, out);
+    alkali_bond_warnings(m, out);
+    out.charge = m.total_charge();
+    out.multiplicity = out.unpaired_electrons + 1;
+
+    ground_state(m, ma, with_metals, out);
     return out;
 }
 
