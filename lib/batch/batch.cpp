@@ -1,3 +1,4 @@
+#include "core/replace_file.hpp"
 #include "batch/batch.hpp"
 
 #include <fcntl.h>
@@ -228,20 +229,18 @@ void unpack_outcomes(std::string_view bytes, Chunk& chunk) {
 
 // ---- checkpoint
 void save_checkpoint(const std::string& path, const Checkpoint& cp) {
-    const std::string tmp = path + ".tmp";
-    {
-        std::ofstream f(tmp, std::ios::trunc);
-        f << "repel-checkpoint 1\n"
-          << "identity " << one_line(cp.identity) << "\n"
-          << "consumed " << cp.consumed << "\n"
-          << "read " << cp.read << "\nbuilt " << cp.built << "\nfailed " << cp.failed << "\n"
-          << "output_bytes " << cp.output_bytes << "\nerrors_bytes " << cp.errors_bytes << "\n";
-        f.close();
-        if (!f) throw std::runtime_error("cannot write the checkpoint " + tmp);
+    // Written whole or not at all (core/replace_file): a checkpoint is never read half-written.
+    std::ostringstream text;
+    text << "repel-checkpoint 1\n"
+         << "identity " << one_line(cp.identity) << "\n"
+         << "consumed " << cp.consumed << "\n"
+         << "read " << cp.read << "\nbuilt " << cp.built << "\nfailed " << cp.failed << "\n"
+         << "output_bytes " << cp.output_bytes << "\nerrors_bytes " << cp.errors_bytes << "\n";
+    try {
+        replace_file(path, text.str());
+    } catch (const std::runtime_error& e) {
+        throw std::runtime_error("cannot write the checkpoint " + path + ": " + e.what());
     }
-    std::error_code ec;
-    std::filesystem::rename(tmp, path, ec);
-    if (ec) throw std::runtime_error("cannot write the checkpoint " + path + ": " + ec.message());
 }
 
 bool load_checkpoint(const std::string& path, Checkpoint& cp) {
