@@ -1,5 +1,6 @@
-#include "core/replace_file.hpp"
 #include "batch/batch.hpp"
+
+#include "core/replace_file.hpp"
 
 #include <fcntl.h>
 #include <sys/stat.h>
