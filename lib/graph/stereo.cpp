@@ -14,6 +14,20 @@ namespace {
 constexpr int kLonePair = -2;  // stands for a lone pair in a neighbour list
 }
 
+namespace {
+// A mark's four atoms in its order (the first the one looked from) and its index (1: '@', 2: '@@') as a target: the
+// other three run anticlockwise for '@'.
+ChiralTarget target_from_list(int atom, const std::array<int, 4>& l, int chiral_index) {
+    ChiralTarget t;
+    t.centre = atom;
+    t.n1 = l[1];
+    t.n2 = l[2];
+    t.n3 = l[3];
+    t.sign = chiral_index == 1 ? kAnticlockwiseSign : -kAnticlockwiseSign;
+    return t;
+}
+}  // namespace
+
 std::optional<ChiralTarget> chiral_target(const Molecule& molecule, int atom, std::string* problem) {
     const Atom& a = molecule.atoms[static_cast<size_t>(atom)];
     if (a.chiral_class == ChiralClass::none) return std::nullopt;
@@ -29,13 +43,7 @@ std::optional<ChiralTarget> chiral_target(const Molecule& molecule, int atom, st
         if (l.size() != 4 || std::any_of(l.begin(), l.end(), [](int x) { return x < 0; }))
             return refuse("an allene mark needs two substituents (atoms or hydrogens) on each end");
         if (a.chiral_index != 1 && a.chiral_index != 2) return refuse("an allene mark must be @AL1 or @AL2");
-        ChiralTarget t;
-        t.centre = atom;
-        t.n1 = l[1];
-        t.n2 = l[2];
-        t.n3 = l[3];
-        t.sign = a.chiral_index == 1 ? kAnticlockwiseSign : -kAnticlockwiseSign;
-        return t;
+        return target_from_list(atom, {l[0], l[1], l[2], l[3]}, a.chiral_index);
     }
     if (a.chiral_class != ChiralClass::TH)
         return refuse("only tetrahedral and allene chirality marks ('@', '@@', '@TH1', '@TH2', '@AL1', '@AL2') are "
@@ -59,13 +67,7 @@ std::optional<ChiralTarget> chiral_target(const Molecule& molecule, int atom, st
         // An even permutation that brings the lone pair to the front keeps the handedness.
         if (!opens) l = {l[1], l[0], l[3], l[2]};
     }
-    ChiralTarget t;
-    t.centre = atom;
-    t.n1 = l[1];
-    t.n2 = l[2];
-    t.n3 = l[3];
-    t.sign = a.chiral_index == 1 ? kAnticlockwiseSign : -kAnticlockwiseSign;
-    return t;
+    return target_from_list(atom, l, a.chiral_index);
 }
 
 std::vector<ChiralTarget> chiral_targets(const Molecule& molecule, std::vector<std::string>& warnings) {
