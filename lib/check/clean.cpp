@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 
 #include <Eigen/Geometry>
+#include <algorithm>
 #include <cmath>
 #include <optional>
 #include <set>
@@ -12,6 +13,7 @@
 #include "core/element.hpp"
 #include "core/error.hpp"
 #include "domains/domains.hpp"
+#include "graph/rings.hpp"
 #include "refine/refine.hpp"
 
 namespace repel {
@@ -32,6 +34,9 @@ double torsion(const std::vector<Eigen::Vector3d>& p, int a, int b, int c, int d
 
 // A signed volume below this (A^3) is too flat to say which hand the centre has; it is not kept.
 constexpr double kMinVolume = 0.1;
+
+// Below this triple product of three bond directions a four-domain centre is drawn flat (the audit's threshold).
+constexpr double kFlatCentre = 0.3;
 
 // CShM of a metal centre's ligand directions (a hapto ligand at its centroid) against the model's directions.
 double model_shape(const MetalCentre& c, const std::vector<Eigen::Vector3d>& pos) {
@@ -105,6 +110,84 @@ void stereo_as_found(const Molecule& m, const MoleculeDomains& d, const std::vec
     }
 }
 
+
+// How a centre named in a shape finding sits out of place, which moves its bonds with it.
+enum class OutOfPlace {
+    no,         // its angles are wrong but it is where it belongs: a group was turned about it, keeping the bonds
+    flattened,  // a four-domain centre (tetrahedral, pyramidal) in the plane of three neighbours: all its bonds shorten
+    puckered,   // a three-bond centre without lone pairs out of the plane of its neighbours: its ring bonds stretch
+};
+
+// The audit's own measures: the triple product of three bond directions (0.770 in a regular tetrahedron) below
+// kFlatCentre, an angle sum below 360 degrees less the planarity tolerance.
+OutOfPlace out_of_place(const Molecule& m, const MoleculeDomains& d, const std::vector<Eigen::Vector3d>& pos, int c) {
+    const auto& nbs = m.neighbors(c);
+    const CentreDomains& cd = d.atoms[static_cast<size_t>(c)];
+    const Eigen::Vector3d& o = pos[static_cast<size_t>(c)];
+    auto dir = [&](size_t k) { return (pos[static_cast<size_t>(nbs[k].atom)] - o).normalized().eval(); };
+    if (cd.steric_number == 3 && nbs.size() == 3) {
+        double sum = 0;
+        for (size_t a = 0; a < 3; ++a)
+            for (size_t b = a + 1; b < 3; ++b) sum += std::acos(std::clamp(dir(a).dot(dir(b)), -1.0, 1.0));
+        return sum * 180.0 / M_PI < 360.0 - AuditOptions{}.planarity ? OutOfPlace::puckered : OutOfPlace::no;
+    }
+    if (cd.steric_number != 4 || nbs.size() < 3) return OutOfPlace::no;
+    for (size_t a = 0; a < nbs.size(); ++a)
+        for (size_t b = a + 1; b < nbs.size(); ++b)
+            for (size_t e = b + 1; e < nbs.size(); ++e)
+                if (std::fabs(dir(a).dot(dir(b).cross(dir(e)))) < kFlatCentre) return OutOfPlace::flattened;
+    return OutOfPlace::no;
+}
+
+// The target length of every bond for the refinement. Only what is wrong is changed, so that cleaning does not move
+// sound bonds to the expected lengths (their own errors, up to 0.12 A on sound structures and more for hypervalent
+// centres, would become the structure's): a bond keeps its measured length unless
+// - it is named in a length finding: it takes the expected length (the analysis' corrected by kind of bond, what the
+//   audit judged against);
+// - it lies in a ring with a bond named so, at a shared atom: an atom pulled along one ring bond moved along the
+//   other ring bond too (0.15 A along one aromatic C-C shortens the next by about 0.07 A), so it takes the expected
+//   length; any other bond of the two atoms keeps its length when within the length threshold of the expected one;
+// - it is a bond of a centre named in a shape finding: a centre drawn flat was moved into the plane of its
+//   neighbours, which shortened its bonds, so they take the expected lengths; a centre whose angles are wrong but
+//   which is not flat had a group turned about it, which keeps the bonds, so they keep their measured lengths when
+//   within the length threshold.
+// Measured by tests/external/check_audit_damage.py (README, `repel check`).
+void set_length_targets(const Audit& audit, const Molecule& m, const MoleculeDomains& d,
+                        const std::vector<Eigen::Vector3d>& pos, std::vector<double>& lengths) {
+    lengths = corrected_lengths(m, lengths);
+    const double near = AuditOptions{}.bond_deviation;
+    constexpr double kExpected = -1;  // keep[e] below this: the expected length
+    std::vector<double> keep(m.bonds.size(), 1e9);  // how far from the expected length a bond may lie and keep its own
+    auto limit = [&](int e, double k) { keep[static_cast<size_t>(e)] = std::min(keep[static_cast<size_t>(e)], k); };
+    const RingInfo rings = perceive_rings(m);
+    for (const Finding& f : audit.findings) {
+        if (f.atoms.empty()) continue;
+        if (f.kind == "bond length" && f.atoms.size() == 2) {
+            const int e = m.bond_between(f.atoms[0] - 1, f.atoms[1] - 1);
+            if (e < 0) continue;
+            limit(e, kExpected);
+            const bool ring = rings.ring_bond[static_cast<size_t>(e)];
+            for (int a : f.atoms)
+                for (const Neighbor& nb : m.neighbors(a - 1))
+                    limit(nb.bond, ring ? kExpected : near);
+            continue;
+        }
+        for (int a : f.atoms) {
+            const OutOfPlace how = out_of_place(m, d, pos, a - 1);
+            for (const Neighbor& nb : m.neighbors(a - 1)) {
+                const bool moved = how == OutOfPlace::flattened ||
+                                   (how == OutOfPlace::puckered && rings.ring_bond[static_cast<size_t>(nb.bond)]);
+                limit(nb.bond, moved ? kExpected : near);
+            }
+        }
+    }
+    for (size_t e = 0; e < m.bonds.size(); ++e) {
+        const Bond& b = m.bonds[e];
+        const double measured = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm();
+        if (std::fabs(measured - lengths[e]) <= keep[e]) lengths[e] = measured;
+    }
+}
+
 }  // namespace
 
 CleanResult clean_structure(const Audit& audit) {
@@ -142,28 +225,11 @@ CleanResult clean_structure(const Audit& audit) {
             return out;
         }
         MoleculeDomains d = analyse_domains(m, true, any_metal ? &metals : nullptr);
-        // Only what is wrong is changed: a bond without a length finding keeps its measured length as the target, so
-        // that cleaning a sound structure does not move its bonds to the model's lengths (the model's own errors, up
-        // to 0.1 A on G2, would become the structure's).
-        // An atom named in a finding was probably moved, which changes all its bonds (a ring carbon pulled 0.3 A
-        // along one bond shortens its other ring bond by 0.12 A, under the threshold): its bonds take the model's
-        // lengths too.
-        if (d.bond_lengths.size() == m.bonds.size()) {
-            // The lengths the audit judged against (the analysis' corrected by kind of bond).
-            d.bond_lengths = corrected_lengths(m, d.bond_lengths);
-            std::set<int> flagged;
-            for (const Finding& f : audit.findings)
-                for (int a : f.atoms) flagged.insert(a - 1);
-            for (size_t e = 0; e < m.bonds.size(); ++e) {
-                const Bond& b = m.bonds[e];
-                if (flagged.count(b.a) || flagged.count(b.b)) continue;
-                d.bond_lengths[e] = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm();
-            }
-        }
         std::vector<ChiralTarget> chiral;
         std::vector<DoubleBondTarget> doubles;
         stereo_as_found(m, d, pos, chiral, doubles);
         const std::vector<Eigen::Vector3d> before = pos;
+        if (d.bond_lengths.size() == m.bonds.size()) set_length_targets(audit, m, d, before, d.bond_lengths);
         RefineResult r = refine_structure(m, d, chiral, doubles, pos);
         // The refinement must keep each metal's polyhedron: a centre that ends further from the model's polyhedron
         // than the audit's threshold, and further than it started, is left as it was (a refusal, said).
