@@ -347,3 +347,44 @@ TEST(CheckDamage, OneAngleBent20DegreesAndAFlatAmineAreFound) {
     // Unflattened, clean.
     EXPECT_TRUE(audit_structure(built("CN")).findings.empty());
 }
+
+TEST(CheckDamage, ABondTooShortIsJudgedTighterThanOneTooLong) {
+    // Ethanol (G2): its C-O (1.421 A; expected 1.410) shortened by 0.11 A, 0.099 A short of the expected length,
+    // is a finding (over 0.75 x 0.12 A); lengthened by 0.10 A, 0.111 A long, is not (under 0.12 A): sound structures
+    // spread 0.06 A short of the expected length but 0.12 A long (audit.hpp).
+    for (double by : {-0.11, +0.10}) {
+        ReadStructure e = xyz(kG2Ethanol);
+        stretch(e, 1, 2, by);
+        const Audit a = audit_structure(e);
+        EXPECT_EQ(names_bond(a, 2, 3), by < 0) << by << "\n" << describe(a);
+    }
+    // Not in an open-shell molecule, whose written orders are one resonance form of several: the same compression
+    // of a C-C bond of the ethyl radical (built by repel) is not a finding.
+    ReadStructure radical = built("[CH2]CO");
+    stretch(radical, 1, 0, -0.10);
+    const Audit r = audit_structure(radical);
+    EXPECT_FALSE(names_bond(r, 1, 2)) << describe(r);
+}
+
+TEST(CheckFix, AGroupTurnedAboutACentreKeepsTheCentresOtherBonds) {
+    // Ethanol (G2) with C1-C2 lengthened by 0.08 A (within the threshold: not a finding) and a methyl H turned 20
+    // degrees about C1 (a finding at C1): --fix straightens C1 and keeps C1-C2 and C2-O3 as they were, not at the
+    // expected lengths (whose own error would become the structure's).
+    ReadStructure r = xyz(kG2Ethanol);
+    stretch(r, 1, 0, 0.08);
+    auto& p = r.structure.positions;
+    const double co = (p[1] - p[2]).norm(), cc = (p[0] - p[1]).norm();
+    const Vector3d axis = (p[6] - p[0]).cross(p[1] - p[0]).normalized();
+    p[6] = p[0] + Eigen::AngleAxisd(-20.0 * M_PI / 180, axis) * (p[6] - p[0]);
+    const Audit a = audit_structure(r);
+    ASSERT_FALSE(a.findings.empty());
+    EXPECT_FALSE(names_bond(a, 1, 2)) << describe(a);
+    const CleanResult c = clean_structure(a);
+    ASSERT_TRUE(c.refined) << c.summary;
+    const auto& q = c.structure.positions;
+    EXPECT_NEAR((q[1] - q[2]).norm(), co, 0.01);
+    EXPECT_NEAR((q[0] - q[1]).norm(), cc, 0.01);
+    std::istringstream fixed(make_writer(Format::xyz)->record(c.structure, "fixed"));
+    const Audit again = audit_structure(read_xyz(fixed).at(0));
+    EXPECT_TRUE(again.findings.empty()) << describe(again);
+}
