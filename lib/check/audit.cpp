@@ -486,6 +486,69 @@ bool angle_finding(Audit& out, const Molecule& m, const Molecule& skeleton, cons
     return false;
 }
 
+// Step 2, a centre in one three- or four-membered ring. The ring fixes the angle between its two ring bonds, and
+// strain opens the others beyond what the isolated centre predicts (cyclopropane's H-C-C 118 degrees, not 109.5), so
+// the centre's angles are not fitted. Two things the ring leaves as they are: each substituent lies in the plane that
+// bisects the two ring bonds (the ring's mirror plane at the atom: in the sound structures of
+// tests/external/check_audit_damage.py its two angles to the ring bonds differ by at most 5.3 degrees, aziridine's),
+// and the angle between two substituents is not closed below the model's (the ring's bent bonds open it:
+// cyclopropane's H-C-H is 114.6, oxirane's 116, against 110 predicted; repel's own builds reach 121). A tilt, or a
+// closing, past two-thirds of the worst-angle threshold (10 degrees by default, twice the sound spread; a cyclopropane
+// H turned 20 degrees in the plane H-C-C tilts 14.7 and closes its H-C-H by 12.1) is a finding. Bridgeheads and spiro
+// atoms (two ring pairs) are left out. True when that is a finding.
+bool small_ring_centre_finding(Audit& out, const Molecule& m, const Molecule& skeleton,
+                               const std::vector<Eigen::Vector3d>& pos, const CentreDomains& c, int i,
+                               SmallRingSearch& rings, const AuditOptions& opt) {
+    const auto& nbs = skeleton.neighbors(i);
+    int r1 = -1, r2 = -1, pairs = 0;
+    for (size_t a = 0; a < nbs.size(); ++a)
+        for (size_t b = a + 1; b < nbs.size(); ++b)
+            if (rings.angle_in_ring(nbs[a].atom, i, nbs[b].atom, 4)) {
+                r1 = nbs[a].atom;
+                r2 = nbs[b].atom;
+                ++pairs;
+            }
+    if (pairs != 1) return false;
+    const Eigen::Vector3d& o = pos[static_cast<size_t>(i)];
+    auto angle = [&](int a, int b) {
+        return angle_deg(pos[static_cast<size_t>(a)] - o, pos[static_cast<size_t>(b)] - o);
+    };
+    const double threshold = opt.angle_worst * 2.0 / 3.0;
+    for (const Neighbor& x : nbs) {
+        if (x.atom == r1 || x.atom == r2) continue;
+        const double a1 = angle(x.atom, r1), a2 = angle(x.atom, r2), tilt = std::fabs(a1 - a2);
+        if (tilt > threshold) {
+            const double ratio = tilt / threshold;
+            out.findings.push_back(
+                {"geometry", {i + 1},
+                 fmt::format("{} ({}, in a ring of {}): {} leans toward {}: {}-{}-{} {:.1f} and {}-{}-{} {:.1f} "
+                             "degrees, nearly equal when it bisects the two ring bonds",
+                             label(m, i), c.axe, rings.ring_through(r1, i, r2, 4).size(), label(m, x.atom),
+                             label(m, a1 < a2 ? r1 : r2), label(m, x.atom), label(m, i), label(m, r1), a1,
+                             label(m, x.atom), label(m, i), label(m, r2), a2),
+                 a1, a2, "degrees", severity_of(ratio), ratio});
+            return true;
+        }
+    }
+    for (const PredictedAngle& p : c.angles) {
+        if (p.a == r1 || p.a == r2 || p.b == r1 || p.b == r2) continue;
+        if (skeleton.bond_between(i, p.a) < 0 || skeleton.bond_between(i, p.b) < 0) continue;
+        const double measured = angle(p.a, p.b), dev = p.degrees - measured;
+        if (dev > threshold) {
+            const double ratio = dev / threshold;
+            out.findings.push_back(
+                {"geometry", {i + 1},
+                 fmt::format("{} ({}, in a ring of {}): {}-{}-{} is {:.1f} degrees, closed below the predicted "
+                             "{:.1f} (the ring opens it)", label(m, i),
+                             c.axe, rings.ring_through(r1, i, r2, 4).size(), label(m, p.a), label(m, i),
+                             label(m, p.b), measured, p.degrees),
+                 measured, p.degrees, "degrees", severity_of(ratio), ratio});
+            return true;
+        }
+    }
+    return false;
+}
+
 // Step 2, one centre: a tetrahedral centre drawn flat. True when that is a finding.
 bool flat_tetrahedron_finding(Audit& out, const Molecule& m, const Molecule& skeleton,
                               const std::vector<Eigen::Vector3d>& pos, const CentreDomains& c, int i) {
@@ -785,7 +848,11 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
                                    pos, opt);
                 continue;
             }
-            if (c.bonded < 2 || c.angles.empty() || rings.atom_in_ring(i, 4)) continue;
+            if (c.bonded < 2 || c.angles.empty()) continue;
+            if (rings.atom_in_ring(i, 4)) {
+                small_ring_centre_finding(out, m, skeleton, pos, c, i, rings, opt);
+                continue;
+            }
             if (angle_opened_by_neighbours(skeleton, i, c)) continue;
             // Two unpaired electrons (a triplet carbene) count as a lone pair in the Lewis structure: no prediction.
             if (valence.unpaired[static_cast<size_t>(i)] >= 2) continue;

@@ -65,7 +65,7 @@ LIGHT = {"H", "B", "C", "N", "O", "F"}
 # check does not judge (in three- or four-membered rings, O on P or S) or where the model's own angle is 5 degrees or
 # more off (SF4, SO2Cl2, CH2).
 MINIMUM = {"bond +0.15 A": 0.95, "bond -0.15 A": 0.95, "bond +0.3 A": 1.0, "bond -0.3 A": 1.0,
-           "heavier-atom bond +0.3 A": 1.0, "heavier-atom bond -0.3 A": 1.0, "angle 20 deg": 0.92,
+           "heavier-atom bond +0.3 A": 1.0, "heavier-atom bond -0.3 A": 1.0, "angle 20 deg": 0.96,
            "overlap": 1.0, "missing H": 0.98, "inverted stereocentre": 1.0, "flattened centre": 0.99,
            "puckered ring": 1.0}
 FIX_KINDS = ["bond +0.15 A", "bond -0.15 A", "bond +0.3 A", "bond -0.3 A", "heavier-atom bond +0.3 A",
