@@ -117,6 +117,17 @@ TEST(CheckMetals, LigandsAreClosedShellAndTheMetalTakesTheRest) {
     EXPECT_EQ(f.structure.molecule.atoms[10].charge, 2);
 }
 
+TEST(CheckMetals, AnAlkylideneCarbonCutOffItsMetalIsADianionNotARadical) {
+    // A ruthenium methylidene with two chlorides and two phosphines, built by repel and read back from XYZ: the CH2
+    // cut off the metal is CH2(2-) (the ionic model's alkylidene, as O2- is its oxo), not CH2- with an unpaired
+    // electron; the metal is Ru(IV), as the build has it.
+    const Audit a = audit_structure(built("C=[Ru](Cl)(Cl)([P](C)(C)C)[P](C)(C)C"));
+    for (const Finding& f : a.findings) EXPECT_NE(f.kind, "radical") << f.message;
+    EXPECT_EQ(a.structure.molecule.atoms[0].charge, -2);
+    EXPECT_EQ(only_metal(a).oxidation_state, 4);
+    EXPECT_EQ(a.multiplicity, 1);
+}
+
 TEST(CheckMetals, TetrahedralPlatinumIsAGeometryFindingAtPlatinum) {
     ReadStructure r = built(kCisplatin);
     const int donors[] = {0, 2, 3, 4};

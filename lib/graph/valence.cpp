@@ -65,7 +65,7 @@ std::vector<ValenceState> valence_states(int z) {
 std::vector<ValenceState> donor_valence_states(int z) {
     std::vector<ValenceState> s = valence_states(z);
     const int g = element(z).group;
-    if (g == 15 || g == 16) {
+    if (g == 14 || g == 15 || g == 16) {
         const int octet = 18 - g;  // neutral octet valence: N 3, O 2
         for (int k = 2; k <= octet; ++k) s.push_back({octet - k, -k});
     }

@@ -97,8 +97,8 @@ struct ValenceState {
 std::vector<ValenceState> valence_states(int z);
 
 // The states of an atom cut off a metal (ionic model): valence_states, then the closed-shell anions a ligand donor can
-// be beyond it (oxo and sulfido O2- S2-, imido and nitrido N2- N3-, phosphido P2- P3-; common practice of the ionic
-// model), one charge step at a time.
+// be beyond it (oxo and sulfido O2- S2-, imido and nitrido N2- N3-, phosphido P2- P3-, alkylidene and alkylidyne
+// carbon CR2(2-) CR(3-); common practice of the ionic model), one charge step at a time.
 std::vector<ValenceState> donor_valence_states(int z);
 
 }  // namespace repel
