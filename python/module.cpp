@@ -505,8 +505,9 @@ PYBIND11_MODULE(repel, m) {
         "repel: 3D structures from SMILES and single-centre formulas by electron-domain repulsion.\n\n"
         "build(text) gives a Structure (elements, numpy positions in Angstrom, bonds, charge, multiplicity, warnings)\n"
         "that writes the same XYZ, SDF, PDB or JSON text as `repel build`; shape(text) gives the electron-domain\n"
-        "analysis of `repel shape --json`; check(path, Structure or ase.Atoms) audits structures built elsewhere, as\n"
-        "`repel check`. Atom indices are 0-based everywhere in this module (the files it writes\n"
+        "analysis of `repel shape --json`; build_many(records, threads=N) builds many on worker threads and yields a\n"
+        "Structure or a Failure per record, in order; check(path, Structure or ase.Atoms) audits structures built\n"
+        "elsewhere, as `repel check` (fix=True also cleans them). Atom indices are 0-based everywhere in this module (the files it writes\n"
         "keep their formats' own numbering). Errors: InputError (a ValueError) for input that cannot be read or\n"
         "built, UnsupportedError (a RuntimeError) for what repel cannot build yet.";
     m.attr("__version__") = repel::python::version();

@@ -140,3 +140,16 @@ def test_check_smiles_names_the_molecule_meant(tmp_path):
     assert same["error"] is None
     [other] = repel.check(path, smiles="FCl")  # not the molecule in the file: a finding or an error says so
     assert other["error"] is not None or len(other["findings"]) > len(same["findings"])
+
+
+def test_a_library_written_is_the_command_lines_file(tmp_path):
+    # The README's example: the stock list through build_many, written as one SD file, is byte for byte what
+    # `repel build -i samples/halide-lab.smi -o FILE` writes (an SD file is its records one after another).
+    out = tmp_path / "cli.sdf"
+    subprocess.run([REPEL_EXE, "build", "-i", str(SOURCE_DIR / "samples" / "halide-lab.smi"), "-o", str(out)],
+                   check=True, capture_output=True)
+    results = list(repel.build_many(lab_records(), threads=2))
+    assert all(results)
+    assert "".join(s.to_text("sdf") for s in results).encode() == out.read_bytes()
+    checked = repel.check(out)
+    assert len(checked) == len(results) and all(r["error"] is None for r in checked)
