@@ -155,6 +155,9 @@ void add_structure(py::module_& m) {
             "name", [](const Built& b) { return b.name.empty() ? py::object(py::none()) : py::object(py::str(b.name)); },
             "The name given to build(), or None.")
         .def("__len__", [](const Built& b) { return b.numbers.size(); }, "The number of atoms.")
+        .def(
+            "__bool__", [](const Built&) { return true; },
+            "Always True (a Failure of build_many() is False), whatever the number of atoms.")
         .def("__repr__",
              [](const Built& b) {
                  return "<repel.Structure " + b.title + ": " + std::to_string(b.numbers.size()) + " atoms, charge " +

@@ -41,6 +41,7 @@ def test_results_in_input_order_with_failures_in_place():
     assert out[6].name is None and len(out[6]) == 5
     assert (out[7].error, out[7].text) == ("TypeError", "b'O'")
     assert "repel.Failure 1" in repr(bad)
+    assert all(bool(s) for s in out if isinstance(s, repel.Structure))  # a Structure is always True
 
 
 def test_same_as_build_for_every_record():
