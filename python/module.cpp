@@ -242,7 +242,14 @@ public:
 
     py::object next() {
         if (position_ == slots_.size()) fill();
-        if (slots_.empty()) throw py::stop_iteration();
+        if (slots_.empty()) {
+            if (pending_) {  // the iterable's own error, raised after every record it gave before it
+                py::error_already_set e = std::move(*pending_);
+                pending_.reset();
+                throw e;
+            }
+            throw py::stop_iteration();
+        }
         Slot& slot = slots_[position_++];
         const size_t index = first_ + position_ - 1;
         if (slot.outcome.built) return py::cast(std::move(*slot.outcome.built));
@@ -280,9 +287,8 @@ private:
                                         0};
                 return slot;
             }
-        } catch (py::error_already_set& e) {  // a str that is not valid UTF-8 (a lone surrogate)
-            slot.outcome.failure = {py::str(e.type().attr("__name__")).cast<std::string>(),
-                                    py::str(e.value()).cast<std::string>(), 0};
+        } catch (const py::cast_error&) {  // a str with a lone surrogate, which UTF-8 cannot hold
+            slot.outcome.failure = {"UnicodeEncodeError", "the text is not valid Unicode (a lone surrogate)", 0};
             return slot;
         }
         slot.valid = true;
@@ -296,7 +302,7 @@ private:
         while (!done_ && slots_.size() < chunk_) {
             PyObject* item = PyIter_Next(source_.ptr());
             if (item == nullptr) {
-                if (PyErr_Occurred()) throw py::error_already_set();  // the iterable's own error, as Python's for
+                if (PyErr_Occurred()) pending_.emplace();  // kept (and cleared) until this chunk is handed out
                 done_ = true;
                 break;
             }
@@ -323,6 +329,7 @@ private:
     size_t position_ = 0;
     size_t first_ = 0;  // the index of slots_[0] in the whole stream
     bool done_ = false;
+    std::optional<py::error_already_set> pending_;
 };
 
 void add_build_many(py::module_& m) {
@@ -355,7 +362,9 @@ void add_build_many(py::module_& m) {
         "build_many",
         [](const py::iterable& records, std::optional<int> threads, bool refine, const std::string& notation,
            std::optional<int> multiplicity, std::optional<int> charge) {
-            if (threads && *threads < 1) throw py::value_error("threads must be at least 1 (or None: every core)");
+            // At most 1024: a chunk holds 16 records per thread, and each thread is a real one.
+            if (threads && (*threads < 1 || *threads > 1024))
+                throw py::value_error("threads must be from 1 to 1024 (or None: every core)");
             const unsigned n = threads ? static_cast<unsigned>(*threads) : std::max(1U, std::thread::hardware_concurrency());
             return BuildMany(py::iter(records), build_settings(refine, notation, multiplicity, charge), n);
         },

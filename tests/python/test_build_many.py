@@ -79,8 +79,10 @@ def test_keyword_arguments_apply_to_every_record():
 
 
 def test_bad_arguments():
-    with pytest.raises(ValueError):
+    with pytest.raises(ValueError, match="threads must be from 1 to 1024"):
         repel.build_many(["O"], threads=0)
+    with pytest.raises(ValueError):
+        repel.build_many(["O"], threads=100_000)
     with pytest.raises(TypeError):
         repel.build_many(5)
     with pytest.raises(TypeError):
@@ -90,8 +92,15 @@ def test_bad_arguments():
         yield "O"
         raise KeyError("the iterable's own error")
 
-    with pytest.raises(KeyError):
-        list(repel.build_many(broken()))
+    # The iterable's own error ends the stream, after every record it gave before it.
+    stream = repel.build_many(broken())
+    assert next(stream).elements == ["O", "H", "H"]
+    with pytest.raises(KeyError, match="the iterable's own error"):
+        next(stream)
+    with pytest.raises(StopIteration):
+        next(stream)
+    [u] = repel.build_many(["C\ud800"])  # a lone surrogate: no UTF-8 for it
+    assert (u.error, u.index) == ("UnicodeEncodeError", 0)
 
 
 def test_build_notation():
