@@ -241,6 +241,7 @@ public:
           chunk_(std::max<size_t>(64, 16 * static_cast<size_t>(threads))) {}
 
     py::object next() {
+        if (busy_) throw py::value_error("build_many() iterator already executing (in another thread)");
         if (position_ == slots_.size()) fill();
         if (slots_.empty()) {
             if (pending_) {  // the iterable's own error, raised after every record it gave before it
@@ -295,7 +296,19 @@ private:
         return slot;
     }
 
+    // While a chunk is filled, next() may be called again on this object: by another Python thread while the GIL is
+    // released, or by the iterable itself. Refused, as Python refuses a generator that is already running, rather
+    // than handing out a slot not yet built.
+    struct Busy {
+        bool& flag;
+        explicit Busy(bool& f) : flag(f) { flag = true; }
+        ~Busy() { flag = false; }
+        Busy(const Busy&) = delete;
+        Busy& operator=(const Busy&) = delete;
+    };
+
     void fill() {
+        const Busy busy(busy_);
         first_ += slots_.size();
         slots_.clear();
         position_ = 0;
@@ -329,6 +342,7 @@ private:
     size_t position_ = 0;
     size_t first_ = 0;  // the index of slots_[0] in the whole stream
     bool done_ = false;
+    bool busy_ = false;  // read and written with the GIL held only
     std::optional<py::error_already_set> pending_;
 };
 

@@ -3,6 +3,7 @@
 """
 import os
 import subprocess
+import threading
 from pathlib import Path
 
 import numpy as np
@@ -163,3 +164,44 @@ def test_a_library_written_is_the_command_lines_file(tmp_path):
     assert "".join(s.to_text("sdf") for s in results).encode() == out.read_bytes()
     checked = repel.check(out)
     assert len(checked) == len(results) and all(r["error"] is None for r in checked)
+
+
+def test_the_iterator_refuses_to_be_advanced_while_it_fills_a_chunk():
+    # As a running generator refuses next(): an iterable that advances the stream it feeds gets a ValueError, which
+    # ends the stream after the records before it, and no record is handed out unbuilt.
+    stream = None
+
+    def feeding():
+        yield "O"
+        next(stream)
+        yield "N"
+
+    stream = repel.build_many(feeding())
+    assert next(stream).elements == ["O", "H", "H"]
+    with pytest.raises(ValueError, match="already executing"):
+        next(stream)
+
+
+def test_two_python_threads_share_one_stream():
+    # A thread that calls next() while the other fills a chunk gets ValueError and tries again; every record is
+    # handed out once, built.
+    stream = repel.build_many(["CC(=O)Oc1ccccc1C(=O)O"] * 300, threads=1)
+    got = []
+
+    def consume():
+        while True:
+            try:
+                s = next(stream)
+            except StopIteration:
+                return
+            except ValueError:
+                continue  # the other thread is filling a chunk
+            got.append(s)
+
+    workers = [threading.Thread(target=consume) for _ in range(2)]
+    for w in workers:
+        w.start()
+    for w in workers:
+        w.join()
+    assert len(got) == 300 and all(isinstance(s, repel.Structure) for s in got)
+    assert len({s.to_text("xyz") for s in got}) == 1
