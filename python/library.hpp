@@ -1,5 +1,5 @@
-// The only place the Python module calls into the library: plain data in and out, so that module.cpp holds no
-// chemistry and this file alone changes when the module moves to the public front door header.
+// The only place the Python module calls into the library (through its front door, <repel/repel.hpp>, where that
+// offers the call): plain data in and out, so that module.cpp holds no chemistry.
 #pragma once
 
 #include <memory>
@@ -16,6 +16,7 @@ namespace repel::python {
 struct BuildRequest {
     std::string text;  // a SMILES or a single-centre formula, as `repel build TEXT`
     std::string name;  // empty: none (the writers then use the text as the title, as the command line does)
+    std::string notation = "auto";  // "auto", "smiles" or "formula" (`repel build --smiles/--formula`)
     bool refine = true;
     std::optional<int> charge;
     std::optional<int> multiplicity;
@@ -37,6 +38,24 @@ struct Built {
 
 // Throws the library's InputError (with the column) or UnsupportedError; anything else is a std::exception too.
 Built build(const BuildRequest& request);
+
+// Why one record of build_many() could not be built: the exception's type name ("InputError", "LimitError",
+// "UnsupportedError", or another), its message alone, and the 1-based column (0: not about a column).
+struct Failure {
+    std::string error;
+    std::string message;
+    int column = 0;
+};
+
+// A record of build_many(): built, or the failure (exactly one of the two).
+struct Outcome {
+    std::optional<Built> built;
+    Failure failure;
+};
+
+// build() of every request on `threads` worker threads (at least 1), results in request order; a record that
+// fails costs only itself. The results do not depend on the number of threads (each record is built alone).
+std::vector<Outcome> build_many(const std::vector<BuildRequest>& requests, unsigned threads);
 
 // The record `repel build TEXT --format F` writes, byte for byte. format: "xyz", "sdf" ("mol"), "pdb", "json" (any
 // case); InputError for another name.
@@ -74,11 +93,17 @@ struct CheckResult {
     std::vector<CheckFinding> findings;  // worst first
     std::vector<std::string> notes;
     std::string error;
+    // With CheckRequest::fix: the cleaned structure when it could be refined (none otherwise), and the one-line
+    // summary `repel check --fix` prints (why not, when not).
+    std::optional<Built> fixed;
+    std::string fix_summary;
 };
 
 struct CheckRequest {
     std::optional<int> charge;        // else the file's, else 0
     std::optional<int> multiplicity;  // else the file's, else none (unpaired electrons are findings)
+    std::string smiles;               // `repel check --smiles`: the molecule meant (bond orders, charges); empty: none
+    bool fix = false;                 // `repel check --fix`: also the cleaned structure
 };
 
 // `repel check FILE`: every structure of an .xyz, .pdb, .sdf or .mol file. Throws InputError when the file cannot be

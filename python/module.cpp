@@ -5,9 +5,12 @@
 #include <pybind11/pybind11.h>
 #include <pybind11/stl.h>
 
+#include <algorithm>
 #include <cstdint>
 #include <optional>
 #include <string>
+#include <thread>
+#include <type_traits>
 
 #include "core/error.hpp"
 #include "library.hpp"
@@ -86,6 +89,8 @@ py::dict result_dict(const repel::python::CheckResult& r) {
     }
     d["findings"] = findings;
     d["notes"] = r.notes;
+    d["fixed"] = r.fixed ? py::cast(*r.fixed) : py::object(py::none());
+    d["fix_summary"] = r.fix_summary.empty() ? py::object(py::none()) : py::object(py::str(r.fix_summary));
     return d;
 }
 
@@ -150,6 +155,9 @@ void add_structure(py::module_& m) {
             "name", [](const Built& b) { return b.name.empty() ? py::object(py::none()) : py::object(py::str(b.name)); },
             "The name given to build(), or None.")
         .def("__len__", [](const Built& b) { return b.numbers.size(); }, "The number of atoms.")
+        .def(
+            "__bool__", [](const Built&) { return true; },
+            "Always True (a Failure of build_many() is False), whatever the number of atoms.")
         .def("__repr__",
              [](const Built& b) {
                  return "<repel.Structure " + b.title + ": " + std::to_string(b.numbers.size()) + " atoms, charge " +
@@ -203,25 +211,206 @@ void add_structure(py::module_& m) {
 
 }
 
+// The keyword arguments build() and build_many() share.
+repel::python::BuildRequest build_settings(bool refine, const std::string& notation, std::optional<int> multiplicity,
+                                           std::optional<int> charge) {
+    repel::python::BuildRequest request;
+    request.refine = refine;
+    request.notation = notation;
+    request.multiplicity = multiplicity;
+    request.charge = charge;
+    return request;
+}
+
+// repel.Failure: a record of build_many() that could not be built, in its place in the stream.
+struct Failure {
+    size_t index = 0;
+    std::string text;                 // the record's text (repr() of an item that was not one)
+    std::optional<std::string> name;  // the record's name, if it had one
+    std::string error;                // the exception's type name
+    std::string message;
+    int column = 0;                   // 1-based, 0: none
+};
+
+// What build_many() returns: pulls a chunk of records from the iterable (with the GIL), builds the chunk on the
+// worker threads (without it), then hands out the results one by one, in input order.
+class BuildMany {
+public:
+    BuildMany(py::iterator source, repel::python::BuildRequest settings, unsigned threads)
+        : source_(std::move(source)), settings_(std::move(settings)), threads_(threads),
+          chunk_(std::max<size_t>(64, 16 * static_cast<size_t>(threads))) {}
+
+    py::object next() {
+        if (busy_) throw py::value_error("build_many() iterator already executing (in another thread)");
+        if (position_ == slots_.size()) fill();
+        if (slots_.empty()) {
+            if (pending_) {  // the iterable's own error, raised after every record it gave before it
+                py::error_already_set e = std::move(*pending_);
+                pending_.reset();
+                throw e;
+            }
+            throw py::stop_iteration();
+        }
+        Slot& slot = slots_[position_++];
+        const size_t index = first_ + position_ - 1;
+        if (slot.outcome.built) return py::cast(std::move(*slot.outcome.built));
+        Failure f{index, slot.request.text, slot.named ? std::optional<std::string>(slot.request.name) : std::nullopt,
+                  slot.outcome.failure.error, slot.outcome.failure.message, slot.outcome.failure.column};
+        return py::cast(std::move(f));
+    }
+
+private:
+    struct Slot {
+        repel::python::BuildRequest request;
+        bool named = false;
+        bool valid = false;  // false: the item was not a record (outcome.failure says why)
+        repel::python::Outcome outcome;
+    };
+
+    // One item of the iterable as a record: a str, or a (text, name) pair with name a str or None.
+    Slot slot_of(const py::handle& item) const {
+        Slot slot;
+        slot.request = settings_;
+        try {
+            if (py::isinstance<py::str>(item)) {
+                slot.request.text = item.cast<std::string>();
+            } else if (py::isinstance<py::tuple>(item) && py::len(item) == 2 &&
+                       py::isinstance<py::str>(item[py::int_(0)]) &&
+                       (item[py::int_(1)].is_none() || py::isinstance<py::str>(item[py::int_(1)]))) {
+                slot.request.text = item[py::int_(0)].cast<std::string>();
+                slot.named = !item[py::int_(1)].is_none();
+                if (slot.named) slot.request.name = item[py::int_(1)].cast<std::string>();
+            } else {
+                slot.request.text = py::repr(item).cast<std::string>();
+                slot.outcome.failure = {"TypeError",
+                                        std::string("a record is a str or a (text, name) tuple, not ") +
+                                            py::str(py::type::handle_of(item).attr("__name__")).cast<std::string>(),
+                                        0};
+                return slot;
+            }
+        } catch (const py::cast_error&) {  // a str with a lone surrogate, which UTF-8 cannot hold
+            slot.outcome.failure = {"UnicodeEncodeError", "the text is not valid Unicode (a lone surrogate)", 0};
+            return slot;
+        }
+        slot.valid = true;
+        return slot;
+    }
+
+    // While a chunk is filled, next() may be called again on this object: by another Python thread while the GIL is
+    // released, or by the iterable itself. Refused, as Python refuses a generator that is already running, rather
+    // than handing out a slot not yet built.
+    struct Busy {
+        bool& flag;
+        explicit Busy(bool& f) : flag(f) { flag = true; }
+        ~Busy() { flag = false; }
+        Busy(const Busy&) = delete;
+        Busy& operator=(const Busy&) = delete;
+    };
+
+    void fill() {
+        const Busy busy(busy_);
+        first_ += slots_.size();
+        slots_.clear();
+        position_ = 0;
+        while (!done_ && slots_.size() < chunk_) {
+            PyObject* item = PyIter_Next(source_.ptr());
+            if (item == nullptr) {
+                if (PyErr_Occurred()) pending_.emplace();  // kept (and cleared) until this chunk is handed out
+                done_ = true;
+                break;
+            }
+            slots_.push_back(slot_of(py::reinterpret_steal<py::object>(item)));
+        }
+        std::vector<repel::python::BuildRequest> requests;
+        for (const Slot& slot : slots_)
+            if (slot.valid) requests.push_back(slot.request);
+        std::vector<repel::python::Outcome> outcomes;
+        {
+            py::gil_scoped_release release;
+            outcomes = repel::python::build_many(requests, threads_);
+        }
+        size_t k = 0;
+        for (Slot& slot : slots_)
+            if (slot.valid) slot.outcome = std::move(outcomes[k++]);
+    }
+
+    py::iterator source_;
+    repel::python::BuildRequest settings_;
+    unsigned threads_;
+    size_t chunk_;
+    std::vector<Slot> slots_;
+    size_t position_ = 0;
+    size_t first_ = 0;  // the index of slots_[0] in the whole stream
+    bool done_ = false;
+    bool busy_ = false;  // read and written with the GIL held only
+    std::optional<py::error_already_set> pending_;
+};
+
+void add_build_many(py::module_& m) {
+    py::class_<Failure>(m, "Failure",
+                        "A record of build_many() that could not be built, yielded in its place. False in a boolean\n"
+                        "context, so `[s for s in repel.build_many(...) if s]` keeps the structures.")
+        .def_readonly("index", &Failure::index, "0-based position of the record in the input (int).")
+        .def_readonly("text", &Failure::text, "The record's text (str; repr() of an item that was not a record).")
+        .def_readonly("name", &Failure::name, "The record's name (str), or None.")
+        .def_readonly("error", &Failure::error,
+                      "The type name of the error: 'InputError', 'LimitError' (a size or time limit),\n"
+                      "'UnsupportedError', 'TypeError' (an item that was not a str or a (text, name) tuple), ...")
+        .def_readonly("message", &Failure::message, "Why, one line (atoms named from 1, as on the command line).")
+        .def_property_readonly(
+            "column",
+            [](const Failure& f) { return f.column > 0 ? py::object(py::int_(f.column)) : py::object(py::none()); },
+            "1-based column of text where reading stopped, or None.")
+        .def("__bool__", [](const Failure&) { return false; })
+        .def("__repr__", [](const Failure& f) {
+            return "<repel.Failure " + std::to_string(f.index) + " " + py::repr(py::str(f.text)).cast<std::string>() +
+                   ": " + f.error + ": " + f.message + ">";
+        });
+
+    py::class_<BuildMany>(m, "BuildMany",
+                          "The iterator build_many() returns: yields a Structure or a Failure per record, in input order.")
+        .def("__iter__", [](py::object self) { return self; })
+        .def("__next__", &BuildMany::next);
+
+    m.def(
+        "build_many",
+        [](const py::iterable& records, std::optional<int> threads, bool refine, const std::string& notation,
+           std::optional<int> multiplicity, std::optional<int> charge) {
+            // At most 1024: a chunk holds 16 records per thread, and each thread is a real one.
+            if (threads && (*threads < 1 || *threads > 1024))
+                throw py::value_error("threads must be from 1 to 1024 (or None: every core)");
+            const unsigned n = threads ? static_cast<unsigned>(*threads) : std::max(1U, std::thread::hardware_concurrency());
+            return BuildMany(py::iter(records), build_settings(refine, notation, multiplicity, charge), n);
+        },
+        py::arg("records"), py::kw_only(), py::arg("threads") = py::none(), py::arg("refine") = true,
+        py::arg("notation") = "auto", py::arg("multiplicity") = py::none(), py::arg("charge") = py::none(),
+        "Builds many species on worker threads and yields the results in input order, one per record: a Structure,\n"
+        "or a Failure (index, text, name, error, message, column) for a record that could not be built, so that no\n"
+        "record is lost.\n\n"
+        "records: any iterable of str (a SMILES or formula) or (text, name) tuples (name a str or None); it is read\n"
+        "a chunk at a time, so a generator of millions of records is fine. threads: worker threads (default: every\n"
+        "core); the results are the same for any number. refine, notation, multiplicity, charge: as build(), for\n"
+        "every record. The GIL is released while a chunk is built. An exception raised by the iterable itself\n"
+        "propagates.");
+}
+
 void add_build_and_shape(py::module_& m) {
     m.def(
         "build",
-        [](const py::str& text, const std::optional<std::string>& name, bool refine, std::optional<int> multiplicity,
-           std::optional<int> charge) {
-            repel::python::BuildRequest request;
+        [](const py::str& text, const std::optional<std::string>& name, bool refine, const std::string& notation,
+           std::optional<int> multiplicity, std::optional<int> charge) {
+            repel::python::BuildRequest request = build_settings(refine, notation, multiplicity, charge);
             request.text = text.cast<std::string>();
             request.name = name.value_or("");
-            request.refine = refine;
-            request.multiplicity = multiplicity;
-            request.charge = charge;
             return call_library(request.text, [&] { return repel::python::build(request); });
         },
         py::arg("text"), py::kw_only(), py::arg("name") = py::none(), py::arg("refine") = true,
-        py::arg("multiplicity") = py::none(), py::arg("charge") = py::none(),
+        py::arg("notation") = "auto", py::arg("multiplicity") = py::none(), py::arg("charge") = py::none(),
         "Builds the 3D structure of one species, as `repel build TEXT`.\n\n"
         "text: a SMILES (OpenSMILES) or a single-centre formula ('XeF4', 'SO4 2-'); implicit hydrogens are added.\n"
         "name: the title written in files (default: the text). refine: run the whole-molecule refinement (default\n"
-        "True). multiplicity: the spin multiplicity to write instead of the domain analysis's (checked against the\n"
+        "True). notation: 'auto' (SMILES, else a formula), 'smiles' or 'formula' (as `repel build --smiles/--formula`).\n"
+        "multiplicity: the spin multiplicity to write instead of the domain analysis's (checked against the\n"
         "electron count). charge: the total charge expected; it must equal the sum of the written formal charges.\n"
         "Returns a Structure (atom indices 0-based). Raises InputError (with .column) for input that cannot be read\n"
         "or built, an empty text included; UnsupportedError for what cannot be built yet; TypeError for arguments of\n"
@@ -245,13 +434,32 @@ void add_build_and_shape(py::module_& m) {
 
 }
 
+// A value from a user's object as T, or a TypeError saying what was expected (pybind11's own cast error does not).
+template <typename T>
+T cast_or_type_error(const py::handle& value, const char* expected) {
+    if constexpr (std::is_base_of_v<py::array, T>) {
+        T out = T::ensure(value);  // null (and the Python error cleared) when numpy cannot convert it
+        if (out) return out;
+    } else {
+        try {
+            return value.cast<T>();
+        } catch (const py::cast_error&) {
+        }
+    }
+    throw py::type_error(std::string(expected) + ", not " +
+                         py::str(py::type::handle_of(value).attr("__name__")).cast<std::string>());
+}
+
 void add_check(py::module_& m) {
     m.def(
         "check",
-        [](const py::object& source, std::optional<int> charge, std::optional<int> multiplicity) {
+        [](const py::object& source, std::optional<int> charge, std::optional<int> multiplicity,
+           const std::optional<std::string>& smiles, bool fix) {
             repel::python::CheckRequest request;
             request.charge = charge;
             request.multiplicity = multiplicity;
+            request.smiles = smiles.value_or("");
+            request.fix = fix;
             py::list out;
             if (py::isinstance<Built>(source) || (py::hasattr(source, "get_atomic_numbers") &&
                                                   py::hasattr(source, "get_positions"))) {
@@ -266,16 +474,20 @@ void add_check(py::module_& m) {
                     if (!request.charge) request.charge = b.charge;
                     if (!request.multiplicity) request.multiplicity = b.multiplicity;
                 } else {  // an ase.Atoms, or anything with the same two methods
-                    numbers = source.attr("get_atomic_numbers")().cast<std::vector<int>>();
-                    py::array_t<double, py::array::c_style | py::array::forcecast> p(source.attr("get_positions")());
+                    numbers = cast_or_type_error<std::vector<int>>(source.attr("get_atomic_numbers")(),
+                                                                   "get_atomic_numbers() must give integers");
+                    const auto p = cast_or_type_error<py::array_t<double, py::array::c_style | py::array::forcecast>>(
+                        source.attr("get_positions")(), "get_positions() must give an (n, 3) array of numbers");
                     if (p.ndim() != 2 || p.shape(1) != 3 || static_cast<size_t>(p.shape(0)) != numbers.size())
                         throw py::value_error("get_positions() must give one row of x, y, z per atom");
                     positions.assign(p.data(), p.data() + p.size());
                     if (py::hasattr(source, "info")) {
                         py::dict info = source.attr("info");
-                        if (!request.charge && info.contains("charge")) request.charge = info["charge"].cast<int>();
+                        if (!request.charge && info.contains("charge"))
+                            request.charge = cast_or_type_error<int>(info["charge"], "info['charge'] must be an int");
                         if (!request.multiplicity && info.contains("multiplicity"))
-                            request.multiplicity = info["multiplicity"].cast<int>();
+                            request.multiplicity =
+                                cast_or_type_error<int>(info["multiplicity"], "info['multiplicity'] must be an int");
                         if (info.contains("name")) title = py::str(info["name"]).cast<std::string>();
                     }
                 }
@@ -292,18 +504,24 @@ void add_check(py::module_& m) {
             return out;
         },
         py::arg("source"), py::kw_only(), py::arg("charge") = py::none(), py::arg("multiplicity") = py::none(),
+        py::arg("smiles") = py::none(), py::arg("fix") = false,
         "Audits structures built elsewhere, as `repel check`: the electron-domain analysis applied to the measured\n"
         "coordinates, bond lengths, contacts, neighbours, valences and charge.\n\n"
         "source: a file path (str or os.PathLike; .xyz, .pdb, .sdf, .mol: every structure in it), a Structure, or\n"
         "an ase.Atoms (bonds are perceived from the coordinates; info['charge'] and info['multiplicity'] are used\n"
         "when present). charge, multiplicity: as `repel check --charge/--multiplicity` (else the file's or the\n"
-        "object's; the charge else 0; without a multiplicity unpaired electrons are findings).\n"
+        "object's; the charge else 0; without a multiplicity unpaired electrons are findings). smiles: the molecule\n"
+        "the structure is meant to be, as `repel check --smiles` (its bond orders and charges are used). fix: also\n"
+        "clean each structure, as `repel check --fix` (the refinement from the given coordinates, stereochemistry\n"
+        "kept).\n"
         "Returns a list with one dict per structure: title, line (1-based line of the file where it starts, 0 for\n"
         "objects), error (None, or why it could not be audited), charge, multiplicity, notes, and findings, worst\n"
         "first, each a dict: kind, atoms (0-based indices, the atom the finding is about first), message (one line;\n"
         "it numbers atoms from 1, as the command line does), measured, expected (float or None), unit ('degrees',\n"
-        "'angstrom' or ''), severity ('warning' or 'error'). Raises OSError for a file that cannot be opened,\n"
-        "InputError for one that cannot be read (an unknown extension, a malformed line).");
+        "'angstrom' or ''), severity ('warning' or 'error'); and fixed, fix_summary: with fix=True the cleaned\n"
+        "Structure (None when it could not be cleaned) and the one-line summary `repel check --fix` prints (None\n"
+        "without fix). Raises OSError for a file that cannot be opened, InputError for one that cannot be read (an\n"
+        "unknown extension, a malformed line).");
 }
 
 }  // namespace
@@ -313,8 +531,9 @@ PYBIND11_MODULE(repel, m) {
         "repel: 3D structures from SMILES and single-centre formulas by electron-domain repulsion.\n\n"
         "build(text) gives a Structure (elements, numpy positions in Angstrom, bonds, charge, multiplicity, warnings)\n"
         "that writes the same XYZ, SDF, PDB or JSON text as `repel build`; shape(text) gives the electron-domain\n"
-        "analysis of `repel shape --json`; check(path, Structure or ase.Atoms) audits structures built elsewhere, as\n"
-        "`repel check`. Atom indices are 0-based everywhere in this module (the files it writes\n"
+        "analysis of `repel shape --json`; build_many(records, threads=N) builds many on worker threads and yields a\n"
+        "Structure or a Failure per record, in order; check(path, Structure or ase.Atoms) audits structures built\n"
+        "elsewhere, as `repel check` (fix=True also cleans them). Atom indices are 0-based everywhere in this module (the files it writes\n"
         "keep their formats' own numbering). Errors: InputError (a ValueError) for input that cannot be read or\n"
         "built, UnsupportedError (a RuntimeError) for what repel cannot build yet.";
     m.attr("__version__") = repel::python::version();
@@ -322,5 +541,6 @@ PYBIND11_MODULE(repel, m) {
     add_exceptions(m);
     add_structure(m);
     add_build_and_shape(m);
+    add_build_many(m);
     add_check(m);
 }

@@ -129,6 +129,16 @@ TEST(FrontDoor, ReadCheckAndWrite) {
     ASSERT_FALSE(bad.findings.empty());
     EXPECT_TRUE(bad.findings[0].error);
 
+    // clean() mends the stretched bond as `repel check --fix` does (check/clean.hpp): same atoms, refined, and
+    // the cleaned structure passes the audit; a clean structure is returned as it is.
+    const CleanedStructure mended = clean(bad);
+    EXPECT_TRUE(mended.refined) << mended.summary;
+    EXPECT_EQ(mended.structure.molecule.atom_count(), 9);
+    EXPECT_GT(mended.rms_shift, 0.0);
+    EXPECT_TRUE(check(mended.structure).findings.empty()) << check_text(check(mended.structure));
+    EXPECT_EQ(clean(check(ethanol)).rms_shift, 0.0);
+    EXPECT_THROW((void)clean(CheckResult{}), std::invalid_argument);
+
     // Files: two records written as one SD file, read and checked from the file.
     const std::string path = (std::filesystem::temp_directory_path() / "repel_front_door_test.sdf").string();
     {

@@ -4,6 +4,7 @@
 #include <string>
 
 #include "core/error.hpp"
+#include "core/limits.hpp"
 #include "input/species.hpp"
 
 using namespace repel;
@@ -32,4 +33,12 @@ TEST(Species, ErrorFollowsTheNotationTheTextLooksLike) {
     EXPECT_NE(error_of("CC(C").find("("), std::string::npos);
     EXPECT_NE(error_of("CH5").find("formula"), std::string::npos);        // a formula with no Lewis structure
     EXPECT_NE(error_of("C2H6").find("SMILES"), std::string::npos);        // a chain: says to give SMILES
+}
+
+TEST(Species, ALimitStaysALimitError) {
+    // Past the reader's atom limit (core/limits.hpp) the text is too large, not a formula: the SMILES reader's
+    // LimitError comes out whole, not sliced to an InputError after a second read as a formula.
+    const std::string huge(static_cast<size_t>(kMaxAtoms) + 1, 'C');
+    EXPECT_THROW(read_species(huge), LimitError);
+    EXPECT_THROW(read_species(huge, Notation::smiles), LimitError);
 }

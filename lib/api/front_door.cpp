@@ -5,6 +5,7 @@
 #include <fstream>
 #include <sstream>
 
+#include "check/clean.hpp"
 #include "check/report.hpp"
 #include "core/limits.hpp"
 #include "domains/metal.hpp"
@@ -245,6 +246,13 @@ std::vector<CheckResult> check_file(const std::string& path, const CheckSettings
 std::string check_text(const CheckResult& result, int index) {
     if (!result.detail) throw std::invalid_argument("check_text: a CheckResult that check() did not make");
     return audit_text(result.detail->audit, index);
+}
+
+CleanedStructure clean(const CheckResult& result, double time_limit) {
+    if (!result.detail) throw std::invalid_argument("clean: a CheckResult that check() did not make");
+    const ScopedDeadline deadline(time_limit);
+    CleanResult c = clean_structure(result.detail->audit);
+    return {std::move(c.structure), c.refined, c.rms_shift, std::move(c.summary)};
 }
 
 std::string write(const Structure& structure, WriteFormat format, const std::string& title) {

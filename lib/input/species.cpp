@@ -3,6 +3,7 @@
 #include <cctype>
 
 #include "core/error.hpp"
+#include "core/limits.hpp"
 #include "input/formula.hpp"
 #include "input/smiles.hpp"
 
@@ -39,6 +40,8 @@ Molecule read_species(std::string_view text, Notation notation) {
     if (notation == Notation::formula) return read_formula(text);
     try {
         return read_smiles(text);
+    } catch (const LimitError&) {
+        throw;  // a limit says the text is too large, not that it is no SMILES: no formula either, and no slicing
     } catch (const InputError& smiles_error) {
         try {
             return read_formula(text);

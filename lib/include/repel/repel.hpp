@@ -162,6 +162,19 @@ std::vector<CheckResult> check_file(const std::string& path, const CheckSettings
 // The audit as text for a person (what `repel check` prints for structure number `index`, 1-based).
 std::string check_text(const CheckResult& result, int index = 1);
 
+// The cleaned structure `repel check --fix` writes: the whole-molecule refinement started from the audited
+// coordinates, keeping the structure's stereochemistry.
+struct CleanedStructure {
+    Structure structure;   // same atoms in the same order; refined positions when refined is true
+    bool refined = false;  // false: a finding relaxation cannot mend (an overlap, a charge...), said in summary
+    double rms_shift = 0;  // Angstrom, RMS movement of the atoms
+    std::string summary;   // one line for a person
+};
+
+// Cleans one audited structure (a CheckResult that check() made); time_limit seconds (0: none), past it a
+// LimitError.
+CleanedStructure clean(const CheckResult& result, double time_limit = 60);
+
 // ---- Writing --------------------------------------------------------------------------------------------------
 
 enum class WriteFormat { xyz, pdb, sdf, json };
