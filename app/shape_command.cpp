@@ -9,8 +9,6 @@
 #include "commands.hpp"
 #include "core/error.hpp"
 #include "input/records.hpp"
-#include "output/picture.hpp"
-#include "output/shape_report.hpp"
 
 namespace repel::app {
 
@@ -27,15 +25,13 @@ int run_shape(const ShapeArgs& args) {
         Molecule mol = read_molecule(text, settings);
         settings.polyhedra = metal_options(args.polyhedra).polyhedra;
         const Shape result = shape(std::move(mol), settings);
-        const Molecule& m = result.molecule;
-        const MoleculeDomains& d = result.detail->domains;
         const std::string title = name.empty() ? text : name;
-        if (doc) *doc = shape_json(m, d, title);
-        if (table) *table = shape_table(m, d, title);
+        if (doc) *doc = shape_json_object(result, title);
+        if (table) *table = shape_text(result, title);
         if (!args.picture.empty()) {
             // The lobes need coordinates: the structure `repel build` would write, with this analysis's directions.
-            const Structure built = build(m);
-            picture = shape_picture_svg(built, d, title, args.picture_hydrogens);
+            const Structure built = build(result.molecule);
+            picture = shape_picture(result, built, title, args.picture_hydrogens);
         }
     };
     if (args.input_file.empty()) {

@@ -5,10 +5,13 @@
 #include <fstream>
 #include <sstream>
 
+#include "check/clean.hpp"
 #include "check/report.hpp"
+#include "check/report_page.hpp"
 #include "core/limits.hpp"
 #include "domains/metal.hpp"
 #include "input/sd_molecule.hpp"
+#include "output/picture.hpp"
 #include "output/shape_report.hpp"
 #include "output/writer.hpp"
 
@@ -130,10 +133,12 @@ std::string shape_text(const Shape& shape, const std::string& title) {
     return shape_table(shape.molecule, shape.detail->domains, title);
 }
 
-std::string shape_json_text(const Shape& shape, const std::string& title) {
-    if (!shape.detail) throw std::invalid_argument("shape_json_text: a Shape that shape() did not make");
-    return shape_json(shape.molecule, shape.detail->domains, title).dump(2) + "\n";
+nlohmann::json shape_json_object(const Shape& shape, const std::string& title) {
+    if (!shape.detail) throw std::invalid_argument("shape_json_object: a Shape that shape() did not make");
+    return shape_json(shape.molecule, shape.detail->domains, title);
 }
+
+std::string shape_json_text(const Shape& shape, const std::string& title) { return shape_json_object(shape, title).dump(2) + "\n"; }
 
 ReadStructure read_structure_of(const StructureRecord& record) {
     ReadStructure r;
@@ -173,8 +178,7 @@ InputFormat input_format(FileFormat format) {
     }
 }
 
-std::vector<ReadStructure> read_file(const std::string& path) {
-    const InputFormat format = input_format_from_path(path);
+std::vector<ReadStructure> read_file(const std::string& path, InputFormat format) {
     std::ifstream in(path, std::ios::binary);
     if (!in) throw InputError("cannot open " + path);
     return read_structures(in, format);
@@ -214,7 +218,14 @@ std::vector<StructureRecord> read_structures_text(std::string_view text, FileFor
 
 std::vector<StructureRecord> read_structure_file(const std::string& path) {
     std::vector<StructureRecord> out;
-    for (ReadStructure& r : read_file(path)) out.push_back(structure_record_of(std::move(r)));
+    for (ReadStructure& r : read_file(path, input_format_from_path(path)))
+        out.push_back(structure_record_of(std::move(r)));
+    return out;
+}
+
+std::vector<StructureRecord> read_structure_file(const std::string& path, FileFormat format) {
+    std::vector<StructureRecord> out;
+    for (ReadStructure& r : read_file(path, input_format(format))) out.push_back(structure_record_of(std::move(r)));
     return out;
 }
 
@@ -238,7 +249,7 @@ CheckResult check(const Structure& structure, const CheckSettings& settings) {
 std::vector<CheckResult> check_file(const std::string& path, const CheckSettings& settings) {
     const AuditOptions options = audit_options(settings);
     std::vector<CheckResult> out;
-    for (const ReadStructure& r : read_file(path)) out.push_back(check_result_of(audit_structure(r, options)));
+    for (const ReadStructure& r : read_file(path, input_format_from_path(path))) out.push_back(check_result_of(audit_structure(r, options)));
     return out;
 }
 
@@ -247,18 +258,83 @@ std::string check_text(const CheckResult& result, int index) {
     return audit_text(result.detail->audit, index);
 }
 
+nlohmann::json check_json(const CheckResult& result) {
+    if (!result.detail) throw std::invalid_argument("check_json: a CheckResult that check() did not make");
+    return audit_json(result.detail->audit);
+}
+
+std::string check_json_text(const CheckResult& result) { return check_json(result).dump(2) + "\n"; }
+
+FixResult fix(const CheckResult& result, const CheckSettings& settings) {
+    if (!result.detail) throw std::invalid_argument("fix: a CheckResult that check() did not make");
+    FixResult out;
+    try {
+        // The audit's time limit again, for the refinement alone.
+        const ScopedDeadline deadline(settings.time_limit);
+        CleanResult c = clean_structure(result.detail->audit);
+        out.structure = std::move(c.structure);
+        out.refined = c.refined;
+        out.rms_shift = c.rms_shift;
+        out.summary = std::move(c.summary);
+    } catch (const LimitError& e) {
+        out.structure = result.structure;
+        out.refined = false;
+        out.summary = e.what();
+    }
+    return out;
+}
+
+CheckReport::CheckReport(std::string heading) : page_(std::make_unique<ReportPage>(std::move(heading))) {}
+CheckReport::~CheckReport() = default;
+CheckReport::CheckReport(CheckReport&&) noexcept = default;
+CheckReport& CheckReport::operator=(CheckReport&&) noexcept = default;
+
+void CheckReport::add(const CheckResult& result, int number, const std::string& file) {
+    if (!result.detail) throw std::invalid_argument("CheckReport::add: a CheckResult that check() did not make");
+    page_->add(result.detail->audit, number, file);
+}
+
+void CheckReport::add_failure(int number, const std::string& file, long line, const std::string& why) {
+    page_->add_failure(number, file, line, why);
+}
+
+std::string CheckReport::html() const { return page_->html(); }
+
 std::string write(const Structure& structure, WriteFormat format, const std::string& title) {
     return make_writer(write_format(format))->record(structure, title.empty() ? structure.molecule.name : title);
 }
 
-std::string write(const std::vector<Structure>& structures, WriteFormat format) {
+std::string write(const std::vector<Structure>& structures, WriteFormat format, const std::vector<std::string>& titles) {
+    if (!titles.empty() && titles.size() != structures.size())
+        throw std::invalid_argument("write: titles must be empty or one per structure");
     const auto writer = make_writer(write_format(format));
     std::string out = writer->begin();
     for (size_t k = 0; k < structures.size(); ++k) {
         if (k > 0) out += writer->separator();
-        out += writer->record(structures[k], structures[k].molecule.name);
+        out += writer->record(structures[k], titles.empty() ? structures[k].molecule.name : titles[k]);
     }
     return out + writer->end();
+}
+
+WriteFormat write_format_of(const std::string& path) {
+    switch (format_from_path(path)) {
+        case Format::pdb: return WriteFormat::pdb;
+        case Format::sdf: return WriteFormat::sdf;
+        case Format::json: return WriteFormat::json;
+        default: return WriteFormat::xyz;
+    }
+}
+
+std::string picture(const Structure& structure, const std::string& title, bool hydrogens) {
+    PictureOptions options;
+    options.title = title;
+    options.hydrogens = hydrogens;
+    return picture_svg(structure, options);
+}
+
+std::string shape_picture(const Shape& shape, const Structure& built, const std::string& title, bool hydrogens) {
+    if (!shape.detail) throw std::invalid_argument("shape_picture: a Shape that shape() did not make");
+    return shape_picture_svg(built, shape.detail->domains, title, hydrogens);
 }
 
 }  // namespace repel
