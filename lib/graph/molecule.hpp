@@ -55,6 +55,11 @@ struct Neighbor {
     int bond;  // index into Molecule::bonds
 };
 
+// `atoms` and `bonds` are public (the readers, the analysis and the tests edit atoms' and bonds' fields in place), and
+// the neighbour lists are a cache of `bonds`. The cache stays right through add_atom, add_bond, set_bonds and
+// rebuild_adjacency. A change of either vector's size made around them (a push_back, an erase, an assignment) is
+// detected: neighbors() and degree() throw std::logic_error rather than answer from a stale cache, and add_atom and
+// add_bond rebuild it first. Moving a bond's ends in place keeps the sizes and is not detected: use set_bonds().
 class Molecule {
 public:
     std::string name;
@@ -64,11 +69,16 @@ public:
     int add_atom(const Atom& atom);
     // Adds a bond and returns its index. Does not check for duplicates: readers check with bond_between() first.
     int add_bond(int a, int b, int order = 1, bool aromatic = false);
+    // Replaces every bond (a subset kept, say) and rebuilds the neighbour lists.
+    void set_bonds(std::vector<Bond> new_bonds);
 
     int atom_count() const { return static_cast<int>(atoms.size()); }
     int bond_count() const { return static_cast<int>(bonds.size()); }
-    const std::vector<Neighbor>& neighbors(int atom) const { return adjacency_[static_cast<size_t>(atom)]; }
-    int degree(int atom) const { return static_cast<int>(adjacency_[static_cast<size_t>(atom)].size()); }
+    const std::vector<Neighbor>& neighbors(int atom) const {
+        require_current_adjacency();
+        return adjacency_[static_cast<size_t>(atom)];
+    }
+    int degree(int atom) const { return static_cast<int>(neighbors(atom).size()); }
     // Index of the bond between a and b, or -1.
     int bond_between(int a, int b) const;
     // Sum of bond orders at the atom (explicit bonds only; add implicit hydrogens for the full valence).
@@ -85,11 +95,21 @@ public:
     // Connected components: for each atom its component number (0-based, numbered by first atom).
     std::vector<int> components(int* count = nullptr) const;
 
-    // Rebuilds the adjacency after bonds were edited in place or removed.
+    // Rebuilds the neighbour lists from `atoms` and `bonds` (after editing them directly).
     void rebuild_adjacency();
+    // The neighbour lists were built for the present atoms and bonds (as far as their counts tell).
+    bool adjacency_current() const {
+        return adjacency_.size() == atoms.size() && adjacency_bonds_ == bonds.size();
+    }
 
 private:
+    void require_current_adjacency() const {
+        if (!adjacency_current()) stale_adjacency();
+    }
+    [[noreturn]] void stale_adjacency() const;
+
     std::vector<std::vector<Neighbor>> adjacency_;
+    size_t adjacency_bonds_ = 0;  // bonds.size() the neighbour lists were built for
     int input_atoms_ = -1;
 };
 
