@@ -134,13 +134,13 @@ int run_build(const BuildArgs& args) {
         return 2;
     }
     BuildSettings options;
-    options.notation = text_notation(args.notation);
+    options.notation = args.notation;
     options.refine = args.refine;
     options.time_limit = args.time_limit;
     options.charge = args.charge;
     options.multiplicity = args.multiplicity;
     try {
-        options.polyhedra = metal_options(args.polyhedra).polyhedra;
+        options.polyhedra = polyhedron_choices(args.polyhedra);
     } catch (const std::exception& e) {
         std::cerr << "repel build: " << e.what() << "\n";
         return 2;

@@ -144,7 +144,7 @@ int run(int argc, char** argv) {
     }
 
     auto notation = [](bool formula, bool smiles) {
-        return formula ? repel::Notation::formula : smiles ? repel::Notation::smiles : repel::Notation::automatic;
+        return formula ? repel::TextNotation::formula : smiles ? repel::TextNotation::smiles : repel::TextNotation::automatic;
     };
     // Under mpirun every rank parses the same command line; ranks other than 0 only take part in a batch build.
     if (!root && !(cmd_build->parsed() && !build.input_file.empty())) return 0;

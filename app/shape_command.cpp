@@ -20,10 +20,10 @@ int run_shape(const ShapeArgs& args) {
     std::string picture;
     auto analyse = [&](const std::string& text, const std::string& name, nlohmann::json* doc, std::string* table) {
         BuildSettings settings;
-        settings.notation = text_notation(args.notation);
+        settings.notation = args.notation;
         settings.name = name;
         Molecule mol = read_molecule(text, settings);
-        settings.polyhedra = metal_options(args.polyhedra).polyhedra;
+        settings.polyhedra = polyhedron_choices(args.polyhedra);
         const Shape result = shape(std::move(mol), settings);
         const std::string title = name.empty() ? text : name;
         if (doc) *doc = shape_json_object(result, title);
@@ -80,8 +80,8 @@ int run_shape(const ShapeArgs& args) {
     return failed > 0 ? 1 : 0;
 }
 
-MetalOptions metal_options(const std::vector<std::string>& values) {
-    MetalOptions out;
+std::vector<std::pair<int, std::string>> polyhedron_choices(const std::vector<std::string>& values) {
+    std::vector<std::pair<int, std::string>> out;
     for (const std::string& v : values) {
         const size_t eq = v.find('=');
         int atom = 0;
@@ -99,7 +99,7 @@ MetalOptions metal_options(const std::vector<std::string>& values) {
                                          "of: {}",
                                          v, list));
         }
-        out.polyhedra.emplace_back(atom - 1, name);
+        out.emplace_back(atom - 1, name);
     }
     return out;
 }
