@@ -138,34 +138,8 @@ nlohmann::json shape_json_object(const Shape& shape, const std::string& title) {
     return shape_json(shape.molecule, shape.detail->domains, title);
 }
 
-std::string shape_json_text(const Shape& shape, const std::string& title) { return shape_json_object(shape, title).dump(2) + "\n"; }
-
-ReadStructure read_structure_of(const StructureRecord& record) {
-    ReadStructure r;
-    r.structure = record.structure;
-    r.title = record.title;
-    r.line = record.line;
-    r.has_bonds = record.has_bonds;
-    r.has_orders = record.has_orders;
-    r.has_charge = record.has_charge;
-    r.has_multiplicity = record.has_multiplicity;
-    r.needs_orders = record.needs_orders;
-    r.bond_stereo = record.bond_stereo;
-    return r;
-}
-
-StructureRecord structure_record_of(ReadStructure read) {
-    StructureRecord r;
-    r.structure = std::move(read.structure);
-    r.title = std::move(read.title);
-    r.line = read.line;
-    r.has_bonds = read.has_bonds;
-    r.has_orders = read.has_orders;
-    r.has_charge = read.has_charge;
-    r.has_multiplicity = read.has_multiplicity;
-    r.needs_orders = std::move(read.needs_orders);
-    r.bond_stereo = std::move(read.bond_stereo);
-    return r;
+std::string shape_json_text(const Shape& shape, const std::string& title) {
+    return shape_json_object(shape, title).dump(2) + "\n";
 }
 
 namespace {
@@ -178,7 +152,7 @@ InputFormat input_format(FileFormat format) {
     }
 }
 
-std::vector<ReadStructure> read_file(const std::string& path, InputFormat format) {
+std::vector<StructureRecord> read_file(const std::string& path, InputFormat format) {
     std::ifstream in(path, std::ios::binary);
     if (!in) throw InputError("cannot open " + path);
     return read_structures(in, format);
@@ -211,32 +185,25 @@ Format write_format(WriteFormat format) {
 
 std::vector<StructureRecord> read_structures_text(std::string_view text, FileFormat format) {
     std::istringstream in{std::string(text)};
-    std::vector<StructureRecord> out;
-    for (ReadStructure& r : read_structures(in, input_format(format))) out.push_back(structure_record_of(std::move(r)));
-    return out;
+    return read_structures(in, input_format(format));
 }
 
 std::vector<StructureRecord> read_structure_file(const std::string& path) {
-    std::vector<StructureRecord> out;
-    for (ReadStructure& r : read_file(path, input_format_from_path(path)))
-        out.push_back(structure_record_of(std::move(r)));
-    return out;
+    return read_file(path, input_format_from_path(path));
 }
 
 std::vector<StructureRecord> read_structure_file(const std::string& path, FileFormat format) {
-    std::vector<StructureRecord> out;
-    for (ReadStructure& r : read_file(path, input_format(format))) out.push_back(structure_record_of(std::move(r)));
-    return out;
+    return read_file(path, input_format(format));
 }
 
 CheckResult check(const StructureRecord& record, const CheckSettings& settings) {
-    return check_result_of(audit_structure(read_structure_of(record), audit_options(settings)));
+    return check_result_of(audit_structure(record, audit_options(settings)));
 }
 
 CheckResult check(const Structure& structure, const CheckSettings& settings) {
     // A structure in memory states its bonds, orders and charges (a built one does); without bonds, they are
     // perceived from the coordinates as for an XYZ file.
-    ReadStructure r;
+    StructureRecord r;
     r.structure = structure;
     r.title = structure.molecule.name;
     r.has_bonds = structure.molecule.bond_count() > 0;
@@ -249,7 +216,7 @@ CheckResult check(const Structure& structure, const CheckSettings& settings) {
 std::vector<CheckResult> check_file(const std::string& path, const CheckSettings& settings) {
     const AuditOptions options = audit_options(settings);
     std::vector<CheckResult> out;
-    for (const ReadStructure& r : read_file(path, input_format_from_path(path))) out.push_back(check_result_of(audit_structure(r, options)));
+    for (const StructureRecord& r : read_file(path, input_format_from_path(path))) out.push_back(check_result_of(audit_structure(r, options)));
     return out;
 }
 

@@ -33,8 +33,4 @@ nlohmann::json shape_json_object(const Shape& shape, const std::string& title);
 // One checked structure as the JSON object of `repel check --json` (the front end puts several in one document).
 nlohmann::json check_json(const CheckResult& result);
 
-// The library's own structure record and back.
-ReadStructure read_structure_of(const StructureRecord& record);
-StructureRecord structure_record_of(ReadStructure read);
-
 }  // namespace repel

@@ -98,18 +98,8 @@ std::string shape_json_text(const Shape& shape, const std::string& title);
 
 enum class FileFormat { xyz, pdb, sdf };
 
-// One structure as a file states it: atoms, positions, and whatever bonds, orders and charges the file gives.
-struct StructureRecord {
-    Structure structure;
-    std::string title;              // name, comment or title line; may be empty
-    long line = 0;                  // 1-based line where the record starts
-    bool has_bonds = false;         // the file states connectivity (SDF bonds, PDB CONECT)
-    bool has_orders = false;        // ... and bond orders (SDF)
-    bool has_charge = false;        // the total charge was stated
-    bool has_multiplicity = false;  // XYZ multiplicity=
-    std::vector<int> needs_orders;  // SDF aromatic bonds whose orders are still to be assigned
-    std::vector<int> bond_stereo;   // SDF: each bond's drawn stereo (1 wedge, 6 hash, 4 either, 0 none)
-};
+// StructureRecord (<repel/molecule.hpp>): one structure as a file states it: atoms, positions, and whatever bonds,
+// orders and charges the file gives.
 
 // Every record of a structure file's text, or of a file (format from the extension: .xyz, .pdb/.ent,
 // .sdf/.mol/.sd, unless given). Throws InputError naming the line for malformed input, and for a file that cannot be
