@@ -20,7 +20,6 @@
 #include "batch/batch.hpp"
 #include "input/records.hpp"
 #include "mpi_driver.hpp"
-#include "output/picture.hpp"
 
 namespace repel::app {
 
@@ -135,13 +134,13 @@ int run_build(const BuildArgs& args) {
         return 2;
     }
     BuildSettings options;
-    options.notation = text_notation(args.notation);
+    options.notation = args.notation;
     options.refine = args.refine;
     options.time_limit = args.time_limit;
     options.charge = args.charge;
     options.multiplicity = args.multiplicity;
     try {
-        options.polyhedra = metal_options(args.polyhedra).polyhedra;
+        options.polyhedra = polyhedron_choices(args.polyhedra);
     } catch (const std::exception& e) {
         std::cerr << "repel build: " << e.what() << "\n";
         return 2;
@@ -164,12 +163,8 @@ int run_build(const BuildArgs& args) {
         std::string record, picture;
         try {
             record = build_one(args.input, args.name);
-            if (!args.picture.empty()) {
-                PictureOptions po;
-                po.title = args.name.empty() ? args.input : args.name;
-                po.hydrogens = args.picture_hydrogens;
-                picture = picture_svg(built, po);
-            }
+            if (!args.picture.empty())
+                picture = repel::picture(built, args.name.empty() ? args.input : args.name, args.picture_hydrogens);
         } catch (const std::exception& e) {
             std::cerr << describe_failure("repel build", args.input, e) << "\n";
             return 2;

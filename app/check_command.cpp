@@ -1,26 +1,40 @@
 // `repel check`: reads every structure of a file, audits each, prints the report (or JSON), and with --fix writes
-// the cleaned structures. No chemistry here: lib/check does the work.
+// the cleaned structures. No chemistry here: every step is a call of the front door (<repel/repel.hpp>).
 #include "check_command.hpp"
 
 #include <fmt/format.h>
 
-#include <fstream>
 #include <iostream>
 #include <sstream>
 
-#include "check/audit.hpp"
-#include "check/clean.hpp"
-#include "check/report.hpp"
-#include "check/report_page.hpp"
+#include "api/front_door.hpp"
 #include "commands.hpp"
-#include "core/error.hpp"
-#include "core/limits.hpp"
 #include "core/replace_file.hpp"
-#include "input/smiles.hpp"
-#include "input/structure_reader.hpp"
-#include "output/writer.hpp"
 
 namespace repel::app {
+
+namespace {
+
+// The records of one file of the command line ("-": standard input, which needs --format).
+std::vector<StructureRecord> read_file_arg(const std::string& path, const std::string& format_name) {
+    FileFormat format = FileFormat::xyz;
+    if (!format_name.empty()) {
+        format = format_name == "pdb" ? FileFormat::pdb
+                 : format_name == "sdf" || format_name == "mol" ? FileFormat::sdf
+                 : format_name == "xyz" ? FileFormat::xyz
+                 : throw InputError("--format: expected xyz, pdb or sdf, found '" + format_name + "'");
+    } else if (path == "-") {
+        throw InputError("reading standard input needs --format xyz|pdb|sdf");
+    }
+    if (path == "-") {
+        std::ostringstream text;
+        text << std::cin.rdbuf();
+        return read_structures_text(text.str(), format);
+    }
+    return format_name.empty() ? read_structure_file(path) : read_structure_file(path, format);
+}
+
+}  // namespace
 
 int run_check(const CheckArgs& args) {
     if (args.fix && args.output_file.empty()) {
@@ -31,41 +45,24 @@ int run_check(const CheckArgs& args) {
         std::cerr << "repel check: give a structure file (.xyz, .pdb, .sdf, .mol)\n";
         return 2;
     }
-    if (!args.smiles.empty()) {
+    if (!args.settings.reference_smiles.empty()) {
         try {
-            (void)read_smiles(args.smiles);
+            BuildSettings smiles;
+            smiles.notation = TextNotation::smiles;
+            (void)read_molecule(args.settings.reference_smiles, smiles);
         } catch (const std::exception& e) {
-            std::cerr << describe_failure("repel check: --smiles", args.smiles, e) << "\n";
+            std::cerr << describe_failure("repel check: --smiles", args.settings.reference_smiles, e) << "\n";
             return 2;
         }
     }
     // Every structure of every file, in order, with the file it came from.
-    std::vector<ReadStructure> structures;
+    std::vector<StructureRecord> structures;
     std::vector<size_t> file_of;
     bool unreadable = false;
     for (size_t fi = 0; fi < args.files.size(); ++fi) {
         const std::string& path = args.files[fi];
         try {
-            InputFormat format = InputFormat::xyz;
-            if (!args.format.empty()) {
-                format = args.format == "pdb" ? InputFormat::pdb
-                         : args.format == "sdf" || args.format == "mol" ? InputFormat::sdf
-                         : args.format == "xyz" ? InputFormat::xyz
-                         : throw InputError("--format: expected xyz, pdb or sdf, found '" + args.format + "'");
-            } else if (path == "-") {
-                throw InputError("reading standard input needs --format xyz|pdb|sdf");
-            } else {
-                format = input_format_from_path(path);
-            }
-            std::vector<ReadStructure> read;
-            if (path == "-") {
-                read = read_structures(std::cin, format);
-            } else {
-                std::ifstream in(path, std::ios::binary);
-                if (!in) throw InputError("cannot open " + path);
-                read = read_structures(in, format);
-            }
-            for (auto& r : read) {
+            for (auto& r : read_file_arg(path, args.format)) {
                 structures.push_back(std::move(r));
                 file_of.push_back(fi);
             }
@@ -78,35 +75,24 @@ int run_check(const CheckArgs& args) {
     if (structures.empty() && unreadable) return 2;
     const bool several = args.files.size() > 1;
 
-    AuditOptions options;
-    options.angle_rms = args.angle_threshold;
-    options.angle_worst = args.angle_threshold;  // the same limit for the worst single angle (audit.hpp)
-    options.bond_deviation = args.bond_deviation;
-    options.contact_fraction = args.contact_fraction;
-    options.perception.tolerance = args.tolerance;
-    options.charge = args.charge;
-    options.multiplicity = args.multiplicity;
-    options.reference_smiles = args.smiles;
-    options.time_limit = args.time_limit;
-
     nlohmann::json doc;
     if (several) doc["files"] = args.files;
     else doc["file"] = args.files.front();
-    std::unique_ptr<ReportPage> page;
+    std::unique_ptr<CheckReport> page;
     if (!args.report.empty())
-        page = std::make_unique<ReportPage>(several ? fmt::format("{} files", args.files.size()) : args.files.front());
+        page = std::make_unique<CheckReport>(several ? fmt::format("{} files", args.files.size()) : args.files.front());
     doc["structures"] = nlohmann::json::array();
-    size_t total = 0, written = 0, failed = 0;
+    size_t total = 0, failed = 0;
     std::string text, cleaned;
-    std::unique_ptr<StructureWriter> writer;
+    std::vector<Structure> fixed;
+    std::vector<std::string> fixed_titles;
     try {
-        if (args.fix) writer = make_writer(format_from_path(args.output_file));
-        if (writer) cleaned += writer->begin();
+        const WriteFormat fix_format = args.fix ? write_format_of(args.output_file) : WriteFormat::xyz;
         for (size_t k = 0; k < structures.size(); ++k) {
             // One structure that cannot be audited (a limit, an unsupported element) costs only itself.
-            Audit audit;
+            CheckResult result;
             try {
-                audit = audit_structure(structures[k], options);
+                result = check(structures[k], args.settings);
             } catch (const std::exception& e) {
                 ++failed;
                 const std::string why = e.what();
@@ -121,38 +107,30 @@ int run_check(const CheckArgs& args) {
                 else text += fmt::format("structure {} (line {}): not audited: {}\n", k + 1, structures[k].line, why);
                 continue;
             }
-            total += audit.findings.size();
-            if (page) page->add(audit, static_cast<int>(k + 1), args.files[file_of[k]]);
+            total += result.findings.size();
+            if (page) page->add(result, static_cast<int>(k + 1), args.files[file_of[k]]);
             if (args.json) {
-                nlohmann::json entry = audit_json(audit);
+                nlohmann::json entry = check_json(result);
                 if (several) entry["file"] = args.files[file_of[k]];
                 doc["structures"].push_back(entry);
             } else {
                 if (several && (k == 0 || file_of[k] != file_of[k - 1])) text += "file " + args.files[file_of[k]] + "\n";
-                text += audit_text(audit, static_cast<int>(k + 1));
+                text += check_text(result, static_cast<int>(k + 1));
             }
-            if (writer) {
+            if (args.fix) {
                 // Only refined structures are written; the others are named on standard error.
-                CleanResult c;
-                try {
-                    const ScopedDeadline deadline(args.time_limit);
-                    c = clean_structure(audit);
-                } catch (const LimitError& e) {
-                    c.refined = false;
-                    c.summary = e.what();
-                }
+                FixResult c = fix(result, args.settings);
                 if (c.refined) {
-                    if (written > 0) cleaned += writer->separator();
-                    cleaned += writer->record(c.structure, audit.title);
-                    ++written;
+                    fixed.push_back(std::move(c.structure));
+                    fixed_titles.push_back(result.title);
                 } else {
                     std::cerr << fmt::format("repel check: structure {} (line {}) not written to {}: {}\n", k + 1,
-                                             audit.line, args.output_file, c.summary);
+                                             result.line, args.output_file, c.summary);
                 }
                 if (!args.json) text += "  cleaned: " + c.summary + "\n";
             }
         }
-        if (writer) cleaned += writer->end();
+        if (args.fix) cleaned = write(fixed, fix_format, fixed_titles);
     } catch (const std::exception& e) {
         std::cerr << "repel check: " << e.what() << "\n";
         return 2;
@@ -161,7 +139,7 @@ int run_check(const CheckArgs& args) {
     if (args.json) std::cout << doc.dump(2) << "\n";
     else std::cout << text << fmt::format("{} structure{}, {} finding{}\n", structures.size(),
                                           structures.size() == 1 ? "" : "s", total, total == 1 ? "" : "s");
-    if (writer && written == 0) {
+    if (args.fix && fixed.empty()) {
         std::cerr << "repel check: no structure could be cleaned; " << args.output_file << " not written\n";
         return 2;
     }
@@ -173,7 +151,7 @@ int run_check(const CheckArgs& args) {
             return 2;
         }
     }
-    if (writer) {
+    if (args.fix) {
         // Written whole or not at all (core/replace_file.hpp).
         try {
             replace_file(args.output_file, cleaned);

@@ -5,22 +5,19 @@
 #include <string>
 #include <vector>
 
+#include <repel/repel.hpp>
+
 namespace repel::app {
 
 struct CheckArgs {
     std::vector<std::string> files;   // FILE...: .xyz, .pdb, .sdf/.mol, or - for standard input (then --format)
     std::string format;               // --format xyz|pdb|sdf when the extension does not tell
     bool json = false;                // --json: one JSON document
-    std::optional<int> charge;        // --charge (default: the file's, else 0)
-    std::optional<int> multiplicity;  // --multiplicity (default: none; unpaired electrons are findings)
-    double angle_threshold = 15.0;    // --angle-threshold: degrees, the RMS and the worst angle from the predicted ones
-    double bond_deviation = 0.12;     // --bond-threshold: Angstrom from the expected bond length (audit.hpp)
-    double contact_fraction = 0.6;    // --contact-fraction: of the van der Waals contact distance
-    double tolerance = 0.45;          // --bond-tolerance: Angstrom added to the covalent radii for perception
-    std::string smiles;               // --smiles REF: the molecule the structure is meant to be
+    // The audit's thresholds, charge, multiplicity, --smiles reference and time limit (--time-limit: seconds per
+    // structure for the audit, and again for --fix), mapped onto the library's options by the front door.
+    CheckSettings settings;
     bool fix = false;                 // --fix: write a cleaned structure
     std::string output_file;          // -o with --fix (.xyz, .pdb, .sdf)
-    double time_limit = 60;           // --time-limit: seconds per structure for the audit and again for --fix
     std::string report;               // --report FILE.html: one self-contained page of every structure
 };
 

@@ -11,8 +11,6 @@
 #include <repel/repel.hpp>
 
 #include "core/limits.hpp"
-#include "domains/metal.hpp"
-#include "input/species.hpp"
 #include "output/writer.hpp"
 
 namespace repel::app {
@@ -23,7 +21,7 @@ struct BuildArgs {
     std::string output_file;  // -o
     std::string format;       // --format
     std::string errors_file;  // --errors
-    Notation notation = Notation::automatic;
+    TextNotation notation = TextNotation::automatic;
     bool refine = true;
     std::string name;         // --name for a single input
     std::string input_format; // --input-format smi|sdf (default: from -i's extension; smi for standard input)
@@ -42,22 +40,16 @@ struct BuildArgs {
 struct ShapeArgs {
     std::string input;
     std::string input_file;
-    Notation notation = Notation::automatic;
+    TextNotation notation = TextNotation::automatic;
     bool json = false;
     std::vector<std::string> polyhedra;  // --polyhedron ATOM=NAME
     std::string picture;      // --picture FILE.svg: the built molecule with every centre's lone pairs (refused with -i)
     bool picture_hydrogens = true;
 };
 
-// The front door's notation for the command line's.
-inline TextNotation text_notation(Notation n) {
-    return n == Notation::smiles ? TextNotation::smiles : n == Notation::formula ? TextNotation::formula
-                                                                                : TextNotation::automatic;
-}
-
-// --polyhedron ATOM=NAME values (ATOM 1-based) as the library's per-centre choices. Throws InputError naming the
-// value that is not of that form or names no polyhedron the library knows.
-MetalOptions metal_options(const std::vector<std::string>& values);
+// --polyhedron ATOM=NAME values (ATOM 1-based) as BuildSettings::polyhedra (0-based atom, name). Throws InputError
+// naming the value that is not of that form or names no polyhedron the library knows.
+std::vector<std::pair<int, std::string>> polyhedron_choices(const std::vector<std::string>& values);
 
 // Writes text to path through a temporary file renamed at the end (never a half-written file). Throws
 // std::runtime_error naming the file when it cannot be written.

@@ -107,24 +107,24 @@ int run(int argc, char** argv) {
                                            "spin multiplicity (default: none; unpaired electrons are findings)")
                          ->check(CLI::PositiveNumber);
     cmd_check->add_flag("--json", check.json, "one JSON document, whatever the verdict");
-    cmd_check->add_option("--angle-threshold", check.angle_threshold, "degrees RMS from the predicted angles at a centre, and for its worst single angle")
+    cmd_check->add_option("--angle-threshold", check.settings.angle_threshold, "degrees RMS from the predicted angles at a centre, and for its worst single angle")
         ->capture_default_str();
-    cmd_check->add_option("--bond-threshold", check.bond_deviation, "Angstrom from the expected bond length between atoms of the first two periods (twice it with a heavier atom)")
+    cmd_check->add_option("--bond-threshold", check.settings.bond_threshold, "Angstrom from the expected bond length between atoms of the first two periods (twice it with a heavier atom)")
         ->capture_default_str();
-    cmd_check->add_option("--contact-fraction", check.contact_fraction,
+    cmd_check->add_option("--contact-fraction", check.settings.contact_fraction,
                           "closest allowed non-bonded distance, as a fraction of the van der Waals contact")
         ->capture_default_str();
-    cmd_check->add_option("--bond-tolerance", check.tolerance,
+    cmd_check->add_option("--bond-tolerance", check.settings.bond_tolerance,
                           "Angstrom added to the sum of covalent radii when bonds are perceived from coordinates")
         ->capture_default_str();
-    cmd_check->add_option("--smiles", check.smiles,
+    cmd_check->add_option("--smiles", check.settings.reference_smiles,
                           "the intended molecule (SMILES): compare atoms, connectivity, stereocentres and double bonds");
     cmd_check->add_flag("--fix", check.fix, "write a cleaned structure (with -o): same atoms and stereochemistry, relaxed");
     cmd_check->add_option("-o,--output", check.output_file, "where --fix writes (.xyz, .pdb, .sdf)");
     cmd_check->add_option("--report", check.report,
                           "also write one self-contained HTML page: a sortable, filterable table of every structure, "
                           "and per structure its picture with the flagged atoms marked, its findings and a 3D view");
-    cmd_check->add_option("--time-limit", check.time_limit,
+    cmd_check->add_option("--time-limit", check.settings.time_limit,
                           "seconds one structure's audit (and again its --fix) may take before it is reported as not "
                           "audited (0: no limit)")
         ->check(CLI::NonNegativeNumber)
@@ -144,7 +144,7 @@ int run(int argc, char** argv) {
     }
 
     auto notation = [](bool formula, bool smiles) {
-        return formula ? repel::Notation::formula : smiles ? repel::Notation::smiles : repel::Notation::automatic;
+        return formula ? repel::TextNotation::formula : smiles ? repel::TextNotation::smiles : repel::TextNotation::automatic;
     };
     // Under mpirun every rank parses the same command line; ranks other than 0 only take part in a batch build.
     if (!root && !(cmd_build->parsed() && !build.input_file.empty())) return 0;
@@ -171,8 +171,8 @@ int run(int argc, char** argv) {
         return run_shape(shape);
     }
     if (cmd_check->parsed()) {
-        if (charge_opt->count() > 0) check.charge = check_charge;
-        if (mult_opt->count() > 0) check.multiplicity = check_multiplicity;
+        if (charge_opt->count() > 0) check.settings.charge = check_charge;
+        if (mult_opt->count() > 0) check.settings.multiplicity = check_multiplicity;
         if (check.fix && check.output_file.empty()) {
             std::cerr << "repel check: --fix needs -o FILE\n";
             return 2;

@@ -9,8 +9,6 @@
 #include "commands.hpp"
 #include "core/error.hpp"
 #include "input/records.hpp"
-#include "output/picture.hpp"
-#include "output/shape_report.hpp"
 
 namespace repel::app {
 
@@ -22,20 +20,18 @@ int run_shape(const ShapeArgs& args) {
     std::string picture;
     auto analyse = [&](const std::string& text, const std::string& name, nlohmann::json* doc, std::string* table) {
         BuildSettings settings;
-        settings.notation = text_notation(args.notation);
+        settings.notation = args.notation;
         settings.name = name;
         Molecule mol = read_molecule(text, settings);
-        settings.polyhedra = metal_options(args.polyhedra).polyhedra;
+        settings.polyhedra = polyhedron_choices(args.polyhedra);
         const Shape result = shape(std::move(mol), settings);
-        const Molecule& m = result.molecule;
-        const MoleculeDomains& d = result.detail->domains;
         const std::string title = name.empty() ? text : name;
-        if (doc) *doc = shape_json(m, d, title);
-        if (table) *table = shape_table(m, d, title);
+        if (doc) *doc = shape_json_object(result, title);
+        if (table) *table = shape_text(result, title);
         if (!args.picture.empty()) {
             // The lobes need coordinates: the structure `repel build` would write, with this analysis's directions.
-            const Structure built = build(m);
-            picture = shape_picture_svg(built, d, title, args.picture_hydrogens);
+            const Structure built = build(result.molecule);
+            picture = shape_picture(result, built, title, args.picture_hydrogens);
         }
     };
     if (args.input_file.empty()) {
@@ -84,8 +80,8 @@ int run_shape(const ShapeArgs& args) {
     return failed > 0 ? 1 : 0;
 }
 
-MetalOptions metal_options(const std::vector<std::string>& values) {
-    MetalOptions out;
+std::vector<std::pair<int, std::string>> polyhedron_choices(const std::vector<std::string>& values) {
+    std::vector<std::pair<int, std::string>> out;
     for (const std::string& v : values) {
         const size_t eq = v.find('=');
         int atom = 0;
@@ -103,7 +99,7 @@ MetalOptions metal_options(const std::vector<std::string>& values) {
                                          "of: {}",
                                          v, list));
         }
-        out.polyhedra.emplace_back(atom - 1, name);
+        out.emplace_back(atom - 1, name);
     }
     return out;
 }

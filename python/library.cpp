@@ -227,13 +227,7 @@ CheckResult audit_one(const StructureRecord& input, const CheckRequest& request)
     }
     if (request.fix) {
         // As `repel check --fix`: a structure past the time limit is reported, not written.
-        CleanedStructure c;
-        try {
-            c = clean(audit);
-        } catch (const LimitError& e) {
-            c.refined = false;
-            c.summary = e.what();
-        }
+        FixResult c = fix(audit, check_settings(request));
         r.fix_summary = c.summary;
         if (c.refined) r.fixed = built_of(std::move(c.structure), input.title, input.title);
     }

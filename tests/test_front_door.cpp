@@ -9,14 +9,18 @@
 #include <repel/repel.hpp>
 #include <string>
 
+#include "api/front_door.hpp"
 #include "assemble/build.hpp"
 #include "check/audit.hpp"
+#include "check/clean.hpp"
 #include "check/perceive.hpp"
 #include "core/limits.hpp"
 #include "check/report.hpp"
+#include "check/report_page.hpp"
 #include "domains/domains.hpp"
 #include "input/smiles.hpp"
 #include "input/species.hpp"
+#include "output/picture.hpp"
 #include "output/shape_report.hpp"
 #include "output/writer.hpp"
 
@@ -129,15 +133,15 @@ TEST(FrontDoor, ReadCheckAndWrite) {
     ASSERT_FALSE(bad.findings.empty());
     EXPECT_TRUE(bad.findings[0].error);
 
-    // clean() mends the stretched bond as `repel check --fix` does (check/clean.hpp): same atoms, refined, and
+    // fix() mends the stretched bond as `repel check --fix` does (check/clean.hpp): same atoms, refined, and
     // the cleaned structure passes the audit; a clean structure is returned as it is.
-    const CleanedStructure mended = clean(bad);
+    const FixResult mended = fix(bad);
     EXPECT_TRUE(mended.refined) << mended.summary;
     EXPECT_EQ(mended.structure.molecule.atom_count(), 9);
     EXPECT_GT(mended.rms_shift, 0.0);
     EXPECT_TRUE(check(mended.structure).findings.empty()) << check_text(check(mended.structure));
-    EXPECT_EQ(clean(check(ethanol)).rms_shift, 0.0);
-    EXPECT_THROW((void)clean(CheckResult{}), std::invalid_argument);
+    EXPECT_EQ(fix(check(ethanol)).rms_shift, 0.0);
+    EXPECT_THROW((void)fix(CheckResult{}), std::invalid_argument);
 
     // Files: two records written as one SD file, read and checked from the file.
     const std::string path = (std::filesystem::temp_directory_path() / "repel_front_door_test.sdf").string();
@@ -158,6 +162,56 @@ TEST(FrontDoor, ReadCheckAndWrite) {
     EXPECT_EQ(json.front(), '[');
     EXPECT_EQ(json.substr(json.size() - 2), "]\n");
     EXPECT_EQ(write(ethanol, WriteFormat::xyz).substr(0, 2), "9\n");
+}
+
+// `repel check`'s other steps: --json, --fix, --report, the cleaned file's titles, and the pictures, each the
+// library's own step on the same audit.
+TEST(FrontDoor, FixReportJsonAndPictures) {
+    const Structure ethanol = build("CCO", {.name = "ethanol"});
+    Structure damaged = ethanol;
+    damaged.positions[2] += 0.5 * (ethanol.positions[2] - ethanol.positions[1]).normalized();
+    const CheckResult bad = check(damaged);
+    EXPECT_EQ(check_json_text(bad), audit_json(bad.detail->audit).dump(2) + "\n");
+
+    const FixResult fixed = fix(bad);
+    const CleanResult by_hand = clean_structure(bad.detail->audit);
+    ASSERT_TRUE(fixed.refined) << fixed.summary;
+    EXPECT_EQ(fixed.summary, by_hand.summary);
+    EXPECT_EQ(write(fixed.structure, WriteFormat::xyz), write(by_hand.structure, WriteFormat::xyz));
+    EXPECT_TRUE(check(fixed.structure).findings.empty()) << check_text(check(fixed.structure));
+    // Past the time limit: not refined, the reason said, never an exception.
+    CheckSettings hurried;
+    hurried.time_limit = 1e-9;
+    const FixResult late = fix(bad, hurried);
+    EXPECT_FALSE(late.refined);
+    EXPECT_NE(late.summary.find("gave up"), std::string::npos) << late.summary;
+
+    // The report page is the library's page of the same audits.
+    CheckReport report("two");
+    ReportPage page("two");
+    report.add(bad, 1, "a.xyz");
+    page.add(bad.detail->audit, 1, "a.xyz");
+    report.add_failure(2, "a.xyz", 30, "too big");
+    page.add_failure(2, "a.xyz", 30, "too big");
+    EXPECT_EQ(report.html(), page.html());
+
+    // Titles given per structure; the format from a file name.
+    const std::string two = write(std::vector<Structure>{ethanol, ethanol}, WriteFormat::xyz, {"first", "second"});
+    EXPECT_NE(two.find("first"), std::string::npos);
+    EXPECT_NE(two.find("second"), std::string::npos);
+    EXPECT_THROW((void)write(std::vector<Structure>{ethanol}, WriteFormat::xyz, {"a", "b"}), std::invalid_argument);
+    EXPECT_EQ(write_format_of("out/x.SDF"), WriteFormat::sdf);
+    EXPECT_EQ(write_format_of("x.mol"), WriteFormat::sdf);
+    EXPECT_EQ(write_format_of("x.json"), WriteFormat::json);
+    EXPECT_THROW((void)write_format_of("x.txt"), InputError);
+
+    // Pictures: the drawing of build --picture and of shape --picture.
+    PictureOptions po;
+    po.title = "ethanol";
+    EXPECT_EQ(picture(ethanol, "ethanol"), picture_svg(ethanol, po));
+    const Shape water = shape("O");
+    const Structure built = build(water.molecule);
+    EXPECT_EQ(shape_picture(water, built, "water", false), shape_picture_svg(built, water.detail->domains, "water", false));
 }
 
 TEST(FrontDoor, VersionIsThePackageVersion) {

@@ -7,9 +7,11 @@
 
 #include "check/clean.hpp"
 #include "check/report.hpp"
+#include "check/report_page.hpp"
 #include "core/limits.hpp"
 #include "domains/metal.hpp"
 #include "input/sd_molecule.hpp"
+#include "output/picture.hpp"
 #include "output/shape_report.hpp"
 #include "output/writer.hpp"
 
@@ -131,37 +133,13 @@ std::string shape_text(const Shape& shape, const std::string& title) {
     return shape_table(shape.molecule, shape.detail->domains, title);
 }
 
+nlohmann::json shape_json_object(const Shape& shape, const std::string& title) {
+    if (!shape.detail) throw std::invalid_argument("shape_json_object: a Shape that shape() did not make");
+    return shape_json(shape.molecule, shape.detail->domains, title);
+}
+
 std::string shape_json_text(const Shape& shape, const std::string& title) {
-    if (!shape.detail) throw std::invalid_argument("shape_json_text: a Shape that shape() did not make");
-    return shape_json(shape.molecule, shape.detail->domains, title).dump(2) + "\n";
-}
-
-ReadStructure read_structure_of(const StructureRecord& record) {
-    ReadStructure r;
-    r.structure = record.structure;
-    r.title = record.title;
-    r.line = record.line;
-    r.has_bonds = record.has_bonds;
-    r.has_orders = record.has_orders;
-    r.has_charge = record.has_charge;
-    r.has_multiplicity = record.has_multiplicity;
-    r.needs_orders = record.needs_orders;
-    r.bond_stereo = record.bond_stereo;
-    return r;
-}
-
-StructureRecord structure_record_of(ReadStructure read) {
-    StructureRecord r;
-    r.structure = std::move(read.structure);
-    r.title = std::move(read.title);
-    r.line = read.line;
-    r.has_bonds = read.has_bonds;
-    r.has_orders = read.has_orders;
-    r.has_charge = read.has_charge;
-    r.has_multiplicity = read.has_multiplicity;
-    r.needs_orders = std::move(read.needs_orders);
-    r.bond_stereo = std::move(read.bond_stereo);
-    return r;
+    return shape_json_object(shape, title).dump(2) + "\n";
 }
 
 namespace {
@@ -174,8 +152,7 @@ InputFormat input_format(FileFormat format) {
     }
 }
 
-std::vector<ReadStructure> read_file(const std::string& path) {
-    const InputFormat format = input_format_from_path(path);
+std::vector<StructureRecord> read_file(const std::string& path, InputFormat format) {
     std::ifstream in(path, std::ios::binary);
     if (!in) throw InputError("cannot open " + path);
     return read_structures(in, format);
@@ -208,25 +185,25 @@ Format write_format(WriteFormat format) {
 
 std::vector<StructureRecord> read_structures_text(std::string_view text, FileFormat format) {
     std::istringstream in{std::string(text)};
-    std::vector<StructureRecord> out;
-    for (ReadStructure& r : read_structures(in, input_format(format))) out.push_back(structure_record_of(std::move(r)));
-    return out;
+    return read_structures(in, input_format(format));
 }
 
 std::vector<StructureRecord> read_structure_file(const std::string& path) {
-    std::vector<StructureRecord> out;
-    for (ReadStructure& r : read_file(path)) out.push_back(structure_record_of(std::move(r)));
-    return out;
+    return read_file(path, input_format_from_path(path));
+}
+
+std::vector<StructureRecord> read_structure_file(const std::string& path, FileFormat format) {
+    return read_file(path, input_format(format));
 }
 
 CheckResult check(const StructureRecord& record, const CheckSettings& settings) {
-    return check_result_of(audit_structure(read_structure_of(record), audit_options(settings)));
+    return check_result_of(audit_structure(record, audit_options(settings)));
 }
 
 CheckResult check(const Structure& structure, const CheckSettings& settings) {
     // A structure in memory states its bonds, orders and charges (a built one does); without bonds, they are
     // perceived from the coordinates as for an XYZ file.
-    ReadStructure r;
+    StructureRecord r;
     r.structure = structure;
     r.title = structure.molecule.name;
     r.has_bonds = structure.molecule.bond_count() > 0;
@@ -239,7 +216,7 @@ CheckResult check(const Structure& structure, const CheckSettings& settings) {
 std::vector<CheckResult> check_file(const std::string& path, const CheckSettings& settings) {
     const AuditOptions options = audit_options(settings);
     std::vector<CheckResult> out;
-    for (const ReadStructure& r : read_file(path)) out.push_back(check_result_of(audit_structure(r, options)));
+    for (const StructureRecord& r : read_file(path, input_format_from_path(path))) out.push_back(check_result_of(audit_structure(r, options)));
     return out;
 }
 
@@ -248,25 +225,83 @@ std::string check_text(const CheckResult& result, int index) {
     return audit_text(result.detail->audit, index);
 }
 
-CleanedStructure clean(const CheckResult& result, double time_limit) {
-    if (!result.detail) throw std::invalid_argument("clean: a CheckResult that check() did not make");
-    const ScopedDeadline deadline(time_limit);
-    CleanResult c = clean_structure(result.detail->audit);
-    return {std::move(c.structure), c.refined, c.rms_shift, std::move(c.summary)};
+nlohmann::json check_json(const CheckResult& result) {
+    if (!result.detail) throw std::invalid_argument("check_json: a CheckResult that check() did not make");
+    return audit_json(result.detail->audit);
 }
+
+std::string check_json_text(const CheckResult& result) { return check_json(result).dump(2) + "\n"; }
+
+FixResult fix(const CheckResult& result, const CheckSettings& settings) {
+    if (!result.detail) throw std::invalid_argument("fix: a CheckResult that check() did not make");
+    FixResult out;
+    try {
+        // The audit's time limit again, for the refinement alone.
+        const ScopedDeadline deadline(settings.time_limit);
+        CleanResult c = clean_structure(result.detail->audit);
+        out.structure = std::move(c.structure);
+        out.refined = c.refined;
+        out.rms_shift = c.rms_shift;
+        out.summary = std::move(c.summary);
+    } catch (const LimitError& e) {
+        out.structure = result.structure;
+        out.refined = false;
+        out.summary = e.what();
+    }
+    return out;
+}
+
+CheckReport::CheckReport(std::string heading) : page_(std::make_unique<ReportPage>(std::move(heading))) {}
+CheckReport::~CheckReport() = default;
+CheckReport::CheckReport(CheckReport&&) noexcept = default;
+CheckReport& CheckReport::operator=(CheckReport&&) noexcept = default;
+
+void CheckReport::add(const CheckResult& result, int number, const std::string& file) {
+    if (!result.detail) throw std::invalid_argument("CheckReport::add: a CheckResult that check() did not make");
+    page_->add(result.detail->audit, number, file);
+}
+
+void CheckReport::add_failure(int number, const std::string& file, long line, const std::string& why) {
+    page_->add_failure(number, file, line, why);
+}
+
+std::string CheckReport::html() const { return page_->html(); }
 
 std::string write(const Structure& structure, WriteFormat format, const std::string& title) {
     return make_writer(write_format(format))->record(structure, title.empty() ? structure.molecule.name : title);
 }
 
-std::string write(const std::vector<Structure>& structures, WriteFormat format) {
+std::string write(const std::vector<Structure>& structures, WriteFormat format, const std::vector<std::string>& titles) {
+    if (!titles.empty() && titles.size() != structures.size())
+        throw std::invalid_argument("write: titles must be empty or one per structure");
     const auto writer = make_writer(write_format(format));
     std::string out = writer->begin();
     for (size_t k = 0; k < structures.size(); ++k) {
         if (k > 0) out += writer->separator();
-        out += writer->record(structures[k], structures[k].molecule.name);
+        out += writer->record(structures[k], titles.empty() ? structures[k].molecule.name : titles[k]);
     }
     return out + writer->end();
+}
+
+WriteFormat write_format_of(const std::string& path) {
+    switch (format_from_path(path)) {
+        case Format::pdb: return WriteFormat::pdb;
+        case Format::sdf: return WriteFormat::sdf;
+        case Format::json: return WriteFormat::json;
+        default: return WriteFormat::xyz;
+    }
+}
+
+std::string picture(const Structure& structure, const std::string& title, bool hydrogens) {
+    PictureOptions options;
+    options.title = title;
+    options.hydrogens = hydrogens;
+    return picture_svg(structure, options);
+}
+
+std::string shape_picture(const Shape& shape, const Structure& built, const std::string& title, bool hydrogens) {
+    if (!shape.detail) throw std::invalid_argument("shape_picture: a Shape that shape() did not make");
+    return shape_picture_svg(built, shape.detail->domains, title, hydrogens);
 }
 
 }  // namespace repel

@@ -4,6 +4,8 @@
 
 #include <repel/repel.hpp>
 
+#include <nlohmann/json.hpp>
+
 #include "assemble/build.hpp"
 #include "check/audit.hpp"
 #include "domains/domains.hpp"
@@ -25,8 +27,10 @@ BuildOptions build_options(const BuildSettings& settings);
 AuditOptions audit_options(const CheckSettings& settings);
 Notation notation_of(TextNotation notation);
 
-// The library's own structure record and back.
-ReadStructure read_structure_of(const StructureRecord& record);
-StructureRecord structure_record_of(ReadStructure read);
+// The analysis as the JSON object of `repel shape --json` (the front end puts a batch's in one array).
+nlohmann::json shape_json_object(const Shape& shape, const std::string& title);
+
+// One checked structure as the JSON object of `repel check --json` (the front end puts several in one document).
+nlohmann::json check_json(const CheckResult& result);
 
 }  // namespace repel

@@ -398,8 +398,7 @@ void mark_aromatic_rings(Molecule& m, const std::vector<char>& excluded) {
         std::vector<Bond> kept;
         for (const Bond& b : rings.bonds)
             if (!excluded[static_cast<size_t>(b.a)] && !excluded[static_cast<size_t>(b.b)]) kept.push_back(b);
-        rings.bonds = kept;
-        rings.rebuild_adjacency();
+        rings.set_bonds(std::move(kept));
         perceive_aromatic_rings(rings);
         for (const Bond& b : rings.bonds)
             if (b.aromatic) {
@@ -812,8 +811,7 @@ Audit audit_structure(const ReadStructure& in, const AuditOptions& opt) {
             }
             kept.push_back(b);
         }
-        analysed.bonds = kept;
-        analysed.rebuild_adjacency();
+        analysed.set_bonds(std::move(kept));
         for (Atom& a : analysed.atoms) a.hydrogens = 0;
     }
     // Per bond of m: the model's length of a bond to a d-block metal (0: not such a bond, or no analysis).

@@ -666,8 +666,7 @@ ValenceResult assign_valences_ionic(Molecule& m, const std::vector<Eigen::Vector
         }
         kept.push_back(b);
     }
-    ligands.bonds = kept;
-    ligands.rebuild_adjacency();
+    ligands.set_bonds(kept);
     std::vector<char> skip(static_cast<size_t>(n), 0);
     for (int i = 0; i < n; ++i)
         skip[static_cast<size_t>(i)] = metal[static_cast<size_t>(i)] || (ignore && (*ignore)[static_cast<size_t>(i)]);

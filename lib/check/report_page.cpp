@@ -17,22 +17,7 @@
 namespace repel {
 namespace {
 
-std::string escape_html(std::string_view text) {
-    const std::string clean = output::one_line(text, false);
-    std::string out;
-    out.reserve(clean.size());
-    for (char c : clean) {
-        switch (c) {
-            case '&': out += "&amp;"; break;
-            case '<': out += "&lt;"; break;
-            case '>': out += "&gt;"; break;
-            case '"': out += "&quot;"; break;
-            case '\'': out += "&#39;"; break;
-            default: out += c;
-        }
-    }
-    return out;
-}
+std::string escape_html(std::string_view text) { return output::escape_markup(text, "&#39;"); }
 
 // JSON inside a <script> element: "</script", "<!--" or "<script" in a string could end the element early or change
 // how it is parsed, so every '<' (only ever inside a JSON string) is written as the escape \u003c.

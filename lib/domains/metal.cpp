@@ -1142,8 +1142,7 @@ Molecule without_hapto_bonds(const Molecule& molecule, const MetalAnalysis& meta
     kept.reserve(molecule.bonds.size());
     for (size_t b = 0; b < molecule.bonds.size(); ++b)
         if (!drop[b]) kept.push_back(molecule.bonds[b]);
-    out.bonds = std::move(kept);
-    out.rebuild_adjacency();
+    out.set_bonds(std::move(kept));
     return out;
 }
 

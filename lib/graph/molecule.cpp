@@ -2,16 +2,20 @@
 
 #include <array>
 #include <numeric>
+#include <stdexcept>
+#include <string>
 
 namespace repel {
 
 int Molecule::add_atom(const Atom& atom) {
+    if (!adjacency_current()) rebuild_adjacency();
     atoms.push_back(atom);
     adjacency_.emplace_back();
     return atom_count() - 1;
 }
 
 int Molecule::add_bond(int a, int b, int order, bool aromatic) {
+    if (!adjacency_current()) rebuild_adjacency();
     Bond bond;
     bond.a = a;
     bond.b = b;
@@ -21,7 +25,20 @@ int Molecule::add_bond(int a, int b, int order, bool aromatic) {
     int index = bond_count() - 1;
     adjacency_[static_cast<size_t>(a)].push_back({b, index});
     adjacency_[static_cast<size_t>(b)].push_back({a, index});
+    ++adjacency_bonds_;
     return index;
+}
+
+void Molecule::set_bonds(std::vector<Bond> new_bonds) {
+    bonds = std::move(new_bonds);
+    rebuild_adjacency();
+}
+
+void Molecule::stale_adjacency() const {
+    throw std::logic_error("Molecule: atoms or bonds changed (" + std::to_string(atoms.size()) + " atoms, " +
+                           std::to_string(bonds.size()) + " bonds) without add_atom/add_bond/set_bonds; the neighbour "
+                           "lists are of " + std::to_string(adjacency_.size()) + " atoms and " +
+                           std::to_string(adjacency_bonds_) + " bonds: call rebuild_adjacency()");
 }
 
 int Molecule::bond_between(int a, int b) const {
@@ -142,6 +159,7 @@ void Molecule::rebuild_adjacency() {
         adjacency_[static_cast<size_t>(b.a)].push_back({b.b, i});
         adjacency_[static_cast<size_t>(b.b)].push_back({b.a, i});
     }
+    adjacency_bonds_ = bonds.size();
 }
 
 }  // namespace repel

@@ -55,6 +55,11 @@ struct Neighbor {
     int bond;  // index into Molecule::bonds
 };
 
+// `atoms` and `bonds` are public (the readers, the analysis and the tests edit atoms' and bonds' fields in place), and
+// the neighbour lists are a cache of `bonds`. The cache stays right through add_atom, add_bond, set_bonds and
+// rebuild_adjacency. A change of either vector's size made around them (a push_back, an erase, an assignment) is
+// detected: neighbors() and degree() throw std::logic_error rather than answer from a stale cache, and add_atom and
+// add_bond rebuild it first. Moving a bond's ends in place keeps the sizes and is not detected: use set_bonds().
 class Molecule {
 public:
     std::string name;
@@ -64,11 +69,16 @@ public:
     int add_atom(const Atom& atom);
     // Adds a bond and returns its index. Does not check for duplicates: readers check with bond_between() first.
     int add_bond(int a, int b, int order = 1, bool aromatic = false);
+    // Replaces every bond (a subset kept, say) and rebuilds the neighbour lists.
+    void set_bonds(std::vector<Bond> new_bonds);
 
     int atom_count() const { return static_cast<int>(atoms.size()); }
     int bond_count() const { return static_cast<int>(bonds.size()); }
-    const std::vector<Neighbor>& neighbors(int atom) const { return adjacency_[static_cast<size_t>(atom)]; }
-    int degree(int atom) const { return static_cast<int>(adjacency_[static_cast<size_t>(atom)].size()); }
+    const std::vector<Neighbor>& neighbors(int atom) const {
+        require_current_adjacency();
+        return adjacency_[static_cast<size_t>(atom)];
+    }
+    int degree(int atom) const { return static_cast<int>(neighbors(atom).size()); }
     // Index of the bond between a and b, or -1.
     int bond_between(int a, int b) const;
     // Sum of bond orders at the atom (explicit bonds only; add implicit hydrogens for the full valence).
@@ -85,11 +95,21 @@ public:
     // Connected components: for each atom its component number (0-based, numbered by first atom).
     std::vector<int> components(int* count = nullptr) const;
 
-    // Rebuilds the adjacency after bonds were edited in place or removed.
+    // Rebuilds the neighbour lists from `atoms` and `bonds` (after editing them directly).
     void rebuild_adjacency();
+    // The neighbour lists were built for the present atoms and bonds (as far as their counts tell).
+    bool adjacency_current() const {
+        return adjacency_.size() == atoms.size() && adjacency_bonds_ == bonds.size();
+    }
 
 private:
+    void require_current_adjacency() const {
+        if (!adjacency_current()) stale_adjacency();
+    }
+    [[noreturn]] void stale_adjacency() const;
+
     std::vector<std::vector<Neighbor>> adjacency_;
+    size_t adjacency_bonds_ = 0;  // bonds.size() the neighbour lists were built for
     int input_atoms_ = -1;
 };
 
@@ -101,6 +121,23 @@ struct Structure {
     int multiplicity = 1;                    // 2S+1
     std::string multiplicity_reason;         // how the multiplicity was decided, where more than a count went into it
     std::vector<std::string> warnings;       // known weaknesses of this structure, for the user and the file
+};
+
+// One structure as a file states it, with what the file said and did not say: what the readers of XYZ, PDB and SDF
+// files give (input/structure_reader.hpp) and what the audit reads; part of the installed header set (the front door
+// returns it).
+struct StructureRecord {
+    Structure structure;        // atoms (z, formal charges, SDF radicals), bonds when stated, positions
+    std::string title;          // the name, comment or title line; may be empty
+    long line = 0;              // 1-based line where the record starts
+    bool has_bonds = false;     // the file states connectivity (SDF bonds, PDB CONECT)
+    bool has_orders = false;    // ... and bond orders (SDF; aromatic SDF bonds still need orders, see needs_orders)
+    bool has_charge = false;    // the total charge was stated (XYZ charge=, SDF or PDB formal charges)
+    bool has_multiplicity = false;  // XYZ multiplicity=
+    std::vector<int> needs_orders;  // bonds stated aromatic (SDF type 4) whose orders are still to be assigned
+    // SDF: each bond's drawn stereo, in V2000's numbers (1 wedge, 6 hash, 4 either, 0 none; V3000's CFG=1, 3, 2 are
+    // given as 1, 6, 4), one per bond; the first atom of a bond is its narrow end. Empty for other formats.
+    std::vector<int> bond_stereo;
 };
 
 }  // namespace repel

@@ -47,6 +47,10 @@ std::string_view symbol_of(const Structure& structure, int atom);
 // become '?'; with ascii_only, every non-ASCII character becomes one '?' too (PDB and CTfile are ASCII formats).
 std::string one_line(std::string_view text, bool ascii_only);
 
+// one_line(text, false) escaped for XML and HTML text and attribute values (&, <, >, ", '). The apostrophe's escape
+// is the caller's: SVG (XML) writes "&apos;", the check report's HTML "&#39;".
+std::string escape_markup(std::string_view text, std::string_view apostrophe = "&apos;");
+
 // v rounded to `decimals` places, with a negative zero made positive so that "-0.000000" is never written.
 double tidy(double v, int decimals);
 

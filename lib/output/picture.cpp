@@ -119,22 +119,7 @@ constexpr double kStickGap = 0.17;  // between the parallel sticks of a multiple
 constexpr double kLobeReach = 1.15; // beyond the ball
 constexpr double kLobeWidth = 0.36; // half width
 
-std::string escape(std::string_view text) {
-    const std::string clean = output::one_line(text, false);
-    std::string out;
-    out.reserve(clean.size());
-    for (char c : clean) {
-        switch (c) {
-            case '&': out += "&amp;"; break;
-            case '<': out += "&lt;"; break;
-            case '>': out += "&gt;"; break;
-            case '"': out += "&quot;"; break;
-            case '\'': out += "&apos;"; break;
-            default: out += c;
-        }
-    }
-    return out;
-}
+std::string escape(std::string_view text) { return output::escape_markup(text); }
 
 // A line of text cut to the width it may take (an estimate: `advance` pixels a character), ending in "..." when cut;
 // never inside a UTF-8 sequence.

@@ -144,6 +144,23 @@ std::string one_line(std::string_view text, bool ascii_only) {
     return out;
 }
 
+std::string escape_markup(std::string_view text, std::string_view apostrophe) {
+    const std::string clean = one_line(text, false);
+    std::string out;
+    out.reserve(clean.size());
+    for (char c : clean) {
+        switch (c) {
+            case '&': out += "&amp;"; break;
+            case '<': out += "&lt;"; break;
+            case '>': out += "&gt;"; break;
+            case '"': out += "&quot;"; break;
+            case '\'': out += apostrophe; break;
+            default: out += c;
+        }
+    }
+    return out;
+}
+
 namespace {
 constexpr double kPowersOfTen[] = {1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9};
 }  // namespace

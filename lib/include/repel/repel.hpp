@@ -98,23 +98,15 @@ std::string shape_json_text(const Shape& shape, const std::string& title);
 
 enum class FileFormat { xyz, pdb, sdf };
 
-// One structure as a file states it: atoms, positions, and whatever bonds, orders and charges the file gives.
-struct StructureRecord {
-    Structure structure;
-    std::string title;              // name, comment or title line; may be empty
-    long line = 0;                  // 1-based line where the record starts
-    bool has_bonds = false;         // the file states connectivity (SDF bonds, PDB CONECT)
-    bool has_orders = false;        // ... and bond orders (SDF)
-    bool has_charge = false;        // the total charge was stated
-    bool has_multiplicity = false;  // XYZ multiplicity=
-    std::vector<int> needs_orders;  // SDF aromatic bonds whose orders are still to be assigned
-    std::vector<int> bond_stereo;   // SDF: each bond's drawn stereo (1 wedge, 6 hash, 4 either, 0 none)
-};
+// StructureRecord (<repel/molecule.hpp>): one structure as a file states it: atoms, positions, and whatever bonds,
+// orders and charges the file gives.
 
 // Every record of a structure file's text, or of a file (format from the extension: .xyz, .pdb/.ent,
-// .sdf/.mol/.sd). Throws InputError naming the line for malformed input, and for a file that cannot be opened.
+// .sdf/.mol/.sd, unless given). Throws InputError naming the line for malformed input, and for a file that cannot be
+// opened or whose extension tells no format.
 std::vector<StructureRecord> read_structures_text(std::string_view text, FileFormat format);
 std::vector<StructureRecord> read_structure_file(const std::string& path);
+std::vector<StructureRecord> read_structure_file(const std::string& path, FileFormat format);
 
 // ---- Checking (audit) -----------------------------------------------------------------------------------------
 
@@ -159,21 +151,48 @@ CheckResult check(const Structure& structure, const CheckSettings& settings = {}
 // Every structure of a file, each audited.
 std::vector<CheckResult> check_file(const std::string& path, const CheckSettings& settings = {});
 
-// The audit as text for a person (what `repel check` prints for structure number `index`, 1-based).
+// The audit as text for a person (what `repel check` prints for structure number `index`, 1-based), or as the JSON
+// object `repel check --json` gives each structure.
 std::string check_text(const CheckResult& result, int index = 1);
+std::string check_json_text(const CheckResult& result);
 
-// The cleaned structure `repel check --fix` writes: the whole-molecule refinement started from the audited
-// coordinates, keeping the structure's stereochemistry.
-struct CleanedStructure {
-    Structure structure;   // same atoms in the same order; refined positions when refined is true
-    bool refined = false;  // false: a finding relaxation cannot mend (an overlap, a charge...), said in summary
+// ---- Fixing (`repel check --fix`) -----------------------------------------------------------------------------
+
+struct FixResult {
+    Structure structure;   // same atoms in the same order, refined positions
+    bool refined = false;  // false: not cleaned, the reason in summary (the structure is then the audited one)
     double rms_shift = 0;  // Angstrom, RMS movement of the atoms
     std::string summary;   // one line for a person
 };
 
-// Cleans one audited structure (a CheckResult that check() made); time_limit seconds (0: none), past it a
-// LimitError.
-CleanedStructure clean(const CheckResult& result, double time_limit = 60);
+// The whole-molecule refinement started from the checked coordinates, keeping the structure's own stereochemistry.
+// A structure whose findings relaxation cannot mend (an overlap, neighbour, radical, charge or multiplicity finding)
+// is not refined, and neither is one past settings.time_limit (refined false, the reason in summary); a structure
+// without findings is returned unchanged.
+FixResult fix(const CheckResult& result, const CheckSettings& settings = {});
+
+// ---- The check report (`repel check --report`) ------------------------------------------------------------------
+
+class ReportPage;  // the library's page
+
+// Many checked structures as one self-contained HTML page: a sortable summary table and, per structure, its picture
+// with the flagged atoms marked, its findings and a rotatable 3D view. No network, no external script or font.
+class CheckReport {
+public:
+    explicit CheckReport(std::string heading);
+    ~CheckReport();
+    CheckReport(CheckReport&&) noexcept;
+    CheckReport& operator=(CheckReport&&) noexcept;
+    // One checked structure; `number` is its 1-based place in the run, `file` the file it came from.
+    void add(const CheckResult& result, int number, const std::string& file);
+    // A structure that could not be checked: a row saying why.
+    void add_failure(int number, const std::string& file, long line, const std::string& why);
+    // The whole page; the same results give the same bytes.
+    std::string html() const;
+
+private:
+    std::unique_ptr<ReportPage> page_;
+};
 
 // ---- Writing --------------------------------------------------------------------------------------------------
 
@@ -182,7 +201,20 @@ enum class WriteFormat { xyz, pdb, sdf, json };
 // One whole record (JSON: one object) ending with a newline; title empty: the molecule's name. Throws
 // std::runtime_error when the structure cannot be written (a non-finite coordinate, a field too narrow).
 std::string write(const Structure& structure, WriteFormat format, const std::string& title = {});
-// A whole file of several records (JSON: one array, "[]" when empty).
-std::string write(const std::vector<Structure>& structures, WriteFormat format);
+// A whole file of several records (JSON: one array, "[]" when empty), each titled with its molecule's name, or with
+// titles[k] when titles are given (one per structure).
+std::string write(const std::vector<Structure>& structures, WriteFormat format,
+                  const std::vector<std::string>& titles = {});
+// The format a file name's extension asks for (.xyz, .pdb, .sdf, .mol, .json, any case); InputError otherwise.
+WriteFormat write_format_of(const std::string& path);
+
+// ---- Pictures -------------------------------------------------------------------------------------------------
+
+// A standalone SVG drawing of a structure (`repel build --picture`); title: one line above it (empty: none).
+std::string picture(const Structure& structure, const std::string& title = {}, bool hydrogens = true);
+// The drawing of `repel shape --picture`: `built` (build() of shape.molecule) with every centre's lone pairs and
+// single electrons from the analysis, and the centres labelled.
+std::string shape_picture(const Shape& shape, const Structure& built, const std::string& title = {},
+                          bool hydrogens = true);
 
 }  // namespace repel
