@@ -109,7 +109,7 @@ int run(int argc, char** argv) {
     cmd_check->add_flag("--json", check.json, "one JSON document, whatever the verdict");
     cmd_check->add_option("--angle-threshold", check.settings.angle_threshold, "degrees RMS from the predicted angles at a centre, and for its worst single angle")
         ->capture_default_str();
-    cmd_check->add_option("--bond-threshold", check.settings.bond_threshold, "Angstrom from the expected bond length between atoms of the first two periods (twice it with a heavier atom)")
+    cmd_check->add_option("--bond-threshold", check.settings.bond_threshold, "Angstrom a bond may be longer than expected between atoms of the first two periods (twice it with a heavier atom; shorter: 0.75 and 1.25 times it in closed-shell molecules)")
         ->capture_default_str();
     cmd_check->add_option("--contact-fraction", check.settings.contact_fraction,
                           "closest allowed non-bonded distance, as a fraction of the van der Waals contact")
