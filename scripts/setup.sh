@@ -8,7 +8,7 @@ packages=(build-essential cmake pkg-config libeigen3-dev libnlopt-cxx-dev libfmt
           nlohmann-json3-dev libgtest-dev libgmock-dev libbenchmark-dev libtbb-dev openmpi-bin libopenmpi-dev python3 python3-ase python3-numpy xtb
           clang libclang-rt-14-dev  # clang and its runtime libraries: the libFuzzer targets (scripts/fuzz.sh)
           chromium nodejs  # the browser test of the check report (tests/external/check_report_browser.js)
-          pybind11-dev python3-pybind11 python3-pytest)  # the Python module (python/) and its tests (tests/python)
+          pybind11-dev python3-pybind11 python3-pytest python3-venv)  # the Python module (python/), its tests (tests/python) and its install check (a venv)
 missing=()
 for p in "${packages[@]}"; do
   dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")
