@@ -3,6 +3,7 @@
 
 #include <Eigen/Eigenvalues>
 #include <Eigen/Geometry>
+#include <Eigen/SVD>
 #include <algorithm>
 #include <cmath>
 #include <cstdlib>
@@ -18,6 +19,7 @@
 #include "core/bond_length.hpp"
 #include "core/element.hpp"
 #include "domains/domains.hpp"
+#include "graph/rings.hpp"
 #include "input/smiles.hpp"
 
 using namespace repel;
@@ -791,5 +793,35 @@ TEST(Assemble, AlleneMarksArePlacedWithTheirHandedness) {
         const double det = n1.dot(n2.cross(n3));
         EXPECT_LT(a.chiral_index == 1 ? det : -det, -0.1) << smiles << ": det " << det;
         for (const std::string& w : s.warnings) EXPECT_EQ(w.find("not applied"), std::string::npos) << smiles << ": " << w;
+    }
+}
+
+// A cis-1,4- or cis-1,2-disubstituted cyclohexane has one substituent axial in either chair; the bulkier goes
+// equatorial (A-values, Eliel and Wilen, Stereochemistry of Organic Compounds, Wiley 1994, from memory: tert-butyl
+// 4.9, methyl 1.74, hydroxy 0.9, chlorine 0.5 kcal/mol). Axial: the substituent's bond within 35 degrees of the ring's
+// mean-plane normal (about 0-10 in a chair), equatorial beyond (about 70).
+TEST(Rings, BulkierSubstituentOfACisCyclohexaneIsEquatorial) {
+    struct Case {
+        const char* smiles;
+        int ring_big, big, ring_small, small;  // 0-based atoms: the bulkier substituent and the other
+    };
+    for (const Case& c : {Case{"CC(C)(C)[C@H]1CC[C@@H](O)CC1", 4, 1, 7, 8},  // cis-4-tert-butylcyclohexanol
+                          Case{"C[C@H]1CC[C@@H](Cl)CC1", 1, 0, 4, 5},        // cis-1-chloro-4-methylcyclohexane
+                          Case{"CC(C)(C)[C@H]1CCCC[C@H]1O", 4, 1, 9, 10}}) {  // cis-2-tert-butylcyclohexanol
+        const Structure s = build_smiles(c.smiles);
+        const RingInfo rings = perceive_rings(s.molecule);
+        ASSERT_EQ(rings.rings.size(), 1u) << c.smiles;
+        Vector3d centre = Vector3d::Zero();
+        for (int a : rings.rings[0]) centre += s.positions[static_cast<size_t>(a)];
+        centre /= 6.0;
+        Eigen::MatrixXd pts(6, 3);
+        for (int k = 0; k < 6; ++k) pts.row(k) = (s.positions[static_cast<size_t>(rings.rings[0][static_cast<size_t>(k)])] - centre).transpose();
+        const Vector3d normal = Eigen::JacobiSVD<Eigen::MatrixXd>(pts, Eigen::ComputeThinV).matrixV().col(2);
+        auto tilt = [&](int ring_atom, int sub) {
+            const Vector3d u = (s.positions[static_cast<size_t>(sub)] - s.positions[static_cast<size_t>(ring_atom)]).normalized();
+            return std::acos(std::min(1.0, std::fabs(u.dot(normal)))) * 180 / M_PI;
+        };
+        EXPECT_GT(tilt(c.ring_big, c.big), 35.0) << c.smiles << ": the bulkier substituent is axial";
+        EXPECT_LT(tilt(c.ring_small, c.small), 35.0) << c.smiles << ": the other substituent is equatorial (not cis?)";
     }
 }

@@ -69,6 +69,39 @@ constexpr double kLift = 0.1;
 
 size_t at(int i) { return static_cast<size_t>(i); }
 
+// How strongly a substituent prefers the equatorial position of a cyclohexane chair: its conformational free energy
+// (A-value, kcal/mol) by its first atom and that atom's heavy neighbours besides the ring. Values from Eliel and Wilen,
+// Stereochemistry of Organic Compounds (Wiley, 1994), chapter 11, from memory: CH3 1.74, CH2R 1.8, CHR2 2.2, CR3 4.9,
+// phenyl 2.8, vinyl 1.7, carbonyl (CO2H, COMe) 1.3, C#N 0.2, NH2 1.4, NR2 2.1, OH 0.9, OR 0.6, SH 1.2, F 0.25,
+// Cl, Br, I 0.5, SiMe3 2.5. The chair whose substituents' sum over the equatorial side is larger is kept: a
+// tert-butyl goes equatorial opposite a hydroxy group (cis-4-tert-butylcyclohexanol), a methyl opposite a chlorine.
+double equatorial_preference(const Molecule& m, const MoleculeDomains& d, int ring_atom, int sub) {
+    int heavy = 0;
+    bool aromatic = false, carbonyl = false;
+    for (const Neighbor& nb : m.neighbors(sub)) {
+        if (nb.atom == ring_atom) continue;
+        const int z = m.atoms[at(nb.atom)].z;
+        if (z != 1) ++heavy;
+        const Bond& b = m.bonds[at(nb.bond)];
+        aromatic = aromatic || b.aromatic;
+        carbonyl = carbonyl || (b.order == 2 && (z == 8 || z == 16));
+    }
+    const int steric = d.atoms[at(sub)].steric_number;
+    switch (m.atoms[at(sub)].z) {
+        case 6:
+            if (steric == 4) return heavy >= 3 ? 4.9 : heavy == 2 ? 2.2 : heavy == 1 ? 1.8 : 1.74;
+            if (steric == 3) return aromatic ? 2.8 : carbonyl ? 1.3 : 1.7;
+            return 0.2;
+        case 7: return heavy >= 2 ? 2.1 : 1.4;
+        case 8: return heavy >= 1 ? 0.6 : 0.9;
+        case 16: return 1.2;
+        case 9: return 0.25;
+        case 17: case 35: case 53: return 0.5;
+        case 14: return 2.5;
+        default: return 1.0;
+    }
+}
+
 double law_of_cosines(double a, double b, double theta) { return std::sqrt(std::max(0.0, a * a + b * b - 2 * a * b * std::cos(theta))); }
 
 // Distance between the ends of i-j-k-l with bond lengths b1, b2, b3, angles t1 (ijk), t2 (jkl) and torsion phi.
@@ -167,7 +200,8 @@ private:
     }
 
     // How far the heavy substituents of the system's stereocentres (those with two ring neighbours, whose frames the
-    // assembly mirrors to the written handedness) point away from the system's centre: equatorial rather than axial.
+    // assembly mirrors to the written handedness) point away from the system's centre: equatorial rather than axial,
+    // each weighted by how strongly it prefers that (equatorial_preference).
     double outwardness(const std::vector<Vector3d>& x) const {
         Vector3d centre = Vector3d::Zero();
         for (const auto& p : x) centre += p;
@@ -195,7 +229,8 @@ private:
             const Eigen::Matrix3d rot = kabsch_rotation(a, b);
             const Vector3d out = (x[at(c)] - centre).normalized();
             for (size_t k = 0; k < nb.size(); ++k)
-                if (!local_.count(nb[k].atom) && m_.atoms[at(nb[k].atom)].z != 1) score += (rot * dirs[k]).dot(out);
+                if (!local_.count(nb[k].atom) && m_.atoms[at(nb[k].atom)].z != 1)
+                    score += equatorial_preference(m_, d_, t.centre, nb[k].atom) * (rot * dirs[k]).dot(out);
         }
         return score;
     }
