@@ -825,3 +825,26 @@ TEST(Rings, BulkierSubstituentOfACisCyclohexaneIsEquatorial) {
         EXPECT_LT(tilt(c.ring_small, c.small), 35.0) << c.smiles << ": the other substituent is equatorial (not cis?)";
     }
 }
+
+// A biaryl axis with a heavy ortho group (or a naphthyl's peri ring) starts turned, and the refinement does not
+// flatten it (graph/conjugation.hpp: coplanar is a saddle); axes without one, and axes that close a ring, stay
+// coplanar. tests/external/check_xtb_saddles.py takes the twisted builds to GFN2-xTB minima (57-83 degrees).
+TEST(Assemble, CrowdedBiarylAxesAreTurnedAndOthersStayCoplanar) {
+    struct Case {
+        const char* smiles;
+        int a, b, c, d;  // 0-based: ortho atom, axis, axis, ortho atom
+        bool twisted;
+    };
+    for (const Case& k : {Case{"Cc1ccccc1-c1ccccc1C", 1, 6, 7, 8, true}, Case{"Cc1ccccc1-c1ccccc1", 1, 6, 7, 8, true},
+                          Case{"c1ccc2ccccc2c1-c1ccccc1", 8, 9, 10, 11, true},
+                          Case{"c1ccccc1-c1ccccc1", 0, 5, 6, 7, false}, Case{"n1ccccc1-c1ccccn1", 0, 5, 6, 11, false}}) {
+        const Structure s = build_smiles(k.smiles);
+        const double phi = std::fabs(torsion(s, k.a, k.b, k.c, k.d));
+        const double folded = std::min(phi, 180 - phi);
+        if (k.twisted) {
+            EXPECT_GT(folded, 45.0) << k.smiles;
+        } else {
+            EXPECT_LT(folded, 10.0) << k.smiles;
+        }
+    }
+}

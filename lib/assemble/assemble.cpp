@@ -10,6 +10,7 @@
 #include "assemble/place.hpp"
 #include "core/bond_length.hpp"
 #include "core/element.hpp"
+#include "graph/conjugation.hpp"
 
 namespace repel {
 
@@ -31,6 +32,11 @@ constexpr double kPi = M_PI;
 const std::vector<double> kStaggeredOffsets{0, 2 * kPi / 3, -2 * kPi / 3, kPi / 3, -kPi / 3, kPi, kPi / 2, -kPi / 2};
 const std::vector<double> kPlanarOffsets{0, kPi, kPi / 2, -kPi / 2, kPi / 3, -kPi / 3, 2 * kPi / 3, -2 * kPi / 3};
 const std::vector<double> kDoubleBondOffsets{0, kPi};
+// A crowded biaryl axis (graph/conjugation.hpp): turned by kCrowdedBiarylTorsion from coplanar, either way, before
+// the perpendicular.
+constexpr double kBiarylTwist = kCrowdedBiarylTorsion * kPi / 180;
+const std::vector<double> kCrowdedBiarylOffsets{kPi - kBiarylTwist, kBiarylTwist - kPi, kBiarylTwist, -kBiarylTwist,
+                                                kPi / 2, -kPi / 2};
 const std::vector<double> kFixedOffset{0};
 
 double wrap(double a) {
@@ -226,6 +232,7 @@ private:
         if (stereo) return kFixedOffset;
         const Bond& b = m_.bonds[at(bond)];
         if (b.order == 2 && !b.aromatic) return kDoubleBondOffsets;
+        if (crowded_biaryl_bond(m_, bond)) return kCrowdedBiarylOffsets;
         if (planar_centre(m_, d_.atoms[at(p)], p) && planar_centre(m_, d_.atoms[at(c)], c)) return kPlanarOffsets;
         return kStaggeredOffsets;
     }

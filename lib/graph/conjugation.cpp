@@ -92,4 +92,35 @@ bool conjugated_nitrogen(const Molecule& m, int centre, int lewis_lone_pairs, in
     return false;
 }
 
+bool crowded_biaryl_bond(const Molecule& m, int bond) {
+    const Bond& b = m.bonds[static_cast<size_t>(bond)];
+    if (b.aromatic || b.order != 1) return false;
+    auto ortho_atoms = [&](int atom) {
+        std::vector<int> out;
+        for (const Neighbor& nb : m.neighbors(atom))
+            if (m.bonds[static_cast<size_t>(nb.bond)].aromatic) out.push_back(nb.atom);
+        return out;
+    };
+    auto heavy_degree = [&](int atom) {
+        int n = 0;
+        for (const Neighbor& nb : m.neighbors(atom)) n += m.atoms[static_cast<size_t>(nb.atom)].z != 1 ? 1 : 0;
+        return n;
+    };
+    const std::vector<int> oa = ortho_atoms(b.a), ob = ortho_atoms(b.b);
+    if (oa.size() != 2 || ob.size() != 2) return false;
+    // Not an axis that closes a ring (fluorene, carbazole, dibenzofuran: an ortho atom of each side bonded to one
+    // atom, or to each other).
+    for (int x : oa)
+        for (int y : ob) {
+            if (m.bond_between(x, y) >= 0) return false;
+            for (const Neighbor& nx : m.neighbors(x))
+                if (nx.atom != b.a && m.bond_between(nx.atom, y) >= 0) return false;
+        }
+    // An ortho atom with three heavy neighbours (the axis atom, the next ring atom, and a substituent or a fused ring).
+    for (const std::vector<int>* ortho : {&oa, &ob})
+        for (int o : *ortho)
+            if (heavy_degree(o) >= 3) return true;
+    return false;
+}
+
 }  // namespace repel

@@ -98,4 +98,15 @@ bool conjugated_donor(const Molecule& m, int i, const DonorCounts& counts, const
 // `lewis_lone_pairs`: sigma and delocalised lone pairs together.
 bool conjugated_nitrogen(const Molecule& m, int centre, int lewis_lone_pairs, int bonded);
 
+// A single bond between two aromatic rings (a biaryl axis, not in a ring) with a heavy atom at an ortho position of
+// either ring: a substituent, or the fused ring at a naphthyl's peri side. Such rings cannot be coplanar (the ortho
+// group meets the other ring's ortho hydrogen), so the conjugation that would flatten them yields: the assembly
+// starts them turned (kCrowdedBiarylTorsion) and the refinement has no planar torsion across them. Gas-phase
+// 2,2'-dimethylbiphenyl and 2-methylbiphenyl are twisted by about 60-90 degrees, biphenyl by 44 (from memory); a
+// planar start is a saddle a quantum-chemistry optimisation keeps by symmetry.
+bool crowded_biaryl_bond(const Molecule& m, int bond);
+// Degrees: the torsion a crowded biaryl axis starts at (common practice: between the 44 degrees of biphenyl and the
+// perpendicular of the most crowded).
+inline constexpr double kCrowdedBiarylTorsion = 65;
+
 }  // namespace repel

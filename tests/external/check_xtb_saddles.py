@@ -12,7 +12,9 @@ memory): 90 degrees across an even number of cumulated double bonds, 0 or 180 ac
 degrees both in the start and at the optimum. For allenes written with a mark ('@'/'@@', OpenSMILES "Tetrahedral
 Allene-like Systems"), the sign too: for FC=[C@]=CF the mark's list is F, H | H, F about the middle atom, and '@'
 (det[n1-c, n2-c, n3-c] < 0, as common.py's expected_chiral_sign) is the F-C...C-F dihedral of -90 degrees (derived
-from the definition by hand; the test of the same sign in tests/test_assemble.cpp computes the determinant). Closes with `N passed, M failed`; exits 1 on any failure.
+from the definition by hand; the test of the same sign in tests/test_assemble.cpp computes the determinant). Crowded
+biaryls (an ortho substituent or a peri ring): the ring-ring dihedral, folded into 0..90, within 45..90 in the start
+and at the optimum (a coplanar start is a saddle xtb keeps). Closes with `N passed, M failed`; exits 1 on any failure.
 """
 
 import concurrent.futures
@@ -39,10 +41,19 @@ MOLECULES = [
     # Allene marks: the handedness the mark asks for (here in the dihedral's sign, F-C...C-F), kept by xtb.
     ('(@)-1,3-difluoroallene', 'FC=[C@]=CF', (0, 1, 3, 4), -90),
     ('(@@)-1,3-difluoroallene', 'FC=[C@@]=CF', (0, 1, 3, 4), 90),
+    # Crowded biaryls ('twisted': the ring-ring dihedral folded into 0..90 lies within 45..90, in the start and at the
+    # optimum). Gas phase, from memory: 2,2'-dimethylbiphenyl about 70-90 degrees, 2-methylbiphenyl about 58; a
+    # coplanar start is a saddle xtb keeps by symmetry. Atoms: ortho C of ring A, the axis, ortho C of ring B.
+    ("2,2'-dimethylbiphenyl", 'Cc1ccccc1-c1ccccc1C', (1, 6, 7, 8), 'twisted'),
+    ('2-methylbiphenyl', 'Cc1ccccc1-c1ccccc1', (1, 6, 7, 8), 'twisted'),
+    ('1-phenylnaphthalene', 'c1ccc2ccccc2c1-c1ccccc1', (8, 9, 10, 11), 'twisted'),
 ]
 
 
 def off_target(phi, expected):
+    if expected == 'twisted':  # folded into 0..90, within 45..90
+        folded = min(abs(phi), 180 - abs(phi))
+        return 45 - folded if folded < 45 else 0.0
     if expected == -90:  # a signed target: the handedness of an allene mark
         return abs(phi + 90)
     phi = abs(phi)
@@ -76,11 +87,12 @@ def main():
         if opt is None:
             t.check(False, f'{name}: {extra}')
             continue
-        t.check(off_target(start, expected) <= 10,
-                f'{name}: built end-group dihedral {start:.1f} deg, expected {expected} (0 or 180)')
-        t.check(off_target(opt, expected) <= 10,
-                f'{name}: xtb optimum dihedral {opt:.1f} deg, expected {expected} (0 or 180)')
-        print(f'{name:34s} built {start:7.1f}  xtb {opt:7.1f}  expected {expected:3d}  cycles {extra}')
+        slack = 0 if expected == 'twisted' else 10
+        t.check(off_target(start, expected) <= slack,
+                f'{name}: built dihedral {start:.1f} deg, expected {expected} (0 or 180; twisted: 45..90 folded)')
+        t.check(off_target(opt, expected) <= slack,
+                f'{name}: xtb optimum dihedral {opt:.1f} deg, expected {expected} (0 or 180; twisted: 45..90 folded)')
+        print(f'{name:34s} built {start:7.1f}  xtb {opt:7.1f}  expected {expected!s:>7}  cycles {extra}')
     print(f'({time.time() - clock:.1f} s)')
     t.finish(tmp)
 
