@@ -5,6 +5,7 @@
 #include <Eigen/Geometry>
 #include <Eigen/SVD>
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <cstdlib>
 #include <fstream>
@@ -837,7 +838,8 @@ TEST(Assemble, CrowdedBiarylAxesAreTurnedAndOthersStayCoplanar) {
     };
     for (const Case& k : {Case{"Cc1ccccc1-c1ccccc1C", 1, 6, 7, 8, true}, Case{"Cc1ccccc1-c1ccccc1", 1, 6, 7, 8, true},
                           Case{"c1ccc2ccccc2c1-c1ccccc1", 8, 9, 10, 11, true},
-                          Case{"c1ccccc1-c1ccccc1", 0, 5, 6, 7, false}, Case{"n1ccccc1-c1ccccn1", 0, 5, 6, 11, false}}) {
+                          Case{"c1ccccc1-c1ccccc1", 0, 5, 6, 7, false}, Case{"n1ccccc1-c1ccccn1", 0, 5, 6, 11, false},
+                          Case{"C(=C/c1ccccc1)\\c1ccccc1", 0, 1, 2, 3, false}}) {
         const Structure s = build_smiles(k.smiles);
         const double phi = std::fabs(torsion(s, k.a, k.b, k.c, k.d));
         const double folded = std::min(phi, 180 - phi);
@@ -845,6 +847,27 @@ TEST(Assemble, CrowdedBiarylAxesAreTurnedAndOthersStayCoplanar) {
             EXPECT_GT(folded, 45.0) << k.smiles;
         } else {
             EXPECT_LT(folded, 10.0) << k.smiles;
+        }
+    }
+}
+
+// The blades of a propeller (aromatic rings on one trigonal atom) start turned the same way by about 30 degrees
+// (graph/conjugation.hpp; trityl cation about 32, benzophenone and triphenylborane about 30, from memory), not at
+// 0/90/90, a saddle GFN2-xTB kept 16 kcal/mol above the propeller.
+TEST(Assemble, PropellerBladesAreTurnedTheSameWay) {
+    struct Case {
+        const char* smiles;
+        std::vector<std::array<int, 4>> blades;  // 0-based: hub neighbour, hub, ipso, ortho
+    };
+    for (const Case& k : {Case{"[C+](c1ccccc1)(c1ccccc1)c1ccccc1", {{7, 0, 1, 2}, {1, 0, 7, 8}, {1, 0, 13, 14}}},
+                          Case{"O=C(c1ccccc1)c1ccccc1", {{0, 1, 2, 3}, {0, 1, 8, 9}}},
+                          Case{"B(c1ccccc1)(c1ccccc1)c1ccccc1", {{7, 0, 1, 2}, {1, 0, 7, 8}, {1, 0, 13, 14}}}}) {
+        const Structure s = build_smiles(k.smiles);
+        for (const auto& d : k.blades) {
+            const double phi = std::fabs(torsion(s, d[0], d[1], d[2], d[3]));
+            const double folded = std::min(phi, 180 - phi);
+            EXPECT_GT(folded, 15.0) << k.smiles;
+            EXPECT_LT(folded, 50.0) << k.smiles;
         }
     }
 }

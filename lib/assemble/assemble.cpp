@@ -37,6 +37,10 @@ const std::vector<double> kDoubleBondOffsets{0, kPi};
 constexpr double kBiarylTwist = kCrowdedBiarylTorsion * kPi / 180;
 const std::vector<double> kCrowdedBiarylOffsets{kPi - kBiarylTwist, kBiarylTwist - kPi, kBiarylTwist, -kBiarylTwist,
                                                 kPi / 2, -kPi / 2};
+// A propeller's blade (graph/conjugation.hpp): turned by kPropellerTorsion, the same way first.
+constexpr double kBladeTwist = kPropellerTorsion * kPi / 180;
+const std::vector<double> kPropellerOffsets{kPi - kBladeTwist, kBladeTwist, kBladeTwist - kPi, -kBladeTwist, kPi / 2,
+                                            -kPi / 2};
 const std::vector<double> kFixedOffset{0};
 
 double wrap(double a) {
@@ -233,6 +237,7 @@ private:
         const Bond& b = m_.bonds[at(bond)];
         if (b.order == 2 && !b.aromatic) return kDoubleBondOffsets;
         if (crowded_biaryl_bond(m_, bond)) return kCrowdedBiarylOffsets;
+        if (propeller_blade_bond(m_, bond)) return kPropellerOffsets;
         if (planar_centre(m_, d_.atoms[at(p)], p) && planar_centre(m_, d_.atoms[at(c)], c)) return kPlanarOffsets;
         return kStaggeredOffsets;
     }

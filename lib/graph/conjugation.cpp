@@ -123,4 +123,22 @@ bool crowded_biaryl_bond(const Molecule& m, int bond) {
     return false;
 }
 
+bool propeller_blade_bond(const Molecule& m, int bond) {
+    const Bond& b = m.bonds[static_cast<size_t>(bond)];
+    if (b.aromatic || b.order != 1) return false;
+    auto aromatic_bonds = [&](int atom) {
+        int n = 0;
+        for (const Neighbor& nb : m.neighbors(atom)) n += m.bonds[static_cast<size_t>(nb.bond)].aromatic ? 1 : 0;
+        return n;
+    };
+    for (int side = 0; side < 2; ++side) {
+        const int ring = side == 0 ? b.a : b.b, hub = side == 0 ? b.b : b.a;
+        if (aromatic_bonds(ring) != 2 || aromatic_bonds(hub) != 0 || m.degree(hub) != 3) continue;
+        for (const Neighbor& nb : m.neighbors(hub))
+            if (nb.atom != ring && m.bonds[static_cast<size_t>(nb.bond)].order == 1 && aromatic_bonds(nb.atom) == 2)
+                return true;
+    }
+    return false;
+}
+
 }  // namespace repel

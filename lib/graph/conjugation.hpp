@@ -111,4 +111,11 @@ bool crowded_biaryl_bond(const Molecule& m, int bond);
 // perpendicular of the most crowded).
 inline constexpr double kCrowdedBiarylTorsion = 65;
 
+// A single bond from an aromatic ring to a trigonal atom outside rings that carries another aromatic ring: a blade of
+// a propeller (benzophenone, the trityl cation, triphenylborane, triphenylamine). Coplanar blades put their ortho
+// hydrogens onto each other; the rings turn the same way by about 30 degrees (trityl cation about 32, benzophenone
+// about 30, triphenylborane about 30; from memory). Treated as a crowded biaryl axis, at kPropellerTorsion.
+bool propeller_blade_bond(const Molecule& m, int bond);
+inline constexpr double kPropellerTorsion = 30;
+
 }  // namespace repel

@@ -292,10 +292,11 @@ private:
         std::array<double, 4> coefficients;
         if (bond.aromatic || bond.order == 2)
             coefficients = planar_torsion(kPiBond);
-        else if (bond.order == 1 && conjugated && !crowded_biaryl_bond(m_, m_.bond_between(b, c)))
+        else if (bond.order == 1 && conjugated && !crowded_biaryl_bond(m_, m_.bond_between(b, c)) &&
+                 !propeller_blade_bond(m_, m_.bond_between(b, c)))
             coefficients = planar_torsion(kConjugation);
         else if (bond.order == 1 && conjugated)
-            return;  // a crowded biaryl axis: no planar torsion (graph/conjugation.hpp)
+            return;  // a crowded biaryl axis or a propeller's blade: no planar torsion (graph/conjugation.hpp)
         else if (bond.order == 1 && sb == 4 && sc == 4)
             coefficients = staggered_torsion(kStaggered);
         else
