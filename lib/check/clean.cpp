@@ -110,7 +110,6 @@ void stereo_as_found(const Molecule& m, const MoleculeDomains& d, const std::vec
     }
 }
 
-
 // How a centre named in a shape finding sits out of place, which moves its bonds with it.
 enum class OutOfPlace {
     no,         // its angles are wrong but it is where it belongs: a group was turned about it, keeping the bonds
