@@ -83,6 +83,14 @@ void stretch(ReadStructure& r, int fixed, int moved, double by) {
     for (int i : group) p[static_cast<size_t>(i)] += by * u;
 }
 
+// Turns atom `moved` about `centre` by `degrees` in the plane moved-centre-`in_plane` (negative: away from in_plane).
+void turn_in_plane(ReadStructure& r, int centre, int moved, int in_plane, double degrees) {
+    auto& p = r.structure.positions;
+    const auto c = static_cast<size_t>(centre), x = static_cast<size_t>(moved), y = static_cast<size_t>(in_plane);
+    const Vector3d axis = (p[x] - p[c]).cross(p[y] - p[c]).normalized();
+    p[x] = p[c] + Eigen::AngleAxisd(degrees * M_PI / 180, axis) * (p[x] - p[c]);
+}
+
 int first_atom(const ReadStructure& r, int z, int after = -1) {
     for (int i = after + 1; i < r.structure.molecule.atom_count(); ++i)
         if (r.structure.molecule.atoms[static_cast<size_t>(i)].z == z) return i;
@@ -322,9 +330,7 @@ TEST(CheckDamage, OneAngleBent20DegreesAndAFlatAmineAreFound) {
     // Ethanol (G2) with one methyl H turned 20 degrees about C1 in the plane H7-C1-C2: the RMS over C1's six angles
     // stays under 15 degrees; the worst angle does not.
     ReadStructure r = xyz(kG2Ethanol);
-    auto& p = r.structure.positions;
-    const Vector3d axis = (p[6] - p[0]).cross(p[1] - p[0]).normalized();
-    p[6] = p[0] + Eigen::AngleAxisd(-20.0 * M_PI / 180, axis) * (p[6] - p[0]);
+    turn_in_plane(r, 0, 6, 1, -20);
     const Audit a = audit_structure(r);
     ASSERT_FALSE(a.findings.empty()) << describe(a);
     EXPECT_EQ(a.findings.front().atoms, std::vector<int>{1}) << describe(a);
@@ -374,8 +380,7 @@ TEST(CheckFix, AGroupTurnedAboutACentreKeepsTheCentresOtherBonds) {
     stretch(r, 1, 0, 0.08);
     auto& p = r.structure.positions;
     const double co = (p[1] - p[2]).norm(), cc = (p[0] - p[1]).norm();
-    const Vector3d axis = (p[6] - p[0]).cross(p[1] - p[0]).normalized();
-    p[6] = p[0] + Eigen::AngleAxisd(-20.0 * M_PI / 180, axis) * (p[6] - p[0]);
+    turn_in_plane(r, 0, 6, 1, -20);
     const Audit a = audit_structure(r);
     ASSERT_FALSE(a.findings.empty());
     EXPECT_FALSE(names_bond(a, 1, 2)) << describe(a);
@@ -405,9 +410,7 @@ TEST(CheckDamage, AHydrogenTurnedAtAThreeMemberedRingIsFound) {
     // H4 turned 20 degrees about C1 in the plane H4-C1-C2: the centre was skipped (ring angles are not fitted) and
     // the damage passed; now it leans toward one ring bond and is found at C1.
     ReadStructure r = xyz(kG2Cyclopropane);
-    auto& p = r.structure.positions;
-    const Vector3d axis = (p[3] - p[0]).cross(p[1] - p[0]).normalized();
-    p[3] = p[0] + Eigen::AngleAxisd(-20.0 * M_PI / 180, axis) * (p[3] - p[0]);
+    turn_in_plane(r, 0, 3, 1, -20);
     const Audit a = audit_structure(r);
     ASSERT_FALSE(a.findings.empty()) << describe(a);
     EXPECT_EQ(a.findings.front().atoms, std::vector<int>{1}) << describe(a);

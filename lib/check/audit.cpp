@@ -40,10 +40,6 @@ std::string label(const Molecule& m, int i) {
     return fmt::format("{}{}", element(m.atoms[static_cast<size_t>(i)].z).symbol, i + 1);
 }
 
-// Below this triple product of three unit bond directions a tetrahedral centre counts as drawn flat: 40% of the
-// regular tetrahedron's 0.770 (a choice; a CH3 flattened onto the plane normal to its C-X bond gives 0).
-constexpr double kFlatTetrahedron = 0.3;
-
 Severity severity_of(double ratio) { return ratio >= 2.0 ? Severity::error : Severity::warning; }
 
 // An O or N with lone pairs bonded to Si, P, B, Al, Ge, As or a sulfonyl S: its angle opens far beyond what the

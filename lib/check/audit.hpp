@@ -29,6 +29,10 @@ struct Finding {
 
 // The thresholds (each a choice, common practice; tests/test_check.cpp shows what each catches).
 inline constexpr double kHeavyBondFactor = 2.0;  // see AuditOptions::bond_deviation
+// Below this triple product of three unit bond directions a tetrahedral centre counts as drawn flat: 40% of the
+// regular tetrahedron's 0.770 (a choice; a CH3 flattened onto the plane normal to its C-X bond gives 0). The audit's
+// finding and --fix's judgement of a moved centre (clean.cpp) share it.
+inline constexpr double kFlatTetrahedron = 0.3;
 // Too short: bond_deviation times these (0.09 and 0.15 A by default). The sound structures of
 // tests/external/check_audit_damage.py (102 G2 geometries and 122 GFN2-xTB optima; 2,635 light bonds) lie no further than
 // 0.063 A (light) and 0.058 A (heavier) short of the expected length, while they reach +0.117 and +0.146 long.

@@ -35,9 +35,6 @@ double torsion(const std::vector<Eigen::Vector3d>& p, int a, int b, int c, int d
 // A signed volume below this (A^3) is too flat to say which hand the centre has; it is not kept.
 constexpr double kMinVolume = 0.1;
 
-// Below this triple product of three bond directions a four-domain centre is drawn flat (the audit's threshold).
-constexpr double kFlatCentre = 0.3;
-
 // CShM of a metal centre's ligand directions (a hapto ligand at its centroid) against the model's directions.
 double model_shape(const MetalCentre& c, const std::vector<Eigen::Vector3d>& pos) {
     const int cn = c.coordination_number;
@@ -118,7 +115,7 @@ enum class OutOfPlace {
 };
 
 // The audit's own measures: the triple product of three bond directions (0.770 in a regular tetrahedron) below
-// kFlatCentre, an angle sum below 360 degrees less the planarity tolerance.
+// kFlatTetrahedron, an angle sum below 360 degrees less the planarity tolerance.
 OutOfPlace out_of_place(const Molecule& m, const MoleculeDomains& d, const std::vector<Eigen::Vector3d>& pos, int c) {
     const auto& nbs = m.neighbors(c);
     const CentreDomains& cd = d.atoms[static_cast<size_t>(c)];
@@ -134,7 +131,7 @@ OutOfPlace out_of_place(const Molecule& m, const MoleculeDomains& d, const std::
     for (size_t a = 0; a < nbs.size(); ++a)
         for (size_t b = a + 1; b < nbs.size(); ++b)
             for (size_t e = b + 1; e < nbs.size(); ++e)
-                if (std::fabs(dir(a).dot(dir(b).cross(dir(e)))) < kFlatCentre) return OutOfPlace::flattened;
+                if (std::fabs(dir(a).dot(dir(b).cross(dir(e)))) < kFlatTetrahedron) return OutOfPlace::flattened;
     return OutOfPlace::no;
 }
 

@@ -290,17 +290,18 @@ private:
                                 (pi_[static_cast<size_t>(b)] && donor_[static_cast<size_t>(c)]) ||
                                 (pi_[static_cast<size_t>(c)] && donor_[static_cast<size_t>(b)]);
         std::array<double, 4> coefficients;
-        if (bond.aromatic || bond.order == 2)
+        if (bond.aromatic || bond.order == 2) {
             coefficients = planar_torsion(kPiBond);
-        else if (bond.order == 1 && conjugated && !crowded_biaryl_bond(m_, m_.bond_between(b, c)) &&
-                 !propeller_blade_bond(m_, m_.bond_between(b, c)))
+        } else if (bond.order == 1 && conjugated) {
+            // A crowded biaryl axis or a propeller's blade: no planar torsion (graph/conjugation.hpp).
+            const int e = m_.bond_between(b, c);
+            if (crowded_biaryl_bond(m_, e) || propeller_blade_bond(m_, e)) return;
             coefficients = planar_torsion(kConjugation);
-        else if (bond.order == 1 && conjugated)
-            return;  // a crowded biaryl axis or a propeller's blade: no planar torsion (graph/conjugation.hpp)
-        else if (bond.order == 1 && sb == 4 && sc == 4)
+        } else if (bond.order == 1 && sb == 4 && sc == 4) {
             coefficients = staggered_torsion(kStaggered);
-        else
+        } else {
             return;
+        }
         int best_a = -1, best_d = -1;
         for (const Neighbor& na : m_.neighbors(b)) {
             // The metal of a hapto ligand's atom is not one of its domains: no torsion through it.
