@@ -112,6 +112,20 @@ private:
     SdfRecordReader reader_;
 };
 
+ConformerSettings conformer_settings(const BuildArgs& args) {
+    ConformerSettings c = args.conformer_settings;
+    c.count = args.conformers;
+    return c;
+}
+
+// The records of an ensemble, separated as the writer separates a batch's records (one batch record per molecule).
+std::string ensemble_records(const StructureWriter& writer, const std::vector<Structure>& ensemble,
+                             const std::string& title) {
+    std::string out;
+    for (size_t k = 0; k < ensemble.size(); ++k) out += (k ? writer.separator() : "") + writer.record(ensemble[k], title);
+    return out;
+}
+
 }  // namespace
 
 void write_whole_file(const std::string& path, const std::string& text) {
@@ -150,8 +164,15 @@ int run_build(const BuildArgs& args) {
     auto build_one = [&](const std::string& text, const std::string& name) {
         BuildSettings settings = options;
         settings.name = name;
-        built = build(text, settings);
-        return writer->record(built, name.empty() ? text : name);
+        const std::string title = name.empty() ? text : name;
+        if (args.conformers <= 0) {
+            built = build(text, settings);
+            return writer->record(built, title);
+        }
+        // An ensemble is a whole file of records even for one molecule (JSON: an array).
+        const std::vector<Structure> ensemble = build_conformers(text, settings, conformer_settings(args));
+        built = ensemble.front();
+        return writer->begin() + ensemble_records(*writer, ensemble, title) + writer->end();
     };
 
     if (!args.picture.empty() && !args.input_file.empty()) {
@@ -204,8 +225,12 @@ int run_batch(const BuildArgs& args, const StructureWriter& writer, const BuildS
             if (sdf) settings.notation = TextNotation::sd_record;
             settings.name = item.name;
             settings.first_line = item.line;
-            Structure s = repel::build(item.text, settings);
-            o.record = writer.record(s, item.name.empty() ? (sdf ? std::string("record ") + std::to_string(item.index + 1) : item.text) : item.name);
+            const std::string title =
+                item.name.empty() ? (sdf ? std::string("record ") + std::to_string(item.index + 1) : item.text) : item.name;
+            if (args.conformers > 0)
+                o.record = ensemble_records(writer, build_conformers(item.text, settings, conformer_settings(args)), title);
+            else
+                o.record = writer.record(repel::build(item.text, settings), title);
             o.ok = true;
         } catch (const std::exception& e) {
             const std::string where =
@@ -251,6 +276,10 @@ int run_batch(const BuildArgs& args, const StructureWriter& writer, const BuildS
     out_options.identity = fmt::format("input={} input-format={} shard={}/{} format={} refine={}", args.input_file,
                                        input_format, shard.k, shard.n, args.format.empty() ? std::filesystem::path(args.output_file).extension().string() : args.format,
                                        options.refine ? 1 : 0);
+    if (args.conformers > 0)  // a resume with other ensemble options would mix two kinds of output
+        out_options.identity += fmt::format(" conformers={} conformer-rmsd={} conformer-tries={} conformer-seed={}",
+                                            args.conformers, args.conformer_settings.distinct_rmsd,
+                                            args.conformer_settings.tries, args.conformer_settings.seed);
     out_options.resume = args.resume;
     out_options.progress = args.progress && isatty(STDERR_FILENO);
     out_options.input_size = input_size;

@@ -35,6 +35,8 @@ struct BuildArgs {
     std::optional<int> multiplicity;  // --multiplicity: written instead of the domain analysis's
     std::string picture;      // --picture FILE.svg: a drawing of the one molecule built (refused with -i)
     bool picture_hydrogens = true;  // --picture-without-hydrogens turns it off
+    int conformers = 0;             // --conformers N: an ensemble of up to N per molecule (0: one build)
+    ConformerSettings conformer_settings;  // --conformer-rmsd, --conformer-tries, --conformer-seed
 };
 
 struct ShapeArgs {

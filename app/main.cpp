@@ -72,6 +72,22 @@ int run(int argc, char** argv) {
     cmd_build->add_option("--picture", build.picture,
                           "also draw the molecule as a standalone SVG picture (one molecule only, not with -i)");
     cmd_build->add_flag("--picture-without-hydrogens", build_no_h, "leave hydrogen atoms out of --picture");
+    cmd_build->add_option("--conformers", build.conformers,
+                          "write up to N distinct conformers per molecule, lowest energy first (consecutive records; "
+                          "each carries its rank, energy and RMSD to the first)")
+        ->check(CLI::Range(1, 1000))
+        ->type_name("N");
+    cmd_build->add_option("--conformer-rmsd", build.conformer_settings.distinct_rmsd,
+                          "Angstrom: conformers whose heavy atoms lie closer than this after superposition are one")
+        ->check(CLI::Range(0.0, 100.0))
+        ->capture_default_str();
+    cmd_build->add_option("--conformer-tries", build.conformer_settings.tries,
+                          "candidate shapes refined per molecule (0: three per conformer asked for, at least 12)")
+        ->check(CLI::Range(0, 100000))
+        ->capture_default_str();
+    cmd_build->add_option("--conformer-seed", build.conformer_settings.seed,
+                          "seed of the sampling (the same seed gives the same conformers)")
+        ->capture_default_str();
     auto* in_opt = cmd_build->get_option("INPUT");
     auto* file_opt = cmd_build->get_option("--input");
     in_opt->excludes(file_opt);

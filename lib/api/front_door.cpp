@@ -5,6 +5,7 @@
 #include <fstream>
 #include <sstream>
 
+#include "assemble/ensemble.hpp"
 #include "check/clean.hpp"
 #include "check/report.hpp"
 #include "check/report_page.hpp"
@@ -71,6 +72,30 @@ Structure build(std::string_view text, const BuildSettings& settings) {
 Structure build(Molecule molecule, const BuildSettings& settings) {
     molecule.make_hydrogens_explicit();  // adds nothing when they are explicit already
     return build_structure(molecule, build_options(settings));
+}
+
+namespace {
+
+EnsembleOptions ensemble_options(const ConformerSettings& settings) {
+    EnsembleOptions o;
+    o.count = settings.count;
+    o.distinct_rmsd = settings.distinct_rmsd;
+    o.tries = settings.tries;
+    o.seed = settings.seed;
+    return o;
+}
+
+}  // namespace
+
+std::vector<Structure> build_conformers(std::string_view text, const BuildSettings& settings,
+                                        const ConformerSettings& conformers) {
+    return build_ensemble(read_molecule(text, settings), build_options(settings), ensemble_options(conformers));
+}
+
+std::vector<Structure> build_conformers(Molecule molecule, const BuildSettings& settings,
+                                        const ConformerSettings& conformers) {
+    molecule.make_hydrogens_explicit();
+    return build_ensemble(molecule, build_options(settings), ensemble_options(conformers));
 }
 
 namespace {

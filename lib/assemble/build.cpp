@@ -240,32 +240,20 @@ std::vector<ChiralTarget> placed_chiral_targets(const Molecule& molecule, const 
     return chiral;
 }
 
-// Every ring system embedded on its own; strain and missed conditions are said in warnings, and marked in `warned`.
-std::vector<RingSystemCoordinates> embed_ring_systems(const Molecule& skeleton, const MoleculeDomains& domains,
-                                                      const RingInfo& rings, const std::vector<ChiralTarget>& chiral,
-                                                      std::vector<char>& warned_system, std::vector<std::string>& warnings) {
-    std::vector<RingSystemCoordinates> ring_xyz;
-    ring_xyz.reserve(rings.systems.size());
-    warned_system.assign(rings.systems.size(), 0);
-    for (size_t k = 0; k < rings.systems.size(); ++k) {
-        check_deadline("embedding ring systems");
-        RingSystemEmbedding e = embed_ring_system(skeleton, domains, rings, static_cast<int>(k), chiral);
-        const auto& atoms = rings.systems[k];
-        if (e.worst_angle_strain > kStrainWarningDegrees || !e.satisfied) warned_system[k] = 1;
-        if (e.worst_angle_strain > kStrainWarningDegrees)
-            warnings.push_back(fmt::format(
-                "strained ring system (atoms {}..{}, {} atoms): ring angles up to {:.0f} degrees from the domain "
-                "angles; check the geometry with a quantum-chemistry optimisation",
-                atoms.front() + 1, atoms.back() + 1, atoms.size(), e.worst_angle_strain));
-        if (!e.satisfied)
-            warnings.push_back(fmt::format("ring system (atoms {}..{}, {} atoms) could not be given its ideal ring "
-                                             "geometry (bond, angle or torsion targets missed); check it with a "
-                                             "quantum-chemistry optimisation",
-                                             atoms.front() + 1, atoms.back() + 1, atoms.size()));
-        ring_xyz.push_back(std::move(e.coordinates));
-    }
-
-    return ring_xyz;
+// A ring system's strain and missed conditions said in warnings, and marked in `warned`.
+void note_ring_system(const std::vector<int>& atoms, const RingSystemEmbedding& e, char& warned,
+                      std::vector<std::string>& warnings) {
+    if (e.worst_angle_strain > kStrainWarningDegrees || !e.satisfied) warned = 1;
+    if (e.worst_angle_strain > kStrainWarningDegrees)
+        warnings.push_back(fmt::format(
+            "strained ring system (atoms {}..{}, {} atoms): ring angles up to {:.0f} degrees from the domain "
+            "angles; check the geometry with a quantum-chemistry optimisation",
+            atoms.front() + 1, atoms.back() + 1, atoms.size(), e.worst_angle_strain));
+    if (!e.satisfied)
+        warnings.push_back(fmt::format("ring system (atoms {}..{}, {} atoms) could not be given its ideal ring "
+                                         "geometry (bond, angle or torsion targets missed); check it with a "
+                                         "quantum-chemistry optimisation",
+                                         atoms.front() + 1, atoms.back() + 1, atoms.size()));
 }
 
 // The last checks of a built structure: overlapping atoms refuse it, the closest contact is said, and a non-finite
@@ -287,97 +275,163 @@ void final_checks(const Molecule& molecule, Structure& s) {
 
 }  // namespace
 
-Structure build_structure(const Molecule& written, const BuildOptions& options) {
-    Structure s;
-    // Metallocenes written as separate ions are joined into the sandwich they are (metal.hpp).
-    Molecule joined_storage;
+// What building one molecule needs beyond the molecule itself, worked out once (StructureBuilder).
+struct StructureBuilder::Analysis {
+    BuildOptions options;
+    Molecule molecule;  // as written, or with separated sandwich ions joined
     std::vector<std::string> join_notes;
-    bool joined = false;
-    for (const Atom& a : written.atoms)
-        if (is_transition_metal(a.z)) {
-            joined_storage = written;
-            joined = join_separated_sandwich_ions(joined_storage, join_notes) > 0 || !join_notes.empty();
+    MetalAnalysis metals;
+    bool hapto = false;
+    Molecule skeleton;  // without the bonds of hapto ligands (hapto only)
+    MoleculeDomains domains;
+    MoleculeDomains refine_domains;  // with a length for every bond of the whole molecule (hapto only)
+    std::vector<ChiralTarget> chiral, centre_targets;
+    std::vector<DoubleBondTarget> double_bonds;
+    RingInfo rings;
+    Structure base;  // charge, multiplicity, warnings of the analysis; the molecule with its single electrons
+
+    const Molecule& frame() const { return hapto ? skeleton : molecule; }
+    const MoleculeDomains& refined_domains() const { return hapto ? refine_domains : domains; }
+};
+
+StructureBuilder::StructureBuilder(const Molecule& written, const BuildOptions& options)
+    : a_(std::make_unique<Analysis>()) {
+    Analysis& a = *a_;
+    a.options = options;
+    // Metallocenes written as separate ions are joined into the sandwich they are (metal.hpp).
+    a.molecule = written;
+    for (const Atom& atom : written.atoms)
+        if (is_transition_metal(atom.z)) {
+            join_separated_sandwich_ions(a.molecule, a.join_notes);
             break;
         }
-    const Molecule& molecule = joined ? joined_storage : written;
-    s.molecule = molecule;
+    const Molecule& molecule = a.molecule;
     const int n = molecule.atom_count();
     if (n == 0) throw InputError("nothing to build: the molecule has no atoms");
-    const ScopedDeadline deadline(options.time_limit);
-    for (const Atom& a : molecule.atoms)
-        if (a.hydrogens > 0)
+    for (const Atom& atom : molecule.atoms)
+        if (atom.hydrogens > 0)
             throw std::logic_error("build_structure needs explicit hydrogens (Molecule::make_hydrogens_explicit)");
 
     // Metal centres are analysed on the whole molecule; the walk, the rings and the ring embedding see it without
     // the bonds of hapto ligands (each such ligand is one domain of its metal and is placed whole afterwards).
-    MetalAnalysis metals;
-    for (const Atom& a : molecule.atoms)
-        if (is_transition_metal(a.z)) {
-            metals = analyse_metals(molecule, true, options.metals);
+    for (const Atom& atom : molecule.atoms)
+        if (is_transition_metal(atom.z)) {
+            a.metals = analyse_metals(molecule, true, options.metals);
             break;
         }
-    const bool hapto = !metals.hapto_bonds.empty();
-    const Molecule skeleton_storage = hapto ? without_hapto_bonds(molecule, metals) : Molecule();
-    const Molecule& skeleton = hapto ? skeleton_storage : molecule;
-    const MoleculeDomains domains = analyse_domains(skeleton, true, metals.empty() ? nullptr : &metals);
+    a.hapto = !a.metals.hapto_bonds.empty();
+    if (a.hapto) a.skeleton = without_hapto_bonds(molecule, a.metals);
+    const Molecule& skeleton = a.frame();
+    a.domains = analyse_domains(skeleton, true, a.metals.empty() ? nullptr : &a.metals);
+    if (a.hapto) a.refine_domains = with_bond_lengths_of(molecule, a.domains);
     check_deadline("analysing the electron domains");
-    s.charge = domains.charge;
-    s.multiplicity = domains.multiplicity;
-    s.multiplicity_reason = domains.multiplicity_reason;
-    s.warnings = join_notes;
-    for (const std::string& w : domains.warnings) s.warnings.push_back(w);
-    apply_charge_and_multiplicity(molecule, domains, options, s);
+    Structure& s = a.base;
+    s.molecule = molecule;
+    s.charge = a.domains.charge;
+    s.multiplicity = a.domains.multiplicity;
+    s.multiplicity_reason = a.domains.multiplicity_reason;
+    s.warnings = a.join_notes;
+    for (const std::string& w : a.domains.warnings) s.warnings.push_back(w);
+    apply_charge_and_multiplicity(molecule, a.domains, options, s);
     for (int i = 0; i < n; ++i)
         s.molecule.atoms[static_cast<size_t>(i)].radical_electrons =
-            domains.atoms[static_cast<size_t>(i)].single_electrons + domains.atoms[static_cast<size_t>(i)].p_single_electrons;
+            a.domains.atoms[static_cast<size_t>(i)].single_electrons +
+            a.domains.atoms[static_cast<size_t>(i)].p_single_electrons;
 
-    const std::vector<ChiralTarget> chiral = placed_chiral_targets(molecule, skeleton, domains, s.warnings);
+    a.chiral = placed_chiral_targets(molecule, skeleton, a.domains, s.warnings);
     // An allene's handedness is set by the assembly's choice of torsion (the refinement has no term across the chain
     // and keeps it); the ring embedding and the refinement get the targets of stereocentres only.
-    std::vector<ChiralTarget> centre_targets;
-    for (const ChiralTarget& t : chiral)
-        if (!is_allene_target(molecule, t)) centre_targets.push_back(t);
-    const auto double_bonds = double_bond_targets(molecule);
-
-    const RingInfo rings = perceive_rings(skeleton);
+    for (const ChiralTarget& t : a.chiral)
+        if (!is_allene_target(molecule, t)) a.centre_targets.push_back(t);
+    a.double_bonds = double_bond_targets(molecule);
+    a.rings = perceive_rings(skeleton);
     check_deadline("perceiving rings");
+}
+
+StructureBuilder::~StructureBuilder() = default;
+
+const Molecule& StructureBuilder::molecule() const { return a_->molecule; }
+const MoleculeDomains& StructureBuilder::domains() const { return a_->domains; }
+const RingInfo& StructureBuilder::rings() const { return a_->rings; }
+bool StructureBuilder::has_hapto_ligands() const { return a_->hapto; }
+
+StructureBuilder::Built StructureBuilder::build(const std::vector<char>& other_mirror) const {
+    const Analysis& a = *a_;
+    const Molecule& skeleton = a.frame();
+    Built out;
+    Structure& s = out.structure;
+    s = a.base;
     std::vector<char> warned_system;
-    const std::vector<RingSystemCoordinates> ring_xyz =
-        embed_ring_systems(skeleton, domains, rings, centre_targets, warned_system, s.warnings);
-    s.positions = assemble_positions(skeleton, domains, rings, ring_xyz, chiral);
-    std::vector<std::optional<Vector3d>> site_shift;
-    if (hapto) place_hapto_ligands(skeleton, domains, s.positions, s.warnings, &site_shift);
-    check_deadline("assembling the frames");
-    pack_components(molecule, s.positions);
-    check_deadline("packing the components");
-
-    if (options.refine && n > 1) {
-        RefineOptions refine_options;
-        refine_options.gradient_tolerance = options.refine_tolerance;
-        refine_options.bond_outlier = options.bond_outlier;
-        refine_options.angle_outlier = options.angle_outlier;
-        refine_options.ring_graph = hapto ? &skeleton : nullptr;
-        if (hapto) refine_options.restraints = hapto_frame_restraints(skeleton, domains.metals, s.positions, site_shift);
-        const RefineResult r = refine_structure(molecule, hapto ? with_bond_lengths_of(molecule, domains) : domains,
-                                                centre_targets, double_bonds, s.positions, refine_options);
-        if (!r.converged && r.iterations > 0)
-            s.warnings.push_back(fmt::format("refinement not converged after {} iterations{}{}", r.iterations,
-                                             r.message.empty() ? "" : ": ", r.message));
-        self_check(rings, warned_system, r.outliers, options, s.warnings);
+    std::vector<RingSystemCoordinates> ring_xyz;
+    ring_xyz.reserve(a.rings.systems.size());
+    warned_system.assign(a.rings.systems.size(), 0);
+    out.mirrorable.assign(a.rings.systems.size(), 0);
+    for (size_t k = 0; k < a.rings.systems.size(); ++k) {
+        check_deadline("embedding ring systems");
+        const bool other = k < other_mirror.size() && other_mirror[k];
+        RingSystemEmbedding e = embed_ring_system(skeleton, a.domains, a.rings, static_cast<int>(k), a.centre_targets, other);
+        out.mirrorable[k] = e.mirrorable;
+        note_ring_system(a.rings.systems[k], e, warned_system[k], s.warnings);
+        ring_xyz.push_back(std::move(e.coordinates));
     }
+    s.positions = assemble_positions(skeleton, a.domains, a.rings, ring_xyz, a.chiral);
+    std::vector<std::optional<Vector3d>> site_shift;
+    if (a.hapto) place_hapto_ligands(skeleton, a.domains, s.positions, s.warnings, &site_shift);
+    check_deadline("assembling the frames");
+    pack_components(a.molecule, s.positions);
+    check_deadline("packing the components");
+    if (a.hapto) out.restraints = hapto_frame_restraints(skeleton, a.domains.metals, s.positions, site_shift);
+    out.warned_system = warned_system;
+    out.assembly_warnings = s.warnings;
+    if (a.options.refine && a.molecule.atom_count() > 1) refine(out);
+    finish(out.structure);
+    return out;
+}
 
+RefineResult StructureBuilder::refine(Built& built) const {
+    const Analysis& a = *a_;
+    RefineOptions refine_options;
+    refine_options.gradient_tolerance = a.options.refine_tolerance;
+    refine_options.bond_outlier = a.options.bond_outlier;
+    refine_options.angle_outlier = a.options.angle_outlier;
+    refine_options.ring_graph = a.hapto ? &a.skeleton : nullptr;
+    refine_options.restraints = built.restraints;
+    Structure& s = built.structure;
+    const RefineResult r = refine_structure(a.molecule, a.refined_domains(), a.centre_targets, a.double_bonds,
+                                            s.positions, refine_options);
+    if (!r.converged && r.iterations > 0)
+        s.warnings.push_back(fmt::format("refinement not converged after {} iterations{}{}", r.iterations,
+                                         r.message.empty() ? "" : ": ", r.message));
+    self_check(a.rings, built.warned_system, r.outliers, a.options, s.warnings);
+    return r;
+}
+
+void StructureBuilder::finish(Structure& s) const {
+    const Analysis& a = *a_;
     check_deadline("refining");
-    for (const ChiralTarget& t : chiral)
+    for (const ChiralTarget& t : a.chiral)
         if (!chirality_met(t, s.positions))
             s.warnings.push_back(fmt::format("stereocentre at atom {} does not have the written handedness in 3D",
                                              t.centre + 1));
-    for (const DoubleBondTarget& t : double_bonds)
+    for (const DoubleBondTarget& t : a.double_bonds)
         if (!double_bond_met(t, s.positions))
             s.warnings.push_back(fmt::format("double bond {}-{} does not have the written configuration in 3D",
                                              t.b + 1, t.c + 1));
+    final_checks(a.molecule, s);
+}
 
-    final_checks(molecule, s);
-    return s;
+bool StructureBuilder::stereo_kept(const std::vector<Eigen::Vector3d>& positions) const {
+    for (const ChiralTarget& t : a_->chiral)
+        if (!chirality_met(t, positions)) return false;
+    for (const DoubleBondTarget& t : a_->double_bonds)
+        if (!double_bond_met(t, positions)) return false;
+    return true;
+}
+
+Structure build_structure(const Molecule& written, const BuildOptions& options) {
+    const ScopedDeadline deadline(options.time_limit);
+    const StructureBuilder builder(written, options);
+    return builder.build().structure;
 }
 
 }  // namespace repel

@@ -1,11 +1,16 @@
 // Whole-molecule building: domain frames assembled into Cartesian coordinates, then refined.
 #pragma once
 
+#include <memory>
 #include <optional>
+#include <vector>
 
 #include "core/limits.hpp"
 #include "domains/metal.hpp"
+#include "domains/domains.hpp"
 #include "graph/molecule.hpp"
+#include "graph/rings.hpp"
+#include "refine/refine.hpp"
 
 namespace repel {
 
@@ -49,5 +54,43 @@ struct BuildOptions {
 // cannot be built (a valence that cannot be satisfied, contradictory stereo), UnsupportedError for what is not
 // supported yet. Known weaknesses of the result are listed in Structure::warnings.
 Structure build_structure(const Molecule& molecule, const BuildOptions& options = {});
+
+// The analysis of one molecule kept, so that it can be assembled and refined more than once without analysing it
+// again (the conformer ensemble: ring systems as their other mirror image, other torsions). build_structure is
+// StructureBuilder(molecule, options).build().structure under the options' time limit; the builder itself sets no
+// deadline (its caller's holds).
+class StructureBuilder {
+public:
+    StructureBuilder(const Molecule& molecule, const BuildOptions& options = {});
+    ~StructureBuilder();
+    StructureBuilder(const StructureBuilder&) = delete;
+    StructureBuilder& operator=(const StructureBuilder&) = delete;
+
+    struct Built {
+        Structure structure;
+        std::vector<char> mirrorable;     // per ring system: its mirror image is another conformation
+        std::vector<char> warned_system;  // per ring system: a warning already names its strain
+        std::vector<DistanceRestraint> restraints;  // the hapto frame held in the refinement
+        std::vector<std::string> assembly_warnings;  // the structure's warnings before the refinement and final checks
+    };
+    // Assembled, refined (unless the options say not) and checked; other_mirror[k]: ring system k taken as the mirror
+    // image the equatorial rule would not take (ignored where the system is not mirrorable).
+    Built build(const std::vector<char>& other_mirror = {}) const;
+    // The build's refinement again from built.structure's positions (warnings for what it leaves added).
+    RefineResult refine(Built& built) const;
+    // The final checks of a build (stereochemistry as written, overlaps refused, the closest contact said).
+    void finish(Structure& structure) const;
+    // Every written stereocentre and double-bond configuration met by these positions.
+    bool stereo_kept(const std::vector<Eigen::Vector3d>& positions) const;
+
+    const Molecule& molecule() const;  // hydrogens explicit, separated sandwich ions joined
+    const MoleculeDomains& domains() const;
+    const RingInfo& rings() const;
+    bool has_hapto_ligands() const;
+
+private:
+    struct Analysis;
+    std::unique_ptr<Analysis> a_;
+};
 
 }  // namespace repel

@@ -1,5 +1,6 @@
 #include "assemble/ring_embed.hpp"
 
+#include <Eigen/Eigenvalues>
 #include <Eigen/Geometry>
 #include <fmt/format.h>
 #include <algorithm>
@@ -163,9 +164,9 @@ public:
         }
     }
 
-    RingSystemEmbedding run() {
+    RingSystemEmbedding run(bool other_mirror) {
         RingSystemEmbedding out = shape();
-        prefer_equatorial(out.coordinates);
+        out.mirrorable = prefer_equatorial(out.coordinates, other_mirror);
         return out;
     }
 
@@ -236,13 +237,31 @@ private:
     }
 
     // Ring systems without handedness of their own may be taken as their mirror image (for a chair: the other
-    // chair); take the one that puts the substituents of stereocentres equatorial.
-    void prefer_equatorial(std::vector<Vector3d>& x) const {
+    // chair); take the one that puts the substituents of stereocentres equatorial, or the other one when asked.
+    // Returns whether the mirror image is another conformation (no handedness of its own, not flat).
+    bool prefer_equatorial(std::vector<Vector3d>& x, bool other_mirror) const {
         for (const VolumeCondition& v : volume_conditions())
-            if (v.sign != 0) return;
+            if (v.sign != 0) return false;
         auto mirrored = x;
         for (auto& p : mirrored) p.x() = -p.x();
-        if (outwardness(mirrored) > outwardness(x) + 1e-6) x = std::move(mirrored);
+        const bool flip = outwardness(mirrored) > outwardness(x) + 1e-6;
+        if (flip != other_mirror) x.swap(mirrored);
+        return !flat(x);
+    }
+
+    // All atoms within 0.05 A of their best plane (a flat system is its own mirror image).
+    static bool flat(const std::vector<Vector3d>& x) {
+        if (x.size() < 4) return true;
+        Vector3d centre = Vector3d::Zero();
+        for (const auto& p : x) centre += p;
+        centre /= static_cast<double>(x.size());
+        Eigen::Matrix3d cov = Eigen::Matrix3d::Zero();
+        for (const auto& p : x) cov += (p - centre) * (p - centre).transpose();
+        const Eigen::SelfAdjointEigenSolver<Eigen::Matrix3d> solver(cov);
+        const Vector3d normal = solver.eigenvectors().col(0);
+        for (const auto& p : x)
+            if (std::abs((p - centre).dot(normal)) > 0.05) return false;
+        return true;
     }
 
     const Molecule& m_;
@@ -1090,8 +1109,8 @@ private:
 }  // namespace
 
 RingSystemEmbedding embed_ring_system(const Molecule& molecule, const MoleculeDomains& domains, const RingInfo& rings,
-                                      int system, const std::vector<ChiralTarget>& chiral) {
-    return SystemEmbedder(molecule, domains, rings, system, chiral).run();
+                                      int system, const std::vector<ChiralTarget>& chiral, bool other_mirror) {
+    return SystemEmbedder(molecule, domains, rings, system, chiral).run(other_mirror);
 }
 
 }  // namespace repel

@@ -21,11 +21,15 @@ struct RingSystemEmbedding {
     bool met = true;                // ... within the embedding's acceptance (distance geometry only)
     double error = 0;               // the embedding's final error function (distance geometry only)
     std::string method;             // "polygon", "chair", "envelope", "distance geometry"
+    // The system has no handedness of its own and is not flat, so that its mirror image is another conformation of
+    // the same molecule (a cyclohexane's other chair, an envelope's flap on the other side).
+    bool mirrorable = false;
 };
 
 // Embeds ring system `system`. Stereocentres in `chiral` whose neighbours lie (three or more) in the system, and marked
-// double bonds inside it, are constraints of the embedding.
+// double bonds inside it, are constraints of the embedding. Of a mirrorable system's two mirror images the one that
+// puts substituents equatorial is taken, or the other one when `other_mirror` is set (conformer sampling).
 RingSystemEmbedding embed_ring_system(const Molecule& molecule, const MoleculeDomains& domains, const RingInfo& rings,
-                                      int system, const std::vector<ChiralTarget>& chiral);
+                                      int system, const std::vector<ChiralTarget>& chiral, bool other_mirror = false);
 
 }  // namespace repel

@@ -3,6 +3,7 @@
 
 #include <Eigen/Core>
 #include <cstdint>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -114,6 +115,15 @@ private:
 };
 
 // A molecule with coordinates: what the builder writes and what the checker reads.
+// A member of a conformer ensemble (repel build --conformers): its place, energy and distance from the first.
+struct ConformerInfo {
+    int rank = 1;                // 1: the lowest energy
+    int count = 1;               // conformers in the ensemble
+    double energy = 0;           // the ranking energy, kcal/mol
+    double relative_energy = 0;  // above the first, kcal/mol
+    double rmsd_to_first = 0;    // Angstrom, heavy atoms superposed, symmetry-equivalent atoms matched
+};
+
 struct Structure {
     Molecule molecule;
     std::vector<Eigen::Vector3d> positions;  // Angstrom, one per atom
@@ -121,6 +131,7 @@ struct Structure {
     int multiplicity = 1;                    // 2S+1
     std::string multiplicity_reason;         // how the multiplicity was decided, where more than a count went into it
     std::vector<std::string> warnings;       // known weaknesses of this structure, for the user and the file
+    std::optional<ConformerInfo> conformer;  // set for the members of a conformer ensemble; the writers carry it
 };
 
 // One structure as a file states it, with what the file said and did not say: what the readers of XYZ, PDB and SDF

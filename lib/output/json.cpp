@@ -2,7 +2,8 @@
 //   {"name", "charge", "multiplicity", "multiplicity_reason" (only where a rule decided it: metal centres),
 //    "atoms": [{"index" (1-based), "element", "x", "y", "z" (Angstrom, 6 decimals), "charge"}, ...],
 //    "bonds": [{"atoms": [i, j] (1-based), "order"}, ...],
-//    "warnings": ["...", ...]}
+//    "conformer": {"rank", "count", "energy", "relative_energy" (kcal/mol), "rmsd_to_first" (Angstrom)} (members of a
+//    conformer ensemble only), "warnings": ["...", ...]}
 // laid out one atom and one bond a line so that the file reads well and diffs well. Several structures make one
 // array: see writer.hpp for when a caller uses begin()/separator()/end(). Text that is not valid UTF-8 is written
 // with U+FFFD in place of the bad bytes, so the document always parses.
@@ -61,6 +62,15 @@ std::string JsonWriter::record(const Structure& structure, const std::string& ti
     out += "  \"multiplicity\": " + dump(Json(structure.multiplicity)) + ",\n";
     if (!structure.multiplicity_reason.empty())
         out += "  \"multiplicity_reason\": " + dump(Json(structure.multiplicity_reason)) + ",\n";
+    if (const auto& c = structure.conformer) {
+        Json conformer;
+        conformer["rank"] = c->rank;
+        conformer["count"] = c->count;
+        conformer["energy"] = tidy(c->energy, 4);
+        conformer["relative_energy"] = tidy(c->relative_energy, 4);
+        conformer["rmsd_to_first"] = tidy(c->rmsd_to_first, 4);
+        out += "  \"conformer\": " + dump(conformer) + ",\n";
+    }
     out += array_field("atoms", atoms) + ",\n";
     out += array_field("bonds", bonds) + ",\n";
     out += array_field("warnings", warnings) + "\n";

@@ -118,6 +118,9 @@ std::string title_records(const std::string& title) {
 std::string remark_records(const Structure& structure) {
     std::string out = padded(fmt::format("REMARK   6 CHARGE {} MULTIPLICITY {}", structure.charge,
                                          structure.multiplicity));
+    if (const auto& c = structure.conformer)
+        out += padded(fmt::format("REMARK   6 CONFORMER {} OF {} ENERGY {:.4f} RELATIVE {:.4f} RMSD {:.4f}", c->rank,
+                                  c->count, c->energy, c->relative_energy, c->rmsd_to_first));
     for (const std::string& warning : structure.warnings) {
         const std::string text = "WARNING " + one_line(warning, true);
         for (size_t pos = 0; pos < text.size(); pos += kRemarkText)

@@ -15,7 +15,9 @@
 //    with the mass number.
 //  - Bonds: Bond::order as kekulized, types 1/2/3. CTfile bond type 4 means aromatic, not quadruple, and there is
 //    no quadruple type: a structure with a quadruple bond is refused with a message rather than written wrong.
-//  - Data items > <charge>, > <multiplicity>, and > <warnings> (one warning a line) when there are any.
+//  - Data items > <charge>, > <multiplicity>, for a member of a conformer ensemble > <conformer> (its rank, 1 the
+//    lowest energy), > <conformers> (how many), > <energy> and > <relative_energy> (kcal/mol), > <rmsd_to_first>
+//    (Angstrom), and > <warnings> (one warning a line) when there are any.
 #include <fmt/compile.h>
 #include <fmt/format.h>
 
@@ -191,6 +193,11 @@ std::string data_items(const Structure& s, const std::string& title) {
         out += "> <name>\n" + name + "\n\n";
     }
     out += fmt::format("> <charge>\n{}\n\n> <multiplicity>\n{}\n\n", s.charge, s.multiplicity);
+    if (s.conformer)
+        out += fmt::format("> <conformer>\n{}\n\n> <conformers>\n{}\n\n> <energy>\n{:.4f}\n\n> <relative_energy>\n{:.4f}"
+                           "\n\n> <rmsd_to_first>\n{:.4f}\n\n",
+                           s.conformer->rank, s.conformer->count, s.conformer->energy, s.conformer->relative_energy,
+                           s.conformer->rmsd_to_first);
     std::string warnings;
     for (const std::string& w : s.warnings)
         for (const std::string& line : data_lines(w))

@@ -2,7 +2,8 @@
 //
 // The comment line follows the extended-XYZ convention (key=value pairs separated by spaces; a value in double quotes
 // may hold spaces, with \" and \\ escaping a quote and a backslash; common practice), so that readers of plain XYZ
-// keep it as a comment and readers of extended XYZ get name, charge, multiplicity and warnings as typed values.
+// keep it as a comment and readers of extended XYZ get name, charge, multiplicity and warnings as typed values
+// (and a conformer's rank, count, energies in kcal/mol and RMSD to the first in Angstrom).
 // No Properties key is written: its default (species, then 3 position columns) is what the atom lines hold.
 #include <fmt/format.h>
 
@@ -30,6 +31,9 @@ std::string comment_line(const Structure& structure, const std::string& title) {
     std::string line;
     if (!title.empty()) line += "name=" + quoted(title) + " ";
     line += fmt::format("charge={} multiplicity={}", structure.charge, structure.multiplicity);
+    if (const auto& c = structure.conformer)
+        line += fmt::format(" conformer={} conformers={} energy={:.4f} relative_energy={:.4f} rmsd_to_first={:.4f}",
+                            c->rank, c->count, c->energy, c->relative_energy, c->rmsd_to_first);
     std::string warnings;
     for (const std::string& w : structure.warnings) {
         if (w.empty()) continue;

@@ -7,6 +7,7 @@
 // for a size or time limit is one too), what repel cannot do yet throws repel::UnsupportedError.
 #pragma once
 
+#include <cstdint>
 #include <memory>
 #include <optional>
 #include <string>
@@ -55,6 +56,25 @@ Structure build(std::string_view text, const BuildSettings& settings = {});
 // The same for a molecule made in code or read elsewhere; its implicit hydrogens (Atom::hydrogens) are made explicit
 // here. settings.notation, name and first_line are not used.
 Structure build(Molecule molecule, const BuildSettings& settings = {});
+
+// ---- Conformer ensembles ---------------------------------------------------------------------------------------
+
+struct ConformerSettings {
+    int count = 10;              // at most this many conformers (at least 1)
+    double distinct_rmsd = 0.5;  // Angstrom: two conformers closer than this (heavy atoms, superposed) are one
+    int tries = 0;               // candidates refined (0: automatic, 3 x count, at least 12)
+    std::uint64_t seed = 1;      // the same text, settings and seed give the same ensemble on any thread
+};
+
+// Up to settings.count distinct conformers of one species, lowest ranking energy first, each with its ConformerInfo
+// (<repel/molecule.hpp>: rank, count, energy and relative energy in kcal/mol, RMSD to the first). Candidates: the
+// default build, ring systems as their other mirror image (the other chair), and rotatable bonds turned to their
+// hybridisation's minima; every written stereocentre and double-bond configuration is kept. Fewer than count come
+// back when the molecule has fewer distinct shapes. The time limit holds for the whole ensemble.
+std::vector<Structure> build_conformers(std::string_view text, const BuildSettings& settings = {},
+                                        const ConformerSettings& conformers = {});
+std::vector<Structure> build_conformers(Molecule molecule, const BuildSettings& settings = {},
+                                        const ConformerSettings& conformers = {});
 
 // ---- Electron domains (shape) ---------------------------------------------------------------------------------
 

@@ -1,0 +1,519 @@
+#include "assemble/ensemble.hpp"
+
+#include <Eigen/Geometry>
+
+#include <algorithm>
+#include <cmath>
+#include <map>
+#include <numbers>
+#include <numeric>
+
+#include "core/element.hpp"
+#include "core/error.hpp"
+#include "core/geometry.hpp"
+#include "core/limits.hpp"
+
+namespace repel {
+
+using Eigen::Vector3d;
+
+namespace {
+
+size_t at(int i) { return static_cast<size_t>(i); }
+
+// splitmix64 (Steele, Lea, Flood, OOPSLA 2014): a fixed, portable stream, so that an ensemble is the same on every
+// machine and library (the standard distributions are not).
+class Stream {
+public:
+    explicit Stream(std::uint64_t seed) : state_(seed) {}
+    std::uint64_t next() {
+        std::uint64_t z = (state_ += 0x9e3779b97f4a7c15ULL);
+        z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ULL;
+        z = (z ^ (z >> 27)) * 0x94d049bb133111ebULL;
+        return z ^ (z >> 31);
+    }
+    size_t below(size_t n) { return n ? static_cast<size_t>(next() % n) : 0; }
+
+private:
+    std::uint64_t state_;
+};
+
+bool is_metal_atom(int z) { return is_transition_metal(z); }
+
+// An end of a bond whose other neighbours are all terminal atoms of one element (CH3, CF3, OH, a carboxylate's
+// oxygens), or none: turning it gives the same shape.
+bool symmetric_rotor(const Molecule& m, int end, int other) {
+    int z = -1;
+    for (const Neighbor& nb : m.neighbors(end)) {
+        if (nb.atom == other) continue;
+        const int nz = m.atoms[at(nb.atom)].z;
+        if (m.neighbors(nb.atom).size() != 1 || (z >= 0 && nz != z)) return false;
+        z = nz;
+    }
+    return true;
+}
+
+bool has_double_to_hetero(const Molecule& m, int atom) {
+    for (const Neighbor& nb : m.neighbors(atom)) {
+        const Bond& b = m.bonds[at(nb.bond)];
+        const int z = m.atoms[at(nb.atom)].z;
+        if (b.order == 2 && (z == 7 || z == 8 || z == 16)) return true;
+    }
+    return false;
+}
+
+// The C-N / C-O / C-S link of an amide, ester, thioamide, amidine, carbamate or urea: planar, kept in its built form.
+bool planar_link(const Molecule& m, int a, int b) {
+    for (int side = 0; side < 2; ++side) {
+        const int c = side ? b : a, x = side ? a : b;
+        const int zx = m.atoms[at(x)].z;
+        if (m.atoms[at(c)].z == 6 && (zx == 7 || zx == 8 || zx == 16) && has_double_to_hetero(m, c)) return true;
+    }
+    return false;
+}
+
+bool linear_centre(const CentreDomains& c) { return c.bonded == 2 && c.lone_pairs + c.single_electrons == 0 && c.steric_number == 2; }
+
+// The atoms on b's side of the bond a-b (a not crossed).
+std::vector<int> side_of(const Molecule& m, int a, int b) {
+    std::vector<char> seen(at(m.atom_count()), 0);
+    seen[at(a)] = seen[at(b)] = 1;
+    std::vector<int> out{b};
+    for (size_t k = 0; k < out.size(); ++k)
+        for (const Neighbor& nb : m.neighbors(out[k]))
+            if (!seen[at(nb.atom)]) {
+                seen[at(nb.atom)] = 1;
+                out.push_back(nb.atom);
+            }
+    return out;
+}
+
+// Turns b's side of a-b about the bond by `degrees`.
+void turn(std::vector<Vector3d>& x, const std::vector<int>& side, int a, int b, double degrees) {
+    const Vector3d axis = (x[at(b)] - x[at(a)]).normalized();
+    const Eigen::AngleAxisd r(degrees * std::numbers::pi / 180, axis);
+    const Vector3d origin = x[at(b)];
+    for (int i : side)
+        if (i != b) x[at(i)] = origin + r * (x[at(i)] - origin);
+}
+
+// Heavy atoms, or every atom for molecules with fewer than three heavy atoms.
+std::vector<int> compared_atoms(const Molecule& m) {
+    std::vector<int> heavy;
+    for (int i = 0; i < m.atom_count(); ++i)
+        if (m.atoms[at(i)].z != 1) heavy.push_back(i);
+    if (heavy.size() >= 3) return heavy;
+    std::vector<int> all(at(m.atom_count()));
+    std::iota(all.begin(), all.end(), 0);
+    return all;
+}
+
+double rmsd_of(const std::vector<Vector3d>& a, const std::vector<Vector3d>& b, const std::vector<int>& atoms,
+               const std::vector<int>& match, Eigen::Matrix3d* rotation, Vector3d* ca, Vector3d* cb) {
+    Vector3d ma = Vector3d::Zero(), mb = Vector3d::Zero();
+    for (size_t k = 0; k < atoms.size(); ++k) {
+        ma += a[at(atoms[k])];
+        mb += b[at(match[k])];
+    }
+    ma /= static_cast<double>(atoms.size());
+    mb /= static_cast<double>(atoms.size());
+    std::vector<Vector3d> pa, pb;
+    pa.reserve(atoms.size());
+    pb.reserve(atoms.size());
+    for (size_t k = 0; k < atoms.size(); ++k) {
+        pa.push_back(a[at(atoms[k])] - ma);
+        pb.push_back(b[at(match[k])] - mb);
+    }
+    const Eigen::Matrix3d r = kabsch_rotation(pb, pa);  // b onto a
+    double sum = 0;
+    for (size_t k = 0; k < atoms.size(); ++k) sum += (r * pb[k] - pa[k]).squaredNorm();
+    *rotation = r;
+    *ca = ma;
+    *cb = mb;
+    return std::sqrt(sum / static_cast<double>(atoms.size()));
+}
+
+}  // namespace
+
+std::vector<int> symmetry_classes(const Molecule& m) {
+    const int n = m.atom_count();
+    std::vector<long> key(at(n));
+    for (int i = 0; i < n; ++i) {
+        const Atom& a = m.atoms[at(i)];
+        key[at(i)] = (static_cast<long>(a.z) * 16 + (a.charge + 8)) * 16 + static_cast<long>(m.neighbors(i).size());
+    }
+    std::vector<int> classes(at(n), 0);
+    int distinct = -1;
+    for (int round = 0; round <= n; ++round) {
+        // Classes numbered by the sorted distinct keys.
+        std::vector<long> sorted = key;
+        std::sort(sorted.begin(), sorted.end());
+        sorted.erase(std::unique(sorted.begin(), sorted.end()), sorted.end());
+        for (int i = 0; i < n; ++i)
+            classes[at(i)] = static_cast<int>(std::lower_bound(sorted.begin(), sorted.end(), key[at(i)]) - sorted.begin());
+        if (static_cast<int>(sorted.size()) == distinct) break;
+        distinct = static_cast<int>(sorted.size());
+        // The next key: the class, then the sorted classes of the neighbours with their bond orders.
+        std::map<std::vector<int>, long> ids;
+        for (int i = 0; i < n; ++i) {
+            std::vector<int> sig{classes[at(i)]};
+            std::vector<int> around;
+            for (const Neighbor& nb : m.neighbors(i))
+                around.push_back(classes[at(nb.atom)] * 8 + (m.bonds[at(nb.bond)].aromatic ? 4 : m.bonds[at(nb.bond)].order));
+            std::sort(around.begin(), around.end());
+            sig.insert(sig.end(), around.begin(), around.end());
+            key[at(i)] = ids.emplace(std::move(sig), static_cast<long>(ids.size())).first->second;
+        }
+    }
+    return classes;
+}
+
+namespace {
+
+// Every automorphism of the compared atoms (classes kept, bonds kept both ways), up to `cap`, found depth first on an
+// explicit stack in breadth-first order of the atoms so that each atom after the first of a piece has a mapped
+// neighbour. Returns false when the cap was reached.
+bool automorphisms(const Molecule& m, const std::vector<int>& atoms, const std::vector<int>& classes, size_t cap,
+                   std::vector<std::vector<int>>& out) {
+    const size_t n = atoms.size();
+    std::vector<int> local(at(m.atom_count()), -1);
+    for (size_t k = 0; k < n; ++k) local[at(atoms[k])] = static_cast<int>(k);
+    std::vector<std::vector<int>> adj(n);
+    for (size_t k = 0; k < n; ++k)
+        for (const Neighbor& nb : m.neighbors(atoms[k]))
+            if (local[at(nb.atom)] >= 0) adj[k].push_back(local[at(nb.atom)]);
+    // Breadth-first order.
+    std::vector<int> order;
+    std::vector<char> seen(n, 0);
+    for (size_t s = 0; s < n; ++s) {
+        if (seen[s]) continue;
+        seen[s] = 1;
+        order.push_back(static_cast<int>(s));
+        for (size_t q = order.size() - 1; q < order.size(); ++q)
+            for (int j : adj[at(order[q])])
+                if (!seen[at(j)]) {
+                    seen[at(j)] = 1;
+                    order.push_back(j);
+                }
+    }
+    std::vector<std::vector<char>> bonded(n, std::vector<char>(n, 0));
+    if (n <= 2000)
+        for (size_t k = 0; k < n; ++k)
+            for (int j : adj[k]) bonded[k][at(j)] = 1;
+    else
+        return false;  // too large to enumerate: the class matching alone
+    std::vector<int> image(n, -1);
+    std::vector<char> used(n, 0);
+    // A bound on the search, so that no graph makes it slow (a regular lattice-like graph can need many tries).
+    constexpr long kStepBudget = 200000;
+    long steps = 0;
+    std::vector<int> next(n + 1, 0);  // per depth: the next candidate image to try
+    size_t depth = 0;
+    while (true) {
+        if (depth == n) {
+            std::vector<int> mapping(n);
+            for (size_t k = 0; k < n; ++k) mapping[k] = atoms[at(image[k])];
+            out.push_back(std::move(mapping));
+            if (out.size() >= cap) return false;
+            if (depth == 0) return true;
+            --depth;
+            const int i = order[depth];
+            used[at(image[at(i)])] = 0;
+            image[at(i)] = -1;
+            continue;
+        }
+        if (++steps > kStepBudget) return false;
+        const int i = order[depth];
+        bool placed = false;
+        for (int c = next[depth]; c < static_cast<int>(n); ++c) {
+            if (used[at(c)] || classes[at(atoms[at(c)])] != classes[at(atoms[at(i)])]) continue;
+            bool fits = true;
+            for (size_t d = 0; d < depth && fits; ++d) {
+                const int j = order[d];
+                fits = bonded[at(i)][at(j)] == bonded[at(c)][at(image[at(j)])];
+            }
+            if (!fits) continue;
+            image[at(i)] = c;
+            used[at(c)] = 1;
+            next[depth] = c + 1;
+            next[depth + 1] = 0;
+            ++depth;
+            placed = true;
+            break;
+        }
+        if (placed) continue;
+        if (depth == 0) return true;
+        --depth;
+        const int j = order[depth];
+        used[at(image[at(j)])] = 0;
+        image[at(j)] = -1;
+    }
+}
+
+}  // namespace
+
+ConformerComparer::ConformerComparer(const Molecule& m, bool mirror_images_equal)
+    : atoms_(compared_atoms(m)), classes_(symmetry_classes(m)), mirror_(mirror_images_equal) {
+    capped_ = !automorphisms(m, atoms_, classes_, kMaxSymmetries, mappings_);
+    if (mappings_.empty()) mappings_.push_back(atoms_);
+}
+
+double ConformerComparer::rmsd_one(const std::vector<Vector3d>& a, const std::vector<Vector3d>& b) const {
+    if (atoms_.empty()) return 0;
+    Eigen::Matrix3d r;
+    Vector3d ca, cb;
+    double best = 1e300;
+    std::vector<int> best_match;
+    for (const std::vector<int>& match : mappings_) {
+        const double d = rmsd_of(a, b, atoms_, match, &r, &ca, &cb);
+        if (d < best) {
+            best = d;
+            best_match = match;
+        }
+    }
+    if (!capped_) return best;
+    // Too many symmetries to list: from the best one listed, each atom of a takes the nearest unmatched atom of its
+    // class in b as superposed; twice (the superposition moves with the matching).
+    std::vector<int> match = best_match;
+    rmsd_of(a, b, atoms_, match, &r, &ca, &cb);
+    for (int round = 0; round < 2; ++round) {
+        std::vector<char> used(b.size(), 0);
+        std::vector<int> next(atoms_.size(), -1);
+        for (size_t k = 0; k < atoms_.size(); ++k) {
+            double nearest = 1e300;
+            for (int j : atoms_) {
+                if (used[at(j)] || classes_[at(j)] != classes_[at(atoms_[k])]) continue;
+                const double d = (r * (b[at(j)] - cb) - (a[at(atoms_[k])] - ca)).squaredNorm();
+                if (d < nearest) {
+                    nearest = d;
+                    next[k] = j;
+                }
+            }
+            used[at(next[k])] = 1;  // every class has as many atoms in b as in a, so one is found
+        }
+        if (next == match) break;
+        match = std::move(next);
+        best = std::min(best, rmsd_of(a, b, atoms_, match, &r, &ca, &cb));
+    }
+    return best;
+}
+
+double ConformerComparer::rmsd(const std::vector<Vector3d>& a, const std::vector<Vector3d>& b) const {
+    double d = rmsd_one(a, b);
+    if (mirror_) {
+        std::vector<Vector3d> mirrored = b;
+        for (Vector3d& p : mirrored) p.x() = -p.x();
+        d = std::min(d, rmsd_one(a, mirrored));
+    }
+    return d;
+}
+
+bool may_be_chiral(const Molecule& m, const MoleculeDomains& d, const std::vector<int>& classes) {
+    for (const Atom& a : m.atoms)
+        if (a.chiral_class != ChiralClass::none) return true;
+    for (const Bond& b : m.bonds)
+        if (b.stereo != BondStereo::none) return true;
+    for (int i = 0; i < m.atom_count(); ++i) {
+        const CentreDomains& c = d.atoms[at(i)];
+        if (c.steric_number != 4 || c.bonded < 3) continue;
+        std::vector<int> seen;
+        for (const Neighbor& nb : m.neighbors(i)) seen.push_back(classes[at(nb.atom)]);
+        std::sort(seen.begin(), seen.end());
+        if (std::adjacent_find(seen.begin(), seen.end()) == seen.end()) return true;
+    }
+    return false;
+}
+
+std::vector<RotatableBond> rotatable_bonds(const Molecule& m, const MoleculeDomains& d, const RingInfo& rings) {
+    std::vector<RotatableBond> out;
+    for (int e = 0; e < static_cast<int>(m.bonds.size()); ++e) {
+        const Bond& bond = m.bonds[at(e)];
+        if (bond.order != 1 || bond.aromatic || (at(e) < rings.ring_bond.size() && rings.ring_bond[at(e)])) continue;
+        const int a = bond.a, b = bond.b;
+        if (is_metal_atom(m.atoms[at(a)].z) || is_metal_atom(m.atoms[at(b)].z)) continue;
+        if (symmetric_rotor(m, a, b) || symmetric_rotor(m, b, a)) continue;
+        const CentreDomains& ca = d.atoms[at(a)];
+        const CentreDomains& cb = d.atoms[at(b)];
+        if (linear_centre(ca) || linear_centre(cb) || planar_link(m, a, b)) continue;
+        // The smaller side turns (fewer atoms to move; the same shapes either way).
+        const std::vector<int> sb = side_of(m, a, b), sa = side_of(m, b, a);
+        if (sb.size() + sa.size() != at(m.atom_count())) continue;  // a ring the perception did not list: leave it
+        RotatableBond r;
+        r.a = sb.size() <= sa.size() ? a : b;
+        r.b = r.a == a ? b : a;
+        const bool tetra_a = ca.steric_number == 4, tetra_b = cb.steric_number == 4;
+        const bool planar_a = ca.steric_number == 3, planar_b = cb.steric_number == 3;
+        if (tetra_a && tetra_b) r.turns = {120, 240};
+        else if (planar_a && planar_b) r.turns = {180};
+        else r.turns = {60, 120, 180, 240, 300};
+        out.push_back(std::move(r));
+    }
+    return out;
+}
+
+namespace {
+
+struct Candidate {
+    Structure structure;
+    double energy = 0;
+    int index = 0;  // order of making: ties in energy go to the earlier
+};
+
+// The ranking energy of a refined candidate: the refinement's own energy (the build's terms) evaluated again.
+double candidate_energy(const StructureBuilder& builder, StructureBuilder::Built& built) {
+    StructureBuilder::Built copy = built;
+    return builder.refine(copy).energy_after;
+}
+
+// A ring atom whose two substituents may trade places (axial for equatorial): the plane of its two ring bonds
+// reflects one onto the other.
+struct SwapCentre {
+    int centre = -1, ring1 = -1, ring2 = -1;
+    std::vector<int> side;  // both substituents' atoms
+};
+
+std::vector<SwapCentre> swap_centres(const Molecule& m, const MoleculeDomains& d, const RingInfo& rings,
+                                     const std::vector<int>& classes) {
+    std::vector<SwapCentre> out;
+    for (int i = 0; i < m.atom_count(); ++i) {
+        const int sys = rings.atom_system[at(i)];
+        if (sys < 0 || d.atoms[at(i)].steric_number != 4 || m.atoms[at(i)].chiral_class != ChiralClass::none) continue;
+        std::vector<int> in, outside;
+        for (const Neighbor& nb : m.neighbors(i))
+            (rings.atom_system[at(nb.atom)] == sys ? in : outside).push_back(nb.atom);
+        if (in.size() != 2 || outside.size() != 2 || classes[at(outside[0])] == classes[at(outside[1])]) continue;
+        SwapCentre c{i, in[0], in[1], {}};
+        bool separate = true;
+        for (int o : outside)
+            for (int a : side_of(m, i, o)) {
+                separate = separate && rings.atom_system[at(a)] != sys;
+                c.side.push_back(a);
+            }
+        if (separate) out.push_back(std::move(c));
+    }
+    return out;
+}
+
+// Reflects the substituents of a swap centre through the plane of its ring bonds.
+void swap(std::vector<Vector3d>& x, const SwapCentre& c) {
+    const Vector3d o = x[at(c.centre)];
+    const Vector3d n = (x[at(c.ring1)] - o).cross(x[at(c.ring2)] - o);
+    if (!(n.norm() > 1e-6)) return;
+    const Vector3d u = n.normalized();
+    for (int a : c.side) x[at(a)] -= 2 * (x[at(a)] - o).dot(u) * u;
+}
+
+// One candidate from a base build: the turns and swaps chosen for it applied, refined, checked; false when it fails.
+bool sample(const StructureBuilder& builder, const StructureBuilder::Built& base,
+            const std::vector<RotatableBond>& bonds, const std::vector<std::vector<int>>& sides,
+            const std::vector<SwapCentre>& swaps, Stream& stream, Candidate& out) {
+    StructureBuilder::Built built = base;
+    built.structure.warnings = base.assembly_warnings;
+    bool turned = false;
+    for (const SwapCentre& c : swaps)
+        if (stream.below(4) == 0) {  // one centre in four: most substituents stay where the build put them
+            swap(built.structure.positions, c);
+            turned = true;
+        }
+    for (size_t k = 0; k < bonds.size(); ++k) {
+        const size_t choice = stream.below(bonds[k].turns.size() + 1);  // 0: as built
+        if (choice == 0) continue;
+        turn(built.structure.positions, sides[k], bonds[k].a, bonds[k].b, bonds[k].turns[choice - 1]);
+        turned = true;
+    }
+    if (!turned) return false;
+    builder.refine(built);
+    if (!builder.stereo_kept(built.structure.positions)) return false;
+    try {
+        builder.finish(built.structure);
+    } catch (const UnsupportedError&) {
+        return false;  // overlapping atoms
+    }
+    out.energy = candidate_energy(builder, built);
+    out.structure = std::move(built.structure);
+    return true;
+}
+
+}  // namespace
+
+std::vector<Structure> build_ensemble(const Molecule& molecule, const BuildOptions& build_options,
+                                      const EnsembleOptions& options) {
+    if (options.count < 1) throw InputError("the number of conformers must be at least 1");
+    if (!(options.distinct_rmsd >= 0) || !std::isfinite(options.distinct_rmsd))
+        throw InputError("the RMSD that makes two conformers distinct must be a finite number of at least 0 A");
+    const ScopedDeadline deadline(build_options.time_limit);
+    const StructureBuilder builder(molecule, build_options);
+    StructureBuilder::Built first = builder.build();
+    std::vector<Candidate> candidates;
+    candidates.push_back({first.structure, candidate_energy(builder, first), 0});
+    const Molecule& m = builder.molecule();
+    const int tries = options.tries > 0 ? options.tries : std::max(12, 3 * options.count);
+
+    if (options.count > 1 && build_options.refine && m.atom_count() > 3) {
+        // Ring systems that may be taken as their other mirror image (none holding a metal: that would turn a
+        // chelate's handedness).
+        std::vector<int> mirrorable;
+        for (size_t k = 0; k < first.mirrorable.size(); ++k) {
+            bool metal = false;
+            for (int a : builder.rings().systems[k]) metal = metal || is_metal_atom(m.atoms[at(a)].z);
+            if (first.mirrorable[k] && !metal) mirrorable.push_back(static_cast<int>(k));
+        }
+        const std::vector<RotatableBond> bonds = rotatable_bonds(m, builder.domains(), builder.rings());
+        const std::vector<SwapCentre> swaps = swap_centres(m, builder.domains(), builder.rings(), symmetry_classes(m));
+        std::vector<std::vector<int>> sides;
+        for (const RotatableBond& r : bonds) sides.push_back(side_of(m, r.a, r.b));
+        // Bases: the first build and up to three builds with other mirror images (all of them for up to two
+        // mirrorable systems; else each one flipped alone, then random sets).
+        std::vector<StructureBuilder::Built> bases{first};
+        Stream stream(options.seed);
+        const size_t flips = mirrorable.size() <= 2 ? (size_t{1} << mirrorable.size()) - 1 : std::min<size_t>(3, mirrorable.size());
+        for (size_t f = 1; f <= flips; ++f) {
+            std::vector<char> other(builder.rings().systems.size(), 0);
+            for (size_t k = 0; k < mirrorable.size(); ++k)
+                if (mirrorable.size() <= 2 ? ((f >> k) & 1) : k == f - 1) other[at(mirrorable[k])] = 1;
+            try {
+                StructureBuilder::Built built = builder.build(other);
+                if (!builder.stereo_kept(built.structure.positions)) continue;
+                candidates.push_back({built.structure, candidate_energy(builder, built), static_cast<int>(candidates.size())});
+                bases.push_back(std::move(built));
+            } catch (const UnsupportedError&) {
+            }
+        }
+        if (!bonds.empty() || !swaps.empty())
+            for (int t = static_cast<int>(candidates.size()); t < tries; ++t) {
+                check_deadline("sampling conformers");
+                const StructureBuilder::Built& base = bases[at(t) % bases.size()];
+                Candidate c;
+                c.index = static_cast<int>(candidates.size());
+                if (sample(builder, base, bonds, sides, swaps, stream, c)) candidates.push_back(std::move(c));
+            }
+    }
+
+    std::stable_sort(candidates.begin(), candidates.end(), [](const Candidate& p, const Candidate& q) {
+        return p.energy < q.energy || (p.energy == q.energy && p.index < q.index);
+    });
+    const ConformerComparer comparer(m, !may_be_chiral(m, builder.domains(), symmetry_classes(m)));
+    std::vector<Structure> kept;
+    for (Candidate& c : candidates) {
+        if (static_cast<int>(kept.size()) >= options.count) break;
+        bool distinct = true;
+        for (const Structure& k : kept)
+            if (comparer.rmsd(k.positions, c.structure.positions) < options.distinct_rmsd) {
+                distinct = false;
+                break;
+            }
+        if (!distinct) continue;
+        ConformerInfo info;
+        info.rank = static_cast<int>(kept.size()) + 1;
+        info.energy = c.energy;
+        info.relative_energy = kept.empty() ? 0.0 : c.energy - kept.front().conformer->energy;
+        info.rmsd_to_first =
+            kept.empty() ? 0.0 : comparer.rmsd(kept.front().positions, c.structure.positions);
+        c.structure.conformer = info;
+        kept.push_back(std::move(c.structure));
+    }
+    for (Structure& s : kept) s.conformer->count = static_cast<int>(kept.size());
+    return kept;
+}
+
+}  // namespace repel

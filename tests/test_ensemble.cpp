@@ -1,0 +1,198 @@
+// Conformer ensembles (repel build --conformers): what comes back is distinct, ordered, keeps the written
+// stereochemistry, covers the shapes that matter (both chairs, anti and gauche), and is the same on every run.
+#include <gtest/gtest.h>
+
+#include <Eigen/Eigenvalues>
+#include <Eigen/Geometry>
+#include <cmath>
+#include <nlohmann/json.hpp>
+#include <numbers>
+#include <repel/repel.hpp>
+
+#include "assemble/ensemble.hpp"
+#include "core/geometry.hpp"
+#include "domains/domains.hpp"
+#include "graph/stereo.hpp"
+
+namespace repel {
+namespace {
+
+using Eigen::Vector3d;
+
+double degrees(double radians) { return radians * 180 / std::numbers::pi; }
+
+ConformerSettings count(int n) {
+    ConformerSettings c;
+    c.count = n;
+    return c;
+}
+
+// n-butane has two conformers that differ in heavy atoms: anti (C-C-C-C 180) and gauche (about 60; its mirror image
+// is the same shape). Anti is the lower (Allinger/experiment: gauche about 0.6-0.9 kcal/mol above, from memory).
+TEST(Ensemble, ButaneGivesAntiThenGauche) {
+    const std::vector<Structure> e = build_conformers("CCCC", {}, count(10));
+    ASSERT_EQ(e.size(), 2u);
+    const double anti = std::abs(degrees(dihedral(e[0].positions[0], e[0].positions[1], e[0].positions[2], e[0].positions[3])));
+    const double gauche = std::abs(degrees(dihedral(e[1].positions[0], e[1].positions[1], e[1].positions[2], e[1].positions[3])));
+    EXPECT_NEAR(anti, 180, 10);
+    EXPECT_NEAR(gauche, 65, 15);  // gauche n-butane is 65 degrees in gas-phase structures (from memory)
+    EXPECT_EQ(e[0].conformer->rank, 1);
+    EXPECT_EQ(e[1].conformer->rank, 2);
+    EXPECT_EQ(e[1].conformer->count, 2);
+    EXPECT_GE(e[1].conformer->relative_energy, 0);
+    EXPECT_GT(e[1].conformer->rmsd_to_first, 0.5);
+}
+
+// Angle (degrees) between a substituent's bond and the normal of its six-membered ring's mean plane: near 0 axial,
+// near 70-90 equatorial (common practice).
+double substituent_tilt(const std::vector<Vector3d>& x, const std::vector<int>& ring, int centre, int substituent) {
+    Vector3d c = Vector3d::Zero();
+    for (int a : ring) c += x[static_cast<size_t>(a)];
+    c /= static_cast<double>(ring.size());
+    Eigen::Matrix3d cov = Eigen::Matrix3d::Zero();
+    for (int a : ring) cov += (x[static_cast<size_t>(a)] - c) * (x[static_cast<size_t>(a)] - c).transpose();
+    const Eigen::SelfAdjointEigenSolver<Eigen::Matrix3d> solver(cov);
+    const Vector3d normal = solver.eigenvectors().col(0);
+    const Vector3d bond = (x[static_cast<size_t>(substituent)] - x[static_cast<size_t>(centre)]).normalized();
+    return degrees(std::acos(std::abs(bond.dot(normal))));
+}
+
+// Methylcyclohexane: both chairs, methyl equatorial first (A-value 1.7 kcal/mol, Eliel and Wilen, from memory), then
+// axial.
+TEST(Ensemble, MethylcyclohexaneGivesBothChairs) {
+    const std::vector<Structure> e = build_conformers("CC1CCCCC1", {}, count(10));
+    ASSERT_GE(e.size(), 2u);
+    const std::vector<int> ring{1, 2, 3, 4, 5, 6};
+    EXPECT_GT(substituent_tilt(e[0].positions, ring, 1, 0), 60);
+    EXPECT_LT(substituent_tilt(e[1].positions, ring, 1, 0), 30);
+}
+
+// cis-4-tert-butylcyclohexanol (written stereocentres): the two chairs, the tert-butyl equatorial in the first; both
+// keep the written handedness.
+TEST(Ensemble, StereocentresKeptInEveryConformer) {
+    const std::string smiles = "CC(C)(C)[C@H]1CC[C@@H](O)CC1";
+    const Molecule m = read_molecule(smiles);
+    std::vector<std::string> notes;
+    const std::vector<ChiralTarget> targets = chiral_targets(m, notes);
+    ASSERT_EQ(targets.size(), 2u);
+    const std::vector<Structure> e = build_conformers(smiles, {}, count(10));
+    ASSERT_GE(e.size(), 2u);
+    for (const Structure& s : e)
+        for (const ChiralTarget& t : targets) EXPECT_TRUE(chirality_met(t, s.positions)) << "rank " << s.conformer->rank;
+    const std::vector<int> ring{4, 5, 6, 7, 9, 10};
+    EXPECT_GT(substituent_tilt(e[0].positions, ring, 4, 1), 60);
+}
+
+// A drug-sized molecule with stereocentres and a marked double bond: every conformer keeps both, no two conformers
+// lie closer than the threshold, energies rise with rank, and nothing overlaps.
+TEST(Ensemble, DistinctOrderedAndStereoKept) {
+    const std::string smiles = "C/C=C/C[C@H](N)C(=O)N[C@@H](Cc1ccccc1)C(=O)OCC";
+    const Molecule m = read_molecule(smiles);
+    std::vector<std::string> notes;
+    const std::vector<ChiralTarget> chiral = chiral_targets(m, notes);
+    const std::vector<DoubleBondTarget> doubles = double_bond_targets(m);
+    ASSERT_EQ(chiral.size(), 2u);
+    ASSERT_EQ(doubles.size(), 1u);
+    ConformerSettings settings = count(10);
+    const std::vector<Structure> e = build_conformers(smiles, {}, settings);
+    ASSERT_EQ(e.size(), 10u);
+    const ConformerComparer comparer(m, false);
+    for (size_t i = 0; i < e.size(); ++i) {
+        for (const ChiralTarget& t : chiral) EXPECT_TRUE(chirality_met(t, e[i].positions));
+        for (const DoubleBondTarget& t : doubles) EXPECT_TRUE(double_bond_met(t, e[i].positions));
+        if (i > 0) {
+            EXPECT_GE(e[i].conformer->energy, e[i - 1].conformer->energy);
+        }
+        for (size_t j = 0; j < i; ++j) EXPECT_GE(comparer.rmsd(e[i].positions, e[j].positions), settings.distinct_rmsd);
+        for (int a = 0; a < m.atom_count(); ++a)
+            for (int b = a + 1; b < m.atom_count(); ++b)
+                EXPECT_GT((e[i].positions[static_cast<size_t>(a)] - e[i].positions[static_cast<size_t>(b)]).norm(), 0.7);
+    }
+}
+
+TEST(Ensemble, SameOnEveryRunAndSeedMatters) {
+    const std::string smiles = "CCOC(=O)CCCCN(C)Cc1ccccc1";
+    const auto a = build_conformers(smiles, {}, count(6));
+    const auto b = build_conformers(smiles, {}, count(6));
+    ASSERT_EQ(a.size(), b.size());
+    for (size_t k = 0; k < a.size(); ++k)
+        EXPECT_EQ(write(a[k], WriteFormat::sdf), write(b[k], WriteFormat::sdf));
+    ConformerSettings other = count(6);
+    other.seed = 7;
+    const auto c = build_conformers(smiles, {}, other);
+    bool differs = c.size() != a.size();
+    for (size_t k = 0; k < std::min(a.size(), c.size()); ++k) differs = differs || a[k].positions != c[k].positions;
+    EXPECT_TRUE(differs);
+}
+
+// One conformer asked for: the default build itself, unless a candidate ranks lower; with count 1 no candidate is
+// made, so it is the build.
+TEST(Ensemble, OneConformerIsTheBuild) {
+    const std::string smiles = "OC(=O)c1ccccc1OC(C)=O";
+    const auto e = build_conformers(smiles, {}, count(1));
+    ASSERT_EQ(e.size(), 1u);
+    EXPECT_EQ(e[0].positions, build(smiles).positions);
+    EXPECT_EQ(e[0].conformer->rank, 1);
+}
+
+// Rigid molecules have one conformer however many are asked for.
+TEST(Ensemble, RigidMoleculesGiveOne) {
+    for (const char* smiles : {"c1ccccc1", "O", "FS(F)(F)F", "C1CC2CCC1CC2", "[Xe](F)(F)(F)F"})
+        EXPECT_EQ(build_conformers(smiles, {}, count(10)).size(), 1u) << smiles;
+}
+
+TEST(Ensemble, BadSettingsAreInputErrors) {
+    EXPECT_THROW(build_conformers("CCCC", {}, count(0)), InputError);
+    ConformerSettings nan = count(3);
+    nan.distinct_rmsd = std::nan("");
+    EXPECT_THROW(build_conformers("CCCC", {}, nan), InputError);
+}
+
+// The comparison: symmetry-equivalent atoms may trade places (a tert-butyl turned by 120 degrees is the same), a
+// mirror image is the same shape only for a molecule without stereocentres.
+TEST(Ensemble, ComparerSeesSymmetryAndMirrors) {
+    const Structure s = build("CC(C)(C)CCO");
+    std::vector<Vector3d> turned = s.positions;
+    // Turn the three methyls (atoms 0, 2, 3) about the C1-C4 bond by 120 degrees.
+    const Vector3d axis = (turned[1] - turned[4]).normalized();
+    const Eigen::AngleAxisd r(2 * std::numbers::pi / 3, axis);
+    for (size_t a : {size_t{0}, size_t{2}, size_t{3}}) turned[a] = turned[1] + r * (turned[a] - turned[1]);
+    const ConformerComparer achiral(s.molecule, true);
+    EXPECT_LT(achiral.rmsd(s.positions, turned), 0.05);
+    std::vector<Vector3d> mirrored = s.positions;
+    for (Vector3d& p : mirrored) p.x() = -p.x();
+    EXPECT_LT(achiral.rmsd(s.positions, mirrored), 1e-6);
+
+    const Structure chiral = build("C[C@H](N)C(C)CCl");
+    std::vector<Vector3d> image = chiral.positions;
+    for (Vector3d& p : image) p.x() = -p.x();
+    const ConformerComparer strict(chiral.molecule, false);
+    EXPECT_GT(strict.rmsd(chiral.positions, image), 0.1);
+    EXPECT_TRUE(may_be_chiral(chiral.molecule, analyse_domains(chiral.molecule, true, nullptr),
+                              symmetry_classes(chiral.molecule)));
+    EXPECT_FALSE(may_be_chiral(s.molecule, analyse_domains(s.molecule, true, nullptr), symmetry_classes(s.molecule)));
+}
+
+// The writers carry each conformer's rank, count, energies and RMSD: SD data items, extended-XYZ keys, a JSON object
+// per conformer.
+TEST(Ensemble, WritersCarryTheConformer) {
+    const auto e = build_conformers("CCCC", {}, count(10));
+    ASSERT_EQ(e.size(), 2u);
+    const std::string sdf = write(e, WriteFormat::sdf);
+    EXPECT_NE(sdf.find("> <conformer>\n2\n"), std::string::npos);
+    EXPECT_NE(sdf.find("> <conformers>\n2\n"), std::string::npos);
+    EXPECT_NE(sdf.find("> <rmsd_to_first>\n0.0000\n"), std::string::npos);
+    const std::string xyz = write(e[1], WriteFormat::xyz);
+    EXPECT_NE(xyz.find(" conformer=2 conformers=2 energy="), std::string::npos);
+    const auto json = nlohmann::json::parse(write(e, WriteFormat::json));
+    ASSERT_TRUE(json.is_array());
+    EXPECT_EQ(json[1]["conformer"]["rank"], 2);
+    EXPECT_GT(json[1]["conformer"]["rmsd_to_first"].get<double>(), 0.5);
+    const std::string pdb = write(e[1], WriteFormat::pdb);
+    EXPECT_NE(pdb.find("REMARK   6 CONFORMER 2 OF 2 ENERGY"), std::string::npos);
+    // A single build carries none of it.
+    EXPECT_EQ(write(build("CCCC"), WriteFormat::sdf).find("<conformer>"), std::string::npos);
+}
+
+}  // namespace
+}  // namespace repel
