@@ -388,10 +388,10 @@ StructureBuilder::Built StructureBuilder::build(const std::vector<char>& other_m
     return out;
 }
 
-RefineResult StructureBuilder::refine(Built& built) const {
+RefineResult StructureBuilder::refine(Built& built, double tolerance) const {
     const Analysis& a = *a_;
     RefineOptions refine_options;
-    refine_options.gradient_tolerance = a.options.refine_tolerance;
+    refine_options.gradient_tolerance = tolerance > 0 ? tolerance : a.options.refine_tolerance;
     refine_options.bond_outlier = a.options.bond_outlier;
     refine_options.angle_outlier = a.options.angle_outlier;
     refine_options.ring_graph = a.hapto ? &a.skeleton : nullptr;
@@ -403,6 +403,7 @@ RefineResult StructureBuilder::refine(Built& built) const {
         s.warnings.push_back(fmt::format("refinement not converged after {} iterations{}{}", r.iterations,
                                          r.message.empty() ? "" : ": ", r.message));
     self_check(a.rings, built.warned_system, r.outliers, a.options, s.warnings);
+    built.refined_energy = r.energy_after;
     return r;
 }
 

@@ -354,16 +354,19 @@ std::vector<RotatableBond> rotatable_bonds(const Molecule& m, const MoleculeDoma
 namespace {
 
 struct Candidate {
-    Structure structure;
+    StructureBuilder::Built built;
     double energy = 0;
-    int index = 0;  // order of making: ties in energy go to the earlier
+    int index = 0;          // order of making: ties in energy go to the earlier
+    bool polished = false;  // refined to the build's own tolerance and checked (finish)
 };
 
-// The ranking energy of a refined candidate: the refinement's own energy (the build's terms) evaluated again.
-double candidate_energy(const StructureBuilder& builder, StructureBuilder::Built& built) {
-    StructureBuilder::Built copy = built;
-    return builder.refine(copy).energy_after;
-}
+// Candidates are refined to this RMS gradient first (the build's is 3e-3): enough to rank them and to find the
+// duplicates; only those considered for the ensemble are refined further (measured on the drug set: the ensemble
+// then costs about half as much, with as many conformers kept).
+constexpr double kCandidateTolerance = 2e-2;
+
+// The energy conformers are ranked by: the refinement's own energy (the build's terms) at the refined positions.
+double ranking_energy(const RefineResult& r) { return r.energy_after; }
 
 // A ring atom whose two substituents may trade places (axial for equatorial): the plane of its two ring bonds
 // reflects one onto the other.
@@ -403,11 +406,12 @@ void swap(std::vector<Vector3d>& x, const SwapCentre& c) {
     for (int a : c.side) x[at(a)] -= 2 * (x[at(a)] - o).dot(u) * u;
 }
 
-// One candidate from a base build: the turns and swaps chosen for it applied, refined, checked; false when it fails.
+// One candidate from a base build: the turns and swaps chosen for it applied and refined loosely; false when it fails.
 bool sample(const StructureBuilder& builder, const StructureBuilder::Built& base,
             const std::vector<RotatableBond>& bonds, const std::vector<std::vector<int>>& sides,
             const std::vector<SwapCentre>& swaps, Stream& stream, Candidate& out) {
-    StructureBuilder::Built built = base;
+    out.built = base;
+    StructureBuilder::Built& built = out.built;
     built.structure.warnings = base.assembly_warnings;
     bool turned = false;
     for (const SwapCentre& c : swaps)
@@ -422,16 +426,80 @@ bool sample(const StructureBuilder& builder, const StructureBuilder::Built& base
         turned = true;
     }
     if (!turned) return false;
-    builder.refine(built);
+    const RefineResult r = builder.refine(built, kCandidateTolerance);
+    if (!builder.stereo_kept(built.structure.positions)) return false;
+    out.energy = ranking_energy(r);
+    return true;
+}
+
+// Refined to the build's tolerance and given the build's final checks; false when it fails them (overlapping atoms,
+// stereochemistry lost).
+bool polish(const StructureBuilder& builder, Candidate& c) {
+    if (c.polished) return true;
+    c.polished = true;
+    StructureBuilder::Built& built = c.built;
+    built.structure.warnings = built.assembly_warnings;
+    c.energy = ranking_energy(builder.refine(built));
     if (!builder.stereo_kept(built.structure.positions)) return false;
     try {
         builder.finish(built.structure);
     } catch (const UnsupportedError&) {
-        return false;  // overlapping atoms
+        return false;
     }
-    out.energy = candidate_energy(builder, built);
-    out.structure = std::move(built.structure);
     return true;
+}
+
+// The candidates: the first build, the ring systems' other mirror images, then turned and swapped copies.
+std::vector<Candidate> make_candidates(const StructureBuilder& builder, const StructureBuilder::Built& first,
+                                       double first_energy, const EnsembleOptions& options) {
+    std::vector<Candidate> candidates;
+    candidates.push_back({first, first_energy, 0, true});
+    const Molecule& m = builder.molecule();
+    const int tries = options.tries > 0 ? options.tries : std::max(12, 3 * options.count);
+    // Ring systems that may be taken as their other mirror image (none holding a metal: that would turn a chelate's
+    // handedness).
+    std::vector<int> mirrorable;
+    for (size_t k = 0; k < first.mirrorable.size(); ++k) {
+        bool metal = false;
+        for (int a : builder.rings().systems[k]) metal = metal || is_metal_atom(m.atoms[at(a)].z);
+        if (first.mirrorable[k] && !metal) mirrorable.push_back(static_cast<int>(k));
+    }
+    const std::vector<RotatableBond> bonds = rotatable_bonds(m, builder.domains(), builder.rings());
+    const std::vector<SwapCentre> swaps = swap_centres(m, builder.domains(), builder.rings(), symmetry_classes(m));
+    std::vector<std::vector<int>> sides;
+    for (const RotatableBond& r : bonds) sides.push_back(side_of(m, r.a, r.b));
+    // Bases: the first build and up to three builds with other mirror images (all of them for up to two mirrorable
+    // systems; else each of the first three flipped alone).
+    std::vector<const StructureBuilder::Built*> bases{&first};
+    const size_t flips = mirrorable.size() <= 2 ? (size_t{1} << mirrorable.size()) - 1 : size_t{3};
+    for (size_t f = 1; f <= flips; ++f) {
+        std::vector<char> other(builder.rings().systems.size(), 0);
+        for (size_t k = 0; k < mirrorable.size(); ++k)
+            if (mirrorable.size() <= 2 ? ((f >> k) & 1) : k == f - 1) other[at(mirrorable[k])] = 1;
+        try {
+            Candidate c;
+            c.built = builder.build(other);
+            c.polished = true;
+            if (!builder.stereo_kept(c.built.structure.positions)) continue;
+            c.energy = c.built.refined_energy;
+            c.index = static_cast<int>(candidates.size());
+            candidates.push_back(std::move(c));
+        } catch (const UnsupportedError&) {
+        }
+    }
+    for (size_t k = 1; k < candidates.size(); ++k) bases.push_back(&candidates[k].built);
+    if (bonds.empty() && swaps.empty()) return candidates;
+    std::vector<StructureBuilder::Built> base_copies;  // candidates grows: the bases are copied first
+    for (const StructureBuilder::Built* b : bases) base_copies.push_back(*b);
+    Stream stream(options.seed);
+    for (int t = static_cast<int>(candidates.size()); t < tries; ++t) {
+        check_deadline("sampling conformers");
+        Candidate c;
+        c.index = static_cast<int>(candidates.size());
+        if (sample(builder, base_copies[at(t) % base_copies.size()], bonds, sides, swaps, stream, c))
+            candidates.push_back(std::move(c));
+    }
+    return candidates;
 }
 
 }  // namespace
@@ -443,77 +511,50 @@ std::vector<Structure> build_ensemble(const Molecule& molecule, const BuildOptio
         throw InputError("the RMSD that makes two conformers distinct must be a finite number of at least 0 A");
     const ScopedDeadline deadline(build_options.time_limit);
     const StructureBuilder builder(molecule, build_options);
-    StructureBuilder::Built first = builder.build();
-    std::vector<Candidate> candidates;
-    candidates.push_back({first.structure, candidate_energy(builder, first), 0});
+    const StructureBuilder::Built first = builder.build();
     const Molecule& m = builder.molecule();
-    const int tries = options.tries > 0 ? options.tries : std::max(12, 3 * options.count);
-
-    if (options.count > 1 && build_options.refine && m.atom_count() > 3) {
-        // Ring systems that may be taken as their other mirror image (none holding a metal: that would turn a
-        // chelate's handedness).
-        std::vector<int> mirrorable;
-        for (size_t k = 0; k < first.mirrorable.size(); ++k) {
-            bool metal = false;
-            for (int a : builder.rings().systems[k]) metal = metal || is_metal_atom(m.atoms[at(a)].z);
-            if (first.mirrorable[k] && !metal) mirrorable.push_back(static_cast<int>(k));
-        }
-        const std::vector<RotatableBond> bonds = rotatable_bonds(m, builder.domains(), builder.rings());
-        const std::vector<SwapCentre> swaps = swap_centres(m, builder.domains(), builder.rings(), symmetry_classes(m));
-        std::vector<std::vector<int>> sides;
-        for (const RotatableBond& r : bonds) sides.push_back(side_of(m, r.a, r.b));
-        // Bases: the first build and up to three builds with other mirror images (all of them for up to two
-        // mirrorable systems; else each one flipped alone, then random sets).
-        std::vector<StructureBuilder::Built> bases{first};
-        Stream stream(options.seed);
-        const size_t flips = mirrorable.size() <= 2 ? (size_t{1} << mirrorable.size()) - 1 : std::min<size_t>(3, mirrorable.size());
-        for (size_t f = 1; f <= flips; ++f) {
-            std::vector<char> other(builder.rings().systems.size(), 0);
-            for (size_t k = 0; k < mirrorable.size(); ++k)
-                if (mirrorable.size() <= 2 ? ((f >> k) & 1) : k == f - 1) other[at(mirrorable[k])] = 1;
-            try {
-                StructureBuilder::Built built = builder.build(other);
-                if (!builder.stereo_kept(built.structure.positions)) continue;
-                candidates.push_back({built.structure, candidate_energy(builder, built), static_cast<int>(candidates.size())});
-                bases.push_back(std::move(built));
-            } catch (const UnsupportedError&) {
-            }
-        }
-        if (!bonds.empty() || !swaps.empty())
-            for (int t = static_cast<int>(candidates.size()); t < tries; ++t) {
-                check_deadline("sampling conformers");
-                const StructureBuilder::Built& base = bases[at(t) % bases.size()];
-                Candidate c;
-                c.index = static_cast<int>(candidates.size());
-                if (sample(builder, base, bonds, sides, swaps, stream, c)) candidates.push_back(std::move(c));
-            }
-    }
+    std::vector<Candidate> candidates;
+    if (options.count > 1 && build_options.refine && m.atom_count() > 3)
+        candidates = make_candidates(builder, first, first.refined_energy, options);
+    else
+        candidates.push_back({first, first.refined_energy, 0, true});
 
     std::stable_sort(candidates.begin(), candidates.end(), [](const Candidate& p, const Candidate& q) {
         return p.energy < q.energy || (p.energy == q.energy && p.index < q.index);
     });
+    // In order of energy, each candidate refined fully and kept when no kept one is closer than the threshold.
     const ConformerComparer comparer(m, !may_be_chiral(m, builder.domains(), symmetry_classes(m)));
-    std::vector<Structure> kept;
+    std::vector<Candidate*> kept;
     for (Candidate& c : candidates) {
         if (static_cast<int>(kept.size()) >= options.count) break;
+        check_deadline("choosing conformers");
+        if (!polish(builder, c)) continue;
         bool distinct = true;
-        for (const Structure& k : kept)
-            if (comparer.rmsd(k.positions, c.structure.positions) < options.distinct_rmsd) {
+        for (const Candidate* k : kept)
+            if (comparer.rmsd(k->built.structure.positions, c.built.structure.positions) < options.distinct_rmsd) {
                 distinct = false;
                 break;
             }
-        if (!distinct) continue;
-        ConformerInfo info;
-        info.rank = static_cast<int>(kept.size()) + 1;
-        info.energy = c.energy;
-        info.relative_energy = kept.empty() ? 0.0 : c.energy - kept.front().conformer->energy;
-        info.rmsd_to_first =
-            kept.empty() ? 0.0 : comparer.rmsd(kept.front().positions, c.structure.positions);
-        c.structure.conformer = info;
-        kept.push_back(std::move(c.structure));
+        if (distinct) kept.push_back(&c);
     }
-    for (Structure& s : kept) s.conformer->count = static_cast<int>(kept.size());
-    return kept;
+    // Ranked again on the energies after the full refinement.
+    std::stable_sort(kept.begin(), kept.end(), [](const Candidate* p, const Candidate* q) {
+        return p->energy < q->energy || (p->energy == q->energy && p->index < q->index);
+    });
+    std::vector<Structure> out;
+    const std::vector<Vector3d> lowest = kept.empty() ? std::vector<Vector3d>{} : kept.front()->built.structure.positions;
+    for (Candidate* c : kept) {
+        ConformerInfo info;
+        info.rank = static_cast<int>(out.size()) + 1;
+        info.count = static_cast<int>(kept.size());
+        info.energy = c->energy;
+        info.relative_energy = c->energy - kept.front()->energy;
+        info.rmsd_to_first = out.empty() ? 0.0 : comparer.rmsd(lowest, c->built.structure.positions);
+        Structure s = std::move(c->built.structure);
+        s.conformer = info;
+        out.push_back(std::move(s));
+    }
+    return out;
 }
 
 }  // namespace repel
