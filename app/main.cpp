@@ -82,7 +82,7 @@ int run(int argc, char** argv) {
         ->check(CLI::Range(0.0, 100.0))
         ->capture_default_str();
     cmd_build->add_option("--conformer-tries", build.conformer_settings.tries,
-                          "candidate shapes refined per molecule (0: three per conformer asked for, at least 12)")
+                          "candidate shapes refined per molecule (0: two per conformer asked for, at least 12)")
         ->check(CLI::Range(0, 100000))
         ->capture_default_str();
     cmd_build->add_option("--conformer-seed", build.conformer_settings.seed,

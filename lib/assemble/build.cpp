@@ -397,8 +397,17 @@ RefineResult StructureBuilder::refine(Built& built, double tolerance) const {
     refine_options.ring_graph = a.hapto ? &a.skeleton : nullptr;
     refine_options.restraints = built.restraints;
     Structure& s = built.structure;
-    const RefineResult r = refine_structure(a.molecule, a.refined_domains(), a.centre_targets, a.double_bonds,
-                                            s.positions, refine_options);
+    RefineResult r;
+    if (built.restraints.empty()) {
+        // The same terms for every refinement of this molecule: made once (the conformer ensemble refines dozens).
+        if (!refiner_)
+            refiner_ = std::make_unique<Refiner>(a.molecule, a.refined_domains(), a.centre_targets, a.double_bonds,
+                                                 refine_options);
+        r = refiner_->run(s.positions, refine_options);
+    } else {
+        r = refine_structure(a.molecule, a.refined_domains(), a.centre_targets, a.double_bonds, s.positions,
+                             refine_options);
+    }
     if (!r.converged && r.iterations > 0)
         s.warnings.push_back(fmt::format("refinement not converged after {} iterations{}{}", r.iterations,
                                          r.message.empty() ? "" : ": ", r.message));

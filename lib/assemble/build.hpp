@@ -58,7 +58,7 @@ Structure build_structure(const Molecule& molecule, const BuildOptions& options 
 // The analysis of one molecule kept, so that it can be assembled and refined more than once without analysing it
 // again (the conformer ensemble: ring systems as their other mirror image, other torsions). build_structure is
 // StructureBuilder(molecule, options).build().structure under the options' time limit; the builder itself sets no
-// deadline (its caller's holds).
+// deadline (its caller's holds). One builder is for one thread at a time (it keeps the refinement's state).
 class StructureBuilder {
 public:
     StructureBuilder(const Molecule& molecule, const BuildOptions& options = {});
@@ -93,6 +93,7 @@ public:
 private:
     struct Analysis;
     std::unique_ptr<Analysis> a_;
+    mutable std::unique_ptr<Refiner> refiner_;  // made on the first refinement without restraints; one thread only
 };
 
 }  // namespace repel

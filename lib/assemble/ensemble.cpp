@@ -455,7 +455,7 @@ std::vector<Candidate> make_candidates(const StructureBuilder& builder, const St
     std::vector<Candidate> candidates;
     candidates.push_back({first, first_energy, 0, true});
     const Molecule& m = builder.molecule();
-    const int tries = options.tries > 0 ? options.tries : std::max(12, 3 * options.count);
+    const int tries = options.tries > 0 ? options.tries : std::max(12, 2 * options.count);
     // Ring systems that may be taken as their other mirror image (none holding a metal: that would turn a chelate's
     // handedness).
     std::vector<int> mirrorable;

@@ -18,7 +18,7 @@ struct EnsembleOptions {
     // than this RMSD (Angstrom), after the best superposition and with symmetry-equivalent atoms allowed to swap, are
     // one. 0.5 A is common practice for ligand ensembles (a turned side chain moves its atoms 1 A and more).
     double distinct_rmsd = 0.5;
-    // Candidates refined (0: automatic, 3 x count, at least 12). More find more of the rare shapes and cost time.
+    // Candidates refined (0: automatic, 2 x count, at least 12). More find more of the rare shapes and cost time.
     int tries = 0;
     std::uint64_t seed = 1;  // the same molecule, options and seed give the same ensemble, whatever the thread
 };

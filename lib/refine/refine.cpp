@@ -110,11 +110,37 @@ std::vector<GeometryOutlier> find_outliers(const refine::EnergyTerms& terms, con
 
 }  // namespace
 
+struct Refiner::State {
+    refine::EnergyTerms terms;
+    ContactModel contacts;
+    std::vector<ChiralTarget> chiral;
+    std::vector<DoubleBondTarget> double_bonds;
+    int atoms = 0;
+    State(const Molecule& molecule, const MoleculeDomains& domains, const std::vector<ChiralTarget>& c,
+          const std::vector<DoubleBondTarget>& d, const RefineOptions& options)
+        : terms(refine::build_terms(molecule, domains, c, d, options.ring_graph, &options.restraints)),
+          contacts(molecule), chiral(c), double_bonds(d), atoms(molecule.atom_count()) {}
+};
+
+Refiner::Refiner(const Molecule& molecule, const MoleculeDomains& domains, const std::vector<ChiralTarget>& chiral,
+                 const std::vector<DoubleBondTarget>& double_bonds, const RefineOptions& options)
+    : s_(std::make_unique<State>(molecule, domains, chiral, double_bonds, options)) {}
+
+Refiner::~Refiner() = default;
+
 RefineResult refine_structure(const Molecule& molecule, const MoleculeDomains& domains,
                               const std::vector<ChiralTarget>& chiral,
                               const std::vector<DoubleBondTarget>& double_bonds,
                               std::vector<Eigen::Vector3d>& positions, const RefineOptions& options) {
-    const int n = molecule.atom_count();
+    if (static_cast<int>(positions.size()) != molecule.atom_count())
+        throw std::invalid_argument("refine_structure: " + std::to_string(positions.size()) + " positions for " +
+                                    std::to_string(molecule.atom_count()) + " atoms");
+    Refiner refiner(molecule, domains, chiral, double_bonds, options);
+    return refiner.run(positions, options);
+}
+
+RefineResult Refiner::run(std::vector<Eigen::Vector3d>& positions, const RefineOptions& options) {
+    const int n = s_->atoms;
     if (static_cast<int>(positions.size()) != n)
         throw std::invalid_argument("refine_structure: " + std::to_string(positions.size()) + " positions for " +
                                     std::to_string(n) + " atoms");
@@ -122,9 +148,10 @@ RefineResult refine_structure(const Molecule& molecule, const MoleculeDomains& d
         if (!positions[static_cast<size_t>(i)].allFinite())
             throw std::invalid_argument("refine_structure: the position of atom " + std::to_string(i + 1) +
                                         " is not a finite number");
-
-    const refine::EnergyTerms terms = refine::build_terms(molecule, domains, chiral, double_bonds, options.ring_graph, &options.restraints);
-    ContactModel contacts(molecule);
+    const refine::EnergyTerms& terms = s_->terms;
+    ContactModel& contacts = s_->contacts;
+    const std::vector<ChiralTarget>& chiral = s_->chiral;
+    const std::vector<DoubleBondTarget>& double_bonds = s_->double_bonds;
     const size_t dim = 3 * static_cast<size_t>(n);
     std::vector<double> x(dim);
     for (int i = 0; i < n; ++i)

@@ -3,6 +3,7 @@
 #pragma once
 
 #include <Eigen/Core>
+#include <memory>
 #include <string>
 #include <vector>
 
@@ -50,6 +51,23 @@ struct RefineResult {
     double energy_after = 0;
     std::string message;  // why it stopped, for warnings
     std::vector<GeometryOutlier> outliers;  // see RefineOptions::bond_outlier, worst first within bonds and angles
+};
+
+// The terms of one molecule kept for several refinements from different positions (a conformer ensemble): the
+// terms are built once, the contact pair list carried from one run to the next (rebuilt where atoms moved). Not for
+// use by two threads at once. The options' ring_graph and restraints are read when it is made; run() reads the rest.
+class Refiner {
+public:
+    Refiner(const Molecule& molecule, const MoleculeDomains& domains, const std::vector<ChiralTarget>& chiral,
+            const std::vector<DoubleBondTarget>& double_bonds, const RefineOptions& options);
+    ~Refiner();
+    Refiner(const Refiner&) = delete;
+    Refiner& operator=(const Refiner&) = delete;
+    RefineResult run(std::vector<Eigen::Vector3d>& positions, const RefineOptions& options);
+
+private:
+    struct State;
+    std::unique_ptr<State> s_;
 };
 
 // Refines positions in place. `domains` is the analysis of the same molecule (with solved directions), which gives

@@ -62,7 +62,7 @@ Structure build(Molecule molecule, const BuildSettings& settings = {});
 struct ConformerSettings {
     int count = 10;              // at most this many conformers (at least 1)
     double distinct_rmsd = 0.5;  // Angstrom: two conformers closer than this (heavy atoms, superposed) are one
-    int tries = 0;               // candidates refined (0: automatic, 3 x count, at least 12)
+    int tries = 0;               // candidates refined (0: automatic, 2 x count, at least 12)
     std::uint64_t seed = 1;      // the same text, settings and seed give the same ensemble on any thread
 };
 
