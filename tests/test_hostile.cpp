@@ -39,8 +39,9 @@ namespace {
 
 // What reads the input: the SMILES reader (then writes and reads back), the species reader (SMILES, then formula),
 // the formula reader, a .smi file, a structure file, the whole build (read, build, write every format), the
-// audit of `repel check` (read the file, audit every structure).
-enum class Step { smiles, species, formula, smi_file, xyz, pdb, sdf, build, check_xyz };
+// audit of `repel check` (read the file, audit every structure), a conformer ensemble (`repel build --conformers 5`:
+// every conformer finite and written).
+enum class Step { smiles, species, formula, smi_file, xyz, pdb, sdf, build, check_xyz, ensemble };
 // valid: must read (build) to a valid result: finite coordinates, every writer writes it, a SMILES writes back to the
 // same graph (see run()); refused: must end with a message containing `words`. Every row states one of the two.
 enum class Want { valid, refused };
@@ -325,6 +326,19 @@ std::vector<Case> cases() {
     add("build_hydrogen_only", B, text("[H]"), V);
     c.push_back({"build_time_limit_tiny", B, [] { return repeat("C", 3000); }, R, "gave up after", 120, 1e-9});
 
+    // --- conformer ensembles (--conformers 5): long chains, many components, symmetric cages and rotors (the
+    // comparison's symmetry search is bounded), metals, and the time limit holding for the whole ensemble.
+    const auto E = Step::ensemble;
+    add("ensemble_chain_200", E, [] { return repeat("C", 200); }, V, "", 300);
+    add("ensemble_dots_1000", E, [] { return repeat("CC.", 999) + "CC"; }, V, "", 300);
+    add("ensemble_cubane", E, text("C12C3C4C1C5C2C3C45"), V);
+    add("ensemble_tetra_tert_butylmethane", E, text("CC(C)(C)C(C(C)(C)C)(C(C)(C)C)C(C)(C)C"), V);
+    add("ensemble_polyalanine_20", E, [] { return repeat("N[C@@H](C)C(=O)", 20) + "O"; }, V, "", 300);
+    add("ensemble_metal_chain_100", E, [] { return "[Cu]" + repeat("[Cu]", 99); }, V, "", 120);
+    add("ensemble_ferrocene_chain", E, text("CCCC[C-]1C=CC=C1.[CH-]1C=CC=C1.[Fe+2]"), V);
+    add("ensemble_bad_smiles", E, text("CC(C"), R, "is never closed");
+    c.push_back({"ensemble_time_limit_tiny", E, [] { return repeat("C", 3000); }, R, "gave up after", 120, 1e-9});
+
     // --- metal centres: every coordination number the model knows, and beyond; impossible electron counts; f block
     add("build_metal_13_ligands", B, text("[W]" + repeat("([C-]#[O+])", 13)), R, "sites", 60);
     add("build_metal_12_ligands", B, text("[W-6]" + repeat("([H])", 12)), V, "", 60);
@@ -413,6 +427,18 @@ std::string run(const Case& k) {
             for (const ReadStructure& r : read_xyz(in)) (void)audit_structure(r);
             break;
         }
+        case Step::ensemble: {
+            ConformerSettings five;
+            five.count = 5;
+            const std::vector<Structure> e = build_conformers(input, {.time_limit = k.time_limit}, five);
+            if (e.empty() || e.size() > 5) return "an ensemble of " + std::to_string(e.size()) + " conformers";
+            for (const Structure& s : e) {
+                if (!fuzz::all_finite(s.positions)) return "a non-finite coordinate in a conformer";
+                if (!s.conformer || s.conformer->count != static_cast<int>(e.size())) return "a conformer unnumbered";
+                for (Format f : {Format::xyz, Format::sdf, Format::json}) (void)make_writer(f)->record(s, "hostile");
+            }
+            break;
+        }
         case Step::build: {
             const Structure s = build(input, {.time_limit = k.time_limit});
             if (!fuzz::all_finite(s.positions)) return "a non-finite coordinate was built";
@@ -485,9 +511,9 @@ TEST(HostileTable, StatesOneOutcomePerInputAndCoversEveryStep) {
         }
     }
     for (Step step : {Step::smiles, Step::species, Step::formula, Step::smi_file, Step::xyz, Step::pdb, Step::sdf,
-                      Step::build, Step::check_xyz})
+                      Step::build, Step::check_xyz, Step::ensemble})
         EXPECT_FALSE(outcomes[step].empty()) << "no row reads with step " << static_cast<int>(step);
-    for (Step step : {Step::smiles, Step::xyz, Step::pdb, Step::sdf, Step::build})
+    for (Step step : {Step::smiles, Step::xyz, Step::pdb, Step::sdf, Step::build, Step::ensemble})
         EXPECT_EQ(outcomes[step].size(), 2u) << "step " << static_cast<int>(step) << " lacks a valid or a refused row";
 }
 

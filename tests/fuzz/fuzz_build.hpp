@@ -6,6 +6,7 @@
 #include <cctype>
 
 #include "assemble/build.hpp"
+#include "assemble/ensemble.hpp"
 #include "fuzz_common.hpp"
 #include "output/writer.hpp"
 
@@ -56,6 +57,19 @@ inline void build_and_write(Molecule m, std::string_view input) {
             for (const std::string& w : s.warnings)
                 if (text.find(w.substr(0, std::min<size_t>(w.size(), 20))) == std::string::npos)
                     finding("a warning is missing from the written record: " + w, input);
+    }
+    // A small conformer ensemble of the same molecule (`repel build --conformers 3`): the same refusals only, every
+    // conformer finite and numbered, the first no higher in energy than the others.
+    EnsembleOptions three;
+    three.count = 3;
+    three.tries = 6;
+    std::vector<Structure> e;
+    if (guarded("build_ensemble", input, [&] { e = build_ensemble(m, BuildOptions{}, three); }) != Outcome::ok) return;
+    if (e.empty() || e.size() > 3) finding("build_ensemble: an ensemble of the wrong size", input);
+    for (const Structure& c : e) {
+        if (!all_finite(c.positions)) finding("build_ensemble: a non-finite coordinate", input);
+        if (!c.conformer || c.conformer->count != static_cast<int>(e.size()) || c.conformer->relative_energy < 0)
+            finding("build_ensemble: a conformer numbered wrong or below the first", input);
     }
 }
 
