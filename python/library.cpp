@@ -72,21 +72,49 @@ Built built_of(Structure structure, const std::string& name, const std::string& 
     b.warnings = structure.warnings;
     b.name = name;
     b.title = title;
+    if (const auto& c = structure.conformer) {
+        b.conformer_rank = c->rank;
+        b.conformer_count = c->count;
+        b.conformer_energy = c->energy;
+        b.conformer_relative_energy = c->relative_energy;
+        b.conformer_rmsd_to_first = c->rmsd_to_first;
+    }
     b.structure = std::make_shared<const Structure>(std::move(structure));
     return b;
 }
 
 }  // namespace
 
-Built build(const BuildRequest& request) {
+namespace {
+
+BuildSettings settings_of(const BuildRequest& request) {
     BuildSettings settings;
     settings.notation = text_notation(request.notation);
     settings.name = request.name;
     settings.refine = request.refine;
     settings.charge = request.charge;
     settings.multiplicity = request.multiplicity;
-    return built_of(repel::build(request.text, settings), request.name,
+    return settings;
+}
+
+}  // namespace
+
+Built build(const BuildRequest& request) {
+    return built_of(repel::build(request.text, settings_of(request)), request.name,
                     request.name.empty() ? request.text : request.name);
+}
+
+std::vector<Built> build_conformers(const BuildRequest& request, int count, double rmsd, int tries,
+                                    unsigned long long seed) {
+    ConformerSettings c;
+    c.count = count;
+    c.distinct_rmsd = rmsd;
+    c.tries = tries;
+    c.seed = seed;
+    std::vector<Built> out;
+    for (Structure& s : repel::build_conformers(request.text, settings_of(request), c))
+        out.push_back(built_of(std::move(s), request.name, request.name.empty() ? request.text : request.name));
+    return out;
 }
 
 std::vector<Outcome> build_many(const std::vector<BuildRequest>& requests, unsigned threads) {

@@ -33,11 +33,20 @@ struct Built {
     std::vector<std::string> warnings;
     std::string name;                    // as given, empty when none
     std::string title;                   // what the writers put in a file: the name, else the input text
+    // A member of a conformer ensemble: rank (1 the lowest), count, energy and relative energy (kcal/mol), RMSD to
+    // the first (Angstrom); rank 0 for a single build.
+    int conformer_rank = 0, conformer_count = 0;
+    double conformer_energy = 0, conformer_relative_energy = 0, conformer_rmsd_to_first = 0;
     std::shared_ptr<const Structure> structure;
 };
 
 // Throws the library's InputError (with the column) or UnsupportedError; anything else is a std::exception too.
 Built build(const BuildRequest& request);
+
+// build_conformers of the library (`repel build TEXT --conformers COUNT`): up to `count` distinct conformers, lowest
+// energy first; rmsd, tries and seed as --conformer-rmsd, --conformer-tries, --conformer-seed.
+std::vector<Built> build_conformers(const BuildRequest& request, int count, double rmsd, int tries,
+                                    unsigned long long seed);
 
 // Why one record of build_many() could not be built: the exception's type name ("InputError", "LimitError",
 // "UnsupportedError", or another), its message alone, and the 1-based column (0: not about a column).

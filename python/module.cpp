@@ -154,6 +154,20 @@ void add_structure(py::module_& m) {
         .def_property_readonly(
             "name", [](const Built& b) { return b.name.empty() ? py::object(py::none()) : py::object(py::str(b.name)); },
             "The name given to build(), or None.")
+        .def_property_readonly(
+            "conformer",
+            [](const Built& b) -> py::object {
+                if (b.conformer_rank == 0) return py::none();
+                py::dict d;
+                d["rank"] = b.conformer_rank;
+                d["count"] = b.conformer_count;
+                d["energy"] = b.conformer_energy;
+                d["relative_energy"] = b.conformer_relative_energy;
+                d["rmsd_to_first"] = b.conformer_rmsd_to_first;
+                return d;
+            },
+            "For a member of build_conformers()'s ensemble a dict: rank (1 the lowest energy), count, energy and\n"
+            "relative_energy (kcal/mol), rmsd_to_first (Angstrom, heavy atoms); None for a single build.")
         .def("__len__", [](const Built& b) { return b.numbers.size(); }, "The number of atoms.")
         .def(
             "__bool__", [](const Built&) { return true; },
@@ -415,6 +429,28 @@ void add_build_and_shape(py::module_& m) {
         "Returns a Structure (atom indices 0-based). Raises InputError (with .column) for input that cannot be read\n"
         "or built, an empty text included; UnsupportedError for what cannot be built yet; TypeError for arguments of\n"
         "the wrong type. Releases the GIL while building, so threads can build in parallel.");
+
+    m.def(
+        "build_conformers",
+        [](const py::str& text, int count, double rmsd, int tries, unsigned long long seed,
+           const std::optional<std::string>& name, bool refine, const std::string& notation,
+           std::optional<int> multiplicity, std::optional<int> charge) {
+            repel::python::BuildRequest request = build_settings(refine, notation, multiplicity, charge);
+            request.text = text.cast<std::string>();
+            request.name = name.value_or("");
+            return call_library(request.text, [&] {
+                return repel::python::build_conformers(request, count, rmsd, tries, seed);
+            });
+        },
+        py::arg("text"), py::kw_only(), py::arg("count") = 10, py::arg("rmsd") = 0.5, py::arg("tries") = 0,
+        py::arg("seed") = 1, py::arg("name") = py::none(), py::arg("refine") = true, py::arg("notation") = "auto",
+        py::arg("multiplicity") = py::none(), py::arg("charge") = py::none(),
+        "Up to `count` distinct conformers of one species, lowest energy first, as `repel build TEXT --conformers\n"
+        "COUNT`: a list of Structure, each with its .conformer (rank, count, energy, relative_energy,\n"
+        "rmsd_to_first). rmsd: conformers whose heavy atoms lie closer than this (Angstrom, superposed, symmetric\n"
+        "atoms matched) are one. tries: candidates refined (0: two per conformer asked for, at least 12). seed: the\n"
+        "same seed gives the same conformers. Every written stereocentre and double bond is kept. The other\n"
+        "arguments and the errors as build(). Releases the GIL while building.");
 
     m.def(
         "shape",

@@ -23,6 +23,13 @@ class InputError(ValueError):
 class UnsupportedError(RuntimeError):
     """A well-formed input that repel cannot build yet."""
 
+class _Conformer(TypedDict):
+    rank: int
+    count: int
+    energy: float
+    relative_energy: float
+    rmsd_to_first: float
+
 class Structure:
     """A built structure; atom indices 0-based."""
 
@@ -42,6 +49,8 @@ class Structure:
     def warnings(self) -> list[str]: ...
     @property
     def name(self) -> Optional[str]: ...
+    @property
+    def conformer(self) -> Optional[_Conformer]: ...
     def __len__(self) -> int: ...
     def __bool__(self) -> bool: ...
     def to_text(self, format: str) -> str: ...
@@ -100,6 +109,19 @@ def build(
     multiplicity: Optional[int] = None,
     charge: Optional[int] = None,
 ) -> Structure: ...
+def build_conformers(
+    text: str,
+    *,
+    count: int = 10,
+    rmsd: float = 0.5,
+    tries: int = 0,
+    seed: int = 1,
+    name: Optional[str] = None,
+    refine: bool = True,
+    notation: _Notation = "auto",
+    multiplicity: Optional[int] = None,
+    charge: Optional[int] = None,
+) -> list[Structure]: ...
 def build_many(
     records: Iterable[_Record],
     *,
