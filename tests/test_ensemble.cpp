@@ -110,6 +110,27 @@ TEST(Ensemble, DistinctOrderedAndStereoKept) {
     }
 }
 
+// A macrocycle (a 16-membered lactone) is embedded more than one way: several distinct ring shapes, each ring torsion
+// set different from the first's by more than 30 degrees somewhere.
+TEST(Ensemble, MacrocycleGivesSeveralRingShapes) {
+    const std::string smiles = "O=C1CCCCCCCCCCCCCCO1";
+    const auto e = build_conformers(smiles, {}, count(10));
+    ASSERT_GE(e.size(), 3u);
+    const std::vector<int> ring{1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 15, 16};
+    for (size_t k = 1; k < e.size(); ++k) {
+        double largest = 0;
+        for (size_t r = 0; r < ring.size(); ++r) {
+            auto torsion = [&](const Structure& s) {
+                auto p = [&](size_t q) { return s.positions[static_cast<size_t>(ring[(r + q) % ring.size()])]; };
+                return degrees(dihedral(p(0), p(1), p(2), p(3)));
+            };
+            double d = std::abs(torsion(e[k]) - torsion(e[0]));
+            largest = std::max(largest, std::min(d, 360 - d));
+        }
+        EXPECT_GT(largest, 30) << "conformer " << k + 1;
+    }
+}
+
 TEST(Ensemble, SameOnEveryRunAndSeedMatters) {
     const std::string smiles = "CCOC(=O)CCCCN(C)Cc1ccccc1";
     const auto a = build_conformers(smiles, {}, count(6));

@@ -355,7 +355,7 @@ const MoleculeDomains& StructureBuilder::domains() const { return a_->domains; }
 const RingInfo& StructureBuilder::rings() const { return a_->rings; }
 bool StructureBuilder::has_hapto_ligands() const { return a_->hapto; }
 
-StructureBuilder::Built StructureBuilder::build(const std::vector<char>& other_mirror) const {
+StructureBuilder::Built StructureBuilder::build(const std::vector<char>& other_mirror, int variant) const {
     const Analysis& a = *a_;
     const Molecule& skeleton = a.frame();
     Built out;
@@ -366,11 +366,14 @@ StructureBuilder::Built StructureBuilder::build(const std::vector<char>& other_m
     ring_xyz.reserve(a.rings.systems.size());
     warned_system.assign(a.rings.systems.size(), 0);
     out.mirrorable.assign(a.rings.systems.size(), 0);
+    out.flexible.assign(a.rings.systems.size(), 0);
     for (size_t k = 0; k < a.rings.systems.size(); ++k) {
         check_deadline("embedding ring systems");
         const bool other = k < other_mirror.size() && other_mirror[k];
-        RingSystemEmbedding e = embed_ring_system(skeleton, a.domains, a.rings, static_cast<int>(k), a.centre_targets, other);
+        RingSystemEmbedding e =
+            embed_ring_system(skeleton, a.domains, a.rings, static_cast<int>(k), a.centre_targets, other, variant);
         out.mirrorable[k] = e.mirrorable;
+        out.flexible[k] = e.flexible;
         note_ring_system(a.rings.systems[k], e, warned_system[k], s.warnings);
         ring_xyz.push_back(std::move(e.coordinates));
     }

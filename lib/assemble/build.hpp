@@ -69,14 +69,16 @@ public:
     struct Built {
         Structure structure;
         std::vector<char> mirrorable;     // per ring system: its mirror image is another conformation
+        std::vector<char> flexible;       // per ring system: other embeddings give other ring shapes (macrocycles)
         std::vector<char> warned_system;  // per ring system: a warning already names its strain
         std::vector<DistanceRestraint> restraints;  // the hapto frame held in the refinement
         std::vector<std::string> assembly_warnings;  // the structure's warnings before the refinement and final checks
         double refined_energy = 0;  // the refinement's energy at the positions (0 when not refined)
     };
     // Assembled, refined (unless the options say not) and checked; other_mirror[k]: ring system k taken as the mirror
-    // image the equatorial rule would not take (ignored where the system is not mirrorable).
-    Built build(const std::vector<char>& other_mirror = {}) const;
+    // image the equatorial rule would not take (ignored where the system is not mirrorable); variant > 0: flexible
+    // ring systems embedded another way (embed_ring_system).
+    Built build(const std::vector<char>& other_mirror = {}, int variant = 0) const;
     // The build's refinement again from built.structure's positions (warnings for what it leaves added), to the
     // options' RMS gradient or to `tolerance` when that is above 0.
     RefineResult refine(Built& built, double tolerance = 0) const;

@@ -404,7 +404,8 @@ EmbedResult refine_points(const DistanceBounds& bounds, const std::vector<Volume
 
 EmbedResult embed_points(DistanceBounds bounds, const std::vector<VolumeCondition>& volumes,
                          const std::vector<TorsionCondition>& torsions, int attempts, double tolerance,
-                         const std::vector<Vector3d>& start, bool planar, const std::vector<AreaCondition>& areas) {
+                         const std::vector<Vector3d>& start, bool planar, const std::vector<AreaCondition>& areas,
+                         std::uint64_t seed) {
     bounds.smooth();
     const int n = bounds.size();
     constexpr int kEvaluations = 300;
@@ -424,7 +425,8 @@ EmbedResult embed_points(DistanceBounds bounds, const std::vector<VolumeConditio
             if (planar) xyz = flatten(xyz);
             mirror_for_areas(areas, xyz);
         } else {
-            Lcg rng{0x9E3779B97F4A7C15ULL ^ static_cast<std::uint64_t>(attempt + 1) * 0xBF58476D1CE4E5B9ULL};
+            Lcg rng{(0x9E3779B97F4A7C15ULL + seed * 0x94D049BB133111EBULL) ^
+                    static_cast<std::uint64_t>(attempt + 1) * 0xBF58476D1CE4E5B9ULL};
             Eigen::MatrixXd d2 = Eigen::MatrixXd::Zero(n, n);
             for (int i = 0; i < n; ++i)
                 for (int j = i + 1; j < n; ++j) {

@@ -4,6 +4,7 @@
 #pragma once
 
 #include <Eigen/Core>
+#include <cstdint>
 #include <vector>
 
 namespace repel {
@@ -59,10 +60,12 @@ struct EmbedResult {
 // the best. `start`, when not empty, is tried first instead of a metric-matrix embedding. `planar` embeds and refines
 // in the plane z = 0 (flat ring systems: there cis and trans are distances); `areas` are then the handedness in the
 // plane of the centres with three neighbours (a start, or an embedding, meeting fewer than half of them is mirrored).
+// `seed` varies the pseudo-random distances (0: the build's own; other values give other embeddings of a flexible
+// system, for conformer sampling).
 EmbedResult embed_points(DistanceBounds bounds, const std::vector<VolumeCondition>& volumes,
                          const std::vector<TorsionCondition>& torsions, int attempts, double tolerance,
                          const std::vector<Eigen::Vector3d>& start = {}, bool planar = false,
-                         const std::vector<AreaCondition>& areas = {});
+                         const std::vector<AreaCondition>& areas = {}, std::uint64_t seed = 0);
 
 // Refines coordinates against the bounds and volumes (the same error function as embed_points).
 EmbedResult refine_points(const DistanceBounds& bounds, const std::vector<VolumeCondition>& volumes,

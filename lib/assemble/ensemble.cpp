@@ -365,6 +365,9 @@ struct Candidate {
 // then costs about half as much, with as many conformers kept).
 constexpr double kCandidateTolerance = 2e-2;
 
+// Other embeddings of a flexible ring system tried as bases (each a whole build).
+constexpr int kRingShapes = 4;
+
 // The energy conformers are ranked by: the refinement's own energy (the build's terms) at the refined positions.
 double ranking_energy(const RefineResult& r) { return r.energy_after; }
 
@@ -479,6 +482,22 @@ std::vector<Candidate> make_candidates(const StructureBuilder& builder, const St
         try {
             Candidate c;
             c.built = builder.build(other);
+            c.polished = true;
+            if (!builder.stereo_kept(c.built.structure.positions)) continue;
+            c.energy = c.built.refined_energy;
+            c.index = static_cast<int>(candidates.size());
+            candidates.push_back(std::move(c));
+        } catch (const UnsupportedError&) {
+        }
+    }
+    // Flexible ring systems (macrocycles, medium rings) embedded other ways: other ring shapes to start from.
+    bool flexible = false;
+    for (size_t k = 0; k < first.flexible.size(); ++k) flexible = flexible || first.flexible[k];
+    for (int variant = 1; flexible && variant <= kRingShapes; ++variant) {
+        check_deadline("sampling ring shapes");
+        try {
+            Candidate c;
+            c.built = builder.build({}, variant);
             c.polished = true;
             if (!builder.stereo_kept(c.built.structure.positions)) continue;
             c.energy = c.built.refined_energy;

@@ -164,10 +164,22 @@ public:
         }
     }
 
-    RingSystemEmbedding run(bool other_mirror) {
+    RingSystemEmbedding run(bool other_mirror, int variant) {
+        variant_ = variant;
         RingSystemEmbedding out = shape();
         out.mirrorable = prefer_equatorial(out.coordinates, other_mirror);
+        out.flexible = flexible_ring();
         return out;
+    }
+
+    // A ring of seven or more atoms with an atom that is not planar.
+    bool flexible_ring() const {
+        for (const auto& ring : rings_local_) {
+            if (ring.size() < 7) continue;
+            for (int a : ring)
+                if (!planar_[at(a)]) return true;
+        }
+        return false;
     }
 
 private:
@@ -277,6 +289,7 @@ private:
     std::vector<std::vector<Vector3d>> dirs_;
     // Whether the six-membered rings' sp3-sp3 bonds are held at chair torsions (cleared for a second try).
     bool chairs_ = true;
+    int variant_ = 0;  // > 0: a flexible system's other embedding (embed_ring_system)
     // Smallest ring size holding a consecutive triple / quadruple of atoms, and whether that ring is planar.
     struct RingNote {
         int size = 0;
@@ -759,9 +772,13 @@ private:
         std::vector<Vector3d> layout = orient.empty() ? std::vector<Vector3d>{} : planar_start(orient, areas);
         if (!flat)
             for (size_t a = 0; a < layout.size(); ++a) layout[a].z() = a % 2 ? kLift : -kLift;
-        const std::vector<Vector3d> start = !layout.empty() ? layout : fused_start(bounds, torsions, volumes);
+        const bool other_shape = variant_ > 0 && !flat && flexible_ring();
+        const std::vector<Vector3d> start = other_shape       ? std::vector<Vector3d>{}
+                                            : !layout.empty() ? layout
+                                                              : fused_start(bounds, torsions, volumes);
         const EmbedResult e = flat ? embed_points(bounds, {}, {}, kAttempts, kAcceptedViolation, start, true, areas)
-                                   : embed_points(bounds, volumes, torsions, kAttempts, kAcceptedViolation, start);
+                                   : embed_points(bounds, volumes, torsions, kAttempts, kAcceptedViolation, start, false,
+                                                  {}, other_shape ? static_cast<std::uint64_t>(variant_) : 0);
         RingSystemEmbedding out;
         out.coordinates = e.coordinates;
         out.satisfied = e.volumes_met && e.worst_violation < 0.3 && e.worst_torsion < 20 * kDeg;
@@ -1109,8 +1126,9 @@ private:
 }  // namespace
 
 RingSystemEmbedding embed_ring_system(const Molecule& molecule, const MoleculeDomains& domains, const RingInfo& rings,
-                                      int system, const std::vector<ChiralTarget>& chiral, bool other_mirror) {
-    return SystemEmbedder(molecule, domains, rings, system, chiral).run(other_mirror);
+                                      int system, const std::vector<ChiralTarget>& chiral, bool other_mirror,
+                                      int variant) {
+    return SystemEmbedder(molecule, domains, rings, system, chiral).run(other_mirror, variant);
 }
 
 }  // namespace repel

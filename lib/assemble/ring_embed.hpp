@@ -24,12 +24,18 @@ struct RingSystemEmbedding {
     // The system has no handedness of its own and is not flat, so that its mirror image is another conformation of
     // the same molecule (a cyclohexane's other chair, an envelope's flap on the other side).
     bool mirrorable = false;
+    // The system holds a ring of seven or more atoms that is not flat: other embeddings (variant > 0) give other
+    // ring shapes.
+    bool flexible = false;
 };
 
 // Embeds ring system `system`. Stereocentres in `chiral` whose neighbours lie (three or more) in the system, and marked
 // double bonds inside it, are constraints of the embedding. Of a mirrorable system's two mirror images the one that
-// puts substituents equatorial is taken, or the other one when `other_mirror` is set (conformer sampling).
+// puts substituents equatorial is taken, or the other one when `other_mirror` is set (conformer sampling). A
+// flexible system embedded with variant > 0 starts from a metric-matrix embedding of that seed instead of the fused
+// templates: another ring shape (conformer sampling).
 RingSystemEmbedding embed_ring_system(const Molecule& molecule, const MoleculeDomains& domains, const RingInfo& rings,
-                                      int system, const std::vector<ChiralTarget>& chiral, bool other_mirror = false);
+                                      int system, const std::vector<ChiralTarget>& chiral, bool other_mirror = false,
+                                      int variant = 0);
 
 }  // namespace repel
