@@ -52,6 +52,9 @@ MOLECULES = [
     # out of the carbonyl plane, triphenylborane's about 30. Atoms: a neighbour of the hub, the hub, ipso, ortho.
     ('benzophenone', 'O=C(c1ccccc1)c1ccccc1', (0, 1, 2, 3), 'propeller'),
     ('triphenylborane', 'B(c1ccccc1)(c1ccccc1)c1ccccc1', (7, 0, 1, 2), 'propeller'),
+    # A crowded alkene: tetraphenylethylene's rings turned out of the C=C plane (about 47 degrees at the GFN2-xTB
+    # optimum, measured; a coplanar start would be a saddle). Atoms: the other alkene C, the alkene C, ipso, ortho.
+    ('tetraphenylethylene', 'C(c1ccccc1)(c1ccccc1)=C(c1ccccc1)c1ccccc1', (13, 0, 1, 2), 'propeller'),
     # Helicenes ('helix': folded into 0..90, within 10..40): built flat, [6]helicene is a saddle xtb keeps, 97 kcal/mol
     # above the helix (measured with GFN2-xTB); in the helix the inner-rim torsions are 15-30 degrees (GFN2-xTB,
     # measured; crystal [6]helicene about 30, from memory). Atoms: a torsion of the inner rim.
