@@ -61,6 +61,25 @@ def frames(text):
 
 
 def xtb_opt(xyz_text, charge=0, uhf=0):
+    # REPEL_XTB_CACHE=DIR keeps each optimisation's result by its start, so that a second run (another ensemble of
+    # the same molecules) repeats none of the random starts.
+    cache = os.environ.get("REPEL_XTB_CACHE")
+    if cache:
+        import hashlib
+        import json
+        key = os.path.join(cache, hashlib.sha256(xyz_text.encode()).hexdigest() + ".json")
+        if os.path.exists(key):
+            with open(key) as f:
+                return json.load(f)
+        os.makedirs(cache, exist_ok=True)
+        result = xtb_run(xyz_text, charge, uhf)
+        with open(key, "w") as f:
+            json.dump(result, f)
+        return result
+    return xtb_run(xyz_text, charge, uhf)
+
+
+def xtb_run(xyz_text, charge, uhf):
     work = tempfile.mkdtemp(prefix="repel-conf-xtb-")
     try:
         with open(os.path.join(work, "start.xyz"), "w") as f:
@@ -186,13 +205,15 @@ def main():
             "ensemble_minus_random": (min(e_ens) - min(e_rand)) * HARTREE_KCAL,
             "first_above_lowest": (e_ens[0] - min(e_ens)) * HARTREE_KCAL,
             "single_above_lowest": (e_single["energy"] - min(e_ens + e_rand)) * HARTREE_KCAL,
+            "lowest_ensemble": min(e_ens), "lowest_random": min(e_rand),
             "connectivity_kept": ok,
         })
         r = rows[-1]
         print(f"{name:14s} rot {r['rotatable']:2d} conf {r['conformers']:2d} random {r['random']:2d} "
               f"single cycles {r['single_cycles']} ensemble-random {r['ensemble_minus_random']:+6.2f} "
               f"first-above-lowest {r['first_above_lowest']:5.2f} single-above-lowest {r['single_above_lowest']:5.2f} "
-              f"connectivity {'kept' if ok else 'CHANGED'}", flush=True)
+              f"connectivity {'kept' if ok else 'CHANGED'} (lowest ensemble {min(e_ens):.6f}, random {min(e_rand):.6f} Eh)",
+              flush=True)
     d = [r["ensemble_minus_random"] for r in rows]
     print(f"ensemble lowest minus random lowest (kcal/mol): median {statistics.median(d):+.2f}, "
           f"within 1 kcal/mol or below: {sum(x <= 1 for x in d)} of {len(d)}, range {min(d):+.2f}..{max(d):+.2f}")

@@ -12,6 +12,7 @@
 #include "core/error.hpp"
 #include "core/geometry.hpp"
 #include "core/limits.hpp"
+#include "refine/conformer_energy.hpp"
 
 namespace repel {
 
@@ -368,8 +369,11 @@ constexpr double kCandidateTolerance = 2e-2;
 // Other embeddings of a flexible ring system tried as bases (each a whole build).
 constexpr int kRingShapes = 4;
 
-// The energy conformers are ranked by: the refinement's own energy (the build's terms) at the refined positions.
-double ranking_energy(const RefineResult& r) { return r.energy_after; }
+// The energy conformers are ranked by (refine/conformer_energy.hpp: torsions, van der Waals, electrostatics).
+double ranking_energy(const ConformerEnergy& model, const StructureBuilder::Built& built) {
+    return model.energy(built.structure.positions).total;
+}
+
 
 // A ring atom whose two substituents may trade places (axial for equatorial): the plane of its two ring bonds
 // reflects one onto the other.
@@ -412,7 +416,7 @@ void swap(std::vector<Vector3d>& x, const SwapCentre& c) {
 // One candidate from a base build: the turns and swaps chosen for it applied and refined loosely; false when it fails.
 bool sample(const StructureBuilder& builder, const StructureBuilder::Built& base,
             const std::vector<RotatableBond>& bonds, const std::vector<std::vector<int>>& sides,
-            const std::vector<SwapCentre>& swaps, Stream& stream, Candidate& out) {
+            const std::vector<SwapCentre>& swaps, const ConformerEnergy& model, Stream& stream, Candidate& out) {
     out.built = base;
     StructureBuilder::Built& built = out.built;
     built.structure.warnings = base.assembly_warnings;
@@ -429,20 +433,21 @@ bool sample(const StructureBuilder& builder, const StructureBuilder::Built& base
         turned = true;
     }
     if (!turned) return false;
-    const RefineResult r = builder.refine(built, kCandidateTolerance);
+    builder.refine(built, kCandidateTolerance);
     if (!builder.stereo_kept(built.structure.positions)) return false;
-    out.energy = ranking_energy(r);
+    out.energy = ranking_energy(model, built);
     return true;
 }
 
 // Refined to the build's tolerance and given the build's final checks; false when it fails them (overlapping atoms,
 // stereochemistry lost).
-bool polish(const StructureBuilder& builder, Candidate& c) {
+bool polish(const StructureBuilder& builder, const ConformerEnergy& model, Candidate& c) {
     if (c.polished) return true;
     c.polished = true;
     StructureBuilder::Built& built = c.built;
     built.structure.warnings = built.assembly_warnings;
-    c.energy = ranking_energy(builder.refine(built));
+    builder.refine(built);
+    c.energy = ranking_energy(model, built);
     if (!builder.stereo_kept(built.structure.positions)) return false;
     try {
         builder.finish(built.structure);
@@ -454,9 +459,9 @@ bool polish(const StructureBuilder& builder, Candidate& c) {
 
 // The candidates: the first build, the ring systems' other mirror images, then turned and swapped copies.
 std::vector<Candidate> make_candidates(const StructureBuilder& builder, const StructureBuilder::Built& first,
-                                       double first_energy, const EnsembleOptions& options) {
+                                       const ConformerEnergy& model, const EnsembleOptions& options) {
     std::vector<Candidate> candidates;
-    candidates.push_back({first, first_energy, 0, true});
+    candidates.push_back({first, ranking_energy(model, first), 0, false});
     const Molecule& m = builder.molecule();
     const int tries = options.tries > 0 ? options.tries : std::max(12, 2 * options.count);
     // Ring systems that may be taken as their other mirror image (none holding a metal: that would turn a chelate's
@@ -482,9 +487,8 @@ std::vector<Candidate> make_candidates(const StructureBuilder& builder, const St
         try {
             Candidate c;
             c.built = builder.build(other);
-            c.polished = true;
             if (!builder.stereo_kept(c.built.structure.positions)) continue;
-            c.energy = c.built.refined_energy;
+            c.energy = ranking_energy(model, c.built);
             c.index = static_cast<int>(candidates.size());
             candidates.push_back(std::move(c));
         } catch (const UnsupportedError&) {
@@ -498,9 +502,8 @@ std::vector<Candidate> make_candidates(const StructureBuilder& builder, const St
         try {
             Candidate c;
             c.built = builder.build({}, variant);
-            c.polished = true;
             if (!builder.stereo_kept(c.built.structure.positions)) continue;
-            c.energy = c.built.refined_energy;
+            c.energy = ranking_energy(model, c.built);
             c.index = static_cast<int>(candidates.size());
             candidates.push_back(std::move(c));
         } catch (const UnsupportedError&) {
@@ -515,7 +518,7 @@ std::vector<Candidate> make_candidates(const StructureBuilder& builder, const St
         check_deadline("sampling conformers");
         Candidate c;
         c.index = static_cast<int>(candidates.size());
-        if (sample(builder, base_copies[at(t) % base_copies.size()], bonds, sides, swaps, stream, c))
+        if (sample(builder, base_copies[at(t) % base_copies.size()], bonds, sides, swaps, model, stream, c))
             candidates.push_back(std::move(c));
     }
     return candidates;
@@ -532,11 +535,12 @@ std::vector<Structure> build_ensemble(const Molecule& molecule, const BuildOptio
     const StructureBuilder builder(molecule, build_options);
     const StructureBuilder::Built first = builder.build();
     const Molecule& m = builder.molecule();
+    const ConformerEnergy model(m, builder.domains());
     std::vector<Candidate> candidates;
     if (options.count > 1 && build_options.refine && m.atom_count() > 3)
-        candidates = make_candidates(builder, first, first.refined_energy, options);
+        candidates = make_candidates(builder, first, model, options);
     else
-        candidates.push_back({first, first.refined_energy, 0, true});
+        candidates.push_back({first, ranking_energy(model, first), 0, true});
 
     std::stable_sort(candidates.begin(), candidates.end(), [](const Candidate& p, const Candidate& q) {
         return p.energy < q.energy || (p.energy == q.energy && p.index < q.index);
@@ -547,7 +551,7 @@ std::vector<Structure> build_ensemble(const Molecule& molecule, const BuildOptio
     for (Candidate& c : candidates) {
         if (static_cast<int>(kept.size()) >= options.count) break;
         check_deadline("choosing conformers");
-        if (!polish(builder, c)) continue;
+        if (!polish(builder, model, c)) continue;
         bool distinct = true;
         for (const Candidate* k : kept)
             if (comparer.rmsd(k->built.structure.positions, c.built.structure.positions) < options.distinct_rmsd) {
