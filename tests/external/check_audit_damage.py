@@ -74,7 +74,7 @@ FIX_KINDS = ["bond +0.15 A", "bond -0.15 A", "bond +0.3 A", "bond -0.3 A", "heav
 # ring atom pulled along a ring bond and of a centre drawn flat or puckered take the expected lengths (the analysis'
 # corrected by kind of bond, lib/check/clean.cpp), so the expected length's own error (up to 0.1 A for bonds with a
 # heavier atom) stays in them; a damaged bond not found is not changed.
-MINIMUM_FIX = {"bonds within 0.05 A": 0.91, "chirality kept": 0.98}
+MINIMUM_FIX = {"bonds within 0.05 A": 0.915, "chirality kept": 0.98}
 FIX_XTB_SAMPLE = 10
 
 

@@ -124,13 +124,33 @@ def radius(symbol):
     return covalent_radii[atomic_numbers[symbol]]
 
 
+# A pair within the perception scale that shares a neighbour and lies beyond this fraction of its covalent sum is the
+# two ends of an angle, not a bond: the P...P of a P-O-P bridge (2.67 A in pyrophosphoric acid, 1.25 x 2.14 = 2.68)
+# falls inside 1.25 x, while a three-membered ring's bonds (cyclopropane C-C 1.51 A, 0.99 x) stay bonds (common
+# practice).
+BRIDGED_PAIR_FRACTION = 1.15
+
+
 def perceive_bonds(symbols, coords, scale=PERCEPTION_SCALE):
-    """Set of frozenset({i, j}) pairs closer than scale x (sum of Cordero covalent radii)."""
+    """Set of frozenset({i, j}) pairs closer than scale x (sum of Cordero covalent radii), without the ends of an
+    angle that only the scale brought in (BRIDGED_PAIR_FRACTION)."""
     r = np.array([radius(s) for s in symbols])
     d = np.linalg.norm(coords[:, None, :] - coords[None, :, :], axis=2)
     limit = scale * (r[:, None] + r[None, :])
     n = len(symbols)
-    return {frozenset((i, j)) for i in range(n) for j in range(i + 1, n) if d[i, j] < limit[i, j]}
+    pairs = {frozenset((i, j)) for i in range(n) for j in range(i + 1, n) if d[i, j] < limit[i, j]}
+    adj = [set() for _ in range(n)]
+    for p in pairs:
+        i, j = tuple(p)
+        adj[i].add(j)
+        adj[j].add(i)
+    out = set()
+    for p in pairs:
+        i, j = tuple(p)
+        if adj[i] & adj[j] and d[i, j] > BRIDGED_PAIR_FRACTION * (r[i] + r[j]):
+            continue
+        out.add(p)
+    return out
 
 
 def neighbours(n, bonds):
