@@ -31,7 +31,7 @@ import numpy as np
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 sys.path.insert(0, os.path.join(HERE, "..", "tests", "external"))
-from common import parse_xyz, perceive_bonds  # noqa: E402
+from common import parse_xyz, perceive_bonds, xyz_frames  # noqa: E402
 
 HARTREE_KCAL = 627.509  # kcal/mol per hartree (CODATA, from memory)
 XTB = shutil.which("xtb") or "/usr/bin/xtb"
@@ -48,16 +48,6 @@ def molecules():
                 smiles, name = line.split(None, 1)
                 found[name.strip()] = smiles
     return [(found[n], n) for n in NAMES] + EXTRA
-
-
-def frames(text):
-    lines = text.splitlines()
-    out, k = [], 0
-    while k < len(lines):
-        n = int(lines[k])
-        out.append("\n".join(lines[k:k + n + 2]) + "\n")
-        k += n + 2
-    return out
 
 
 def xtb_opt(xyz_text, charge=0, uhf=0):
@@ -186,7 +176,7 @@ def main():
         if only and name not in only:
             continue
         single = subprocess.run([repel, "build", smiles], capture_output=True, text=True, check=True).stdout
-        ensemble = frames(subprocess.run([repel, "build", smiles, "--conformers", str(count)], capture_output=True,
+        ensemble = xyz_frames(subprocess.run([repel, "build", smiles, "--conformers", str(count)], capture_output=True,
                                          text=True, check=True).stdout)
         symbols, coords, _, _ = parse_xyz(single)
         bonds = perceive_bonds(symbols, coords)

@@ -29,7 +29,7 @@ sys.dont_write_bytecode = True  # no __pycache__ in the source tree
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 import check_xtb_client  # noqa: E402
 from check_xtb_client import begin_check, run_xtb  # noqa: E402
-from common import graph_isomorphisms, kabsch_rmsd, neighbours, parse_xyz, perceive_bonds, run_repel  # noqa: E402
+from common import graph_isomorphisms, kabsch_rmsd, neighbours, parse_xyz, perceive_bonds, run_repel, xyz_frames  # noqa: E402
 
 check_xtb_client.XTB_TIMEOUT = 300  # a hang guard only: each optimisation takes seconds on one core
 HARTREE_KCAL = 627.509  # kcal/mol per hartree (CODATA, from memory)
@@ -40,16 +40,6 @@ MOLECULES = [
     ('methylcyclohexane', 'CC1CCCCC1', 2),
     ('cis-4-tert-butylcyclohexanol', 'CC(C)(C)[C@H]1CC[C@@H](O)CC1', 2),
 ]
-
-
-def frames(text):
-    lines = text.splitlines()
-    out, k = [], 0
-    while k < len(lines):
-        n = int(lines[k])
-        out.append('\n'.join(lines[k:k + n + 2]) + '\n')
-        k += n + 2
-    return out
 
 
 def optimise(tmp, tag, xyz):
@@ -95,7 +85,7 @@ def main():
         r = run_repel(exe, ['build', smiles, '--conformers', '10'])
         if not t.check(r.returncode == 0, f'{name}: repel build failed: {r.stderr.strip()}'):
             continue
-        starts[name] = frames(r.stdout)
+        starts[name] = xyz_frames(r.stdout)
         t.check(len(starts[name]) >= least, f'{name}: {len(starts[name])} conformers, expected at least {least}')
     jobs_list = [(name, k, xyz) for name, fr in starts.items() for k, xyz in enumerate(fr[:2])]
     with concurrent.futures.ThreadPoolExecutor(max_workers=jobs) as pool:

@@ -120,6 +120,17 @@ def parse_sdf_v3000(lines):
     return symbols, np.array(coords, dtype=float).reshape(-1, 3), bonds
 
 
+def xyz_frames(text):
+    """The frames of a multi-frame XYZ text (atom count, comment, atoms), each as its own XYZ text."""
+    lines = text.splitlines()
+    out, k = [], 0
+    while k < len(lines):
+        n = int(lines[k])
+        out.append("\n".join(lines[k:k + n + 2]) + "\n")
+        k += n + 2
+    return out
+
+
 def radius(symbol):
     return covalent_radii[atomic_numbers[symbol]]
 
