@@ -16,6 +16,8 @@ namespace repel {
 // aromatic bonds ` r5` in a five-membered ring, ` f` between two atoms of three aromatic bonds (ring fusion). The
 // ends are sorted (element symbol, then the rest): "C3u-N3 1", "C3-O1 s", "C4-C4 1 r3", "C3u-C3u ar f".
 std::string bond_kind(const Molecule& m, int e);
+// The element pair and order of bond e ("C-S 1") when one end lies beyond F, else empty: the fallback kind.
+std::string coarse_bond_kind(const Molecule& m, int e);
 
 // The analysis' lengths of m's bonds (model[e], 0 where none) corrected by kind. Bonds of one atom to one element
 // written with different orders whose model lengths are equal (orders the analysis shared: carboxylate, guanidinium;
