@@ -12,6 +12,7 @@
 #include "assemble/build.hpp"
 #include "check/audit.hpp"
 #include "check/clean.hpp"
+#include "check/expected_length.hpp"
 #include "check/report.hpp"
 #include "input/smiles.hpp"
 #include "input/structure_reader.hpp"
@@ -414,4 +415,20 @@ TEST(CheckDamage, AHydrogenTurnedAtAThreeMemberedRingIsFound) {
     const Audit a = audit_structure(r);
     ASSERT_FALSE(a.findings.empty()) << describe(a);
     EXPECT_EQ(a.findings.front().atoms, std::vector<int>{1}) << describe(a);
+}
+
+TEST(CheckLengths, BondsWithAnAtomBeyondFluorineHaveAnElementPairFallbackKind) {
+    // Ethyl methyl sulfoxide, CCS(C)=O: the fallback kind names the element pair and the order, only for bonds with an
+    // atom beyond F (the sparse kinds of lib/check/expected_length.cpp's table).
+    const Molecule m = read_smiles("CCS(C)=O");
+    int cs = 0, so = 0, cc = 0;
+    for (int e = 0; e < static_cast<int>(m.bonds.size()); ++e) {
+        const std::string k = coarse_bond_kind(m, e);
+        cs += k == "C-S 1" ? 1 : 0;
+        so += k == "O-S 2" ? 1 : 0;
+        cc += k.empty() ? 1 : 0;
+    }
+    EXPECT_EQ(cs, 2);
+    EXPECT_EQ(so, 1);
+    EXPECT_EQ(cc, 1);
 }
