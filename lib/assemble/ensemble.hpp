@@ -9,6 +9,7 @@
 
 #include "assemble/build.hpp"
 #include "graph/molecule.hpp"
+#include "graph/symmetry.hpp"
 
 namespace repel {
 
@@ -35,10 +36,6 @@ struct RotatableBond {
 // 180 between two planar conjugated ends, 60..300 by 60 otherwise.
 std::vector<RotatableBond> rotatable_bonds(const Molecule& molecule, const MoleculeDomains& domains,
                                            const RingInfo& rings);
-
-// Per atom a class number that equal atoms share: element, charge and neighbours refined over the graph
-// (Morgan-like, Morgan J. Chem. Doc. 5 (1965) 107), to a fixed point.
-std::vector<int> symmetry_classes(const Molecule& molecule);
 
 // The RMSD (Angstrom) between two conformations of one molecule over its heavy atoms (every atom when it has fewer
 // than three), after the best superposition (Kabsch), the least over the graph's symmetries (automorphisms of the

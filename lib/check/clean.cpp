@@ -14,6 +14,7 @@
 #include "core/error.hpp"
 #include "domains/domains.hpp"
 #include "graph/rings.hpp"
+#include "graph/symmetry.hpp"
 #include "refine/refine.hpp"
 
 namespace repel {
@@ -135,6 +136,115 @@ OutOfPlace out_of_place(const Molecule& m, const MoleculeDomains& d, const std::
     return OutOfPlace::no;
 }
 
+// The ends of bond e at atom a that lie across a from e's other end (angle above 150 degrees), as their symmetry
+// classes, sorted: what tells an axial from an equatorial bond of one centre (ClF3, SF4, BrF5, ArSF5), which the graph
+// alone cannot.
+std::vector<int> trans_classes(const Molecule& m, const std::vector<Eigen::Vector3d>& pos,
+                               const std::vector<int>& classes, int a, int other) {
+    constexpr double kTrans = -0.866;  // cos 150 degrees
+    std::vector<int> out;
+    const Eigen::Vector3d u = (pos[static_cast<size_t>(other)] - pos[static_cast<size_t>(a)]).normalized();
+    for (const Neighbor& nb : m.neighbors(a)) {
+        if (nb.atom == other) continue;
+        const Eigen::Vector3d v = (pos[static_cast<size_t>(nb.atom)] - pos[static_cast<size_t>(a)]).normalized();
+        if (u.dot(v) < kTrans) out.push_back(classes[static_cast<size_t>(nb.atom)]);
+    }
+    std::sort(out.begin(), out.end());
+    return out;
+}
+
+// Per bond, the measured length of its sound equivalents, 0 where there are none or they disagree. Equivalent: the
+// same symmetry classes at its ends (graph/symmetry.hpp), the same orders, and the same classes lying across each end
+// (trans_classes). Sound: not itself given a new length (keep above kExpected) and within `near` of its expected
+// length. Equivalents are used only when they agree within 0.02 A (their mean is taken). A structure's own equal
+// bonds carry what no table of kinds can: the level of theory it was made at and the centre's own position (the
+// axial Cl-F of ClF3 is 0.1 A longer than the equatorial).
+std::vector<double> equivalent_lengths(const Molecule& m, const std::vector<Eigen::Vector3d>& pos,
+                                       const std::vector<double>& expected, const std::vector<double>& keep,
+                                       double expected_mark, double near) {
+    constexpr double kAgree = 0.02;
+    const size_t nb = m.bonds.size();
+    std::vector<double> out(nb, 0.0);
+    bool any = false;
+    for (size_t e = 0; e < nb; ++e) any = any || keep[e] <= expected_mark;
+    if (!any) return out;
+    const std::vector<int> classes = symmetry_classes(m);
+    using Key = std::vector<int>;
+    auto key = [&](size_t e) {
+        const Bond& b = m.bonds[e];
+        int a = b.a, c = b.b;
+        if (std::make_pair(classes[static_cast<size_t>(a)], trans_classes(m, pos, classes, a, c)) >
+            std::make_pair(classes[static_cast<size_t>(c)], trans_classes(m, pos, classes, c, a)))
+            std::swap(a, c);
+        Key k{classes[static_cast<size_t>(a)], classes[static_cast<size_t>(c)], b.aromatic ? 4 : b.order, -1};
+        for (int x : trans_classes(m, pos, classes, a, c)) k.push_back(x);
+        k.push_back(-1);
+        for (int x : trans_classes(m, pos, classes, c, a)) k.push_back(x);
+        return k;
+    };
+    std::vector<Key> keys(nb);
+    for (size_t e = 0; e < nb; ++e) keys[e] = key(e);
+    for (size_t e = 0; e < nb; ++e) {
+        if (keep[e] > expected_mark) continue;
+        double lo = 1e9, hi = -1e9, sum = 0;
+        int count = 0;
+        for (size_t f = 0; f < nb; ++f) {
+            if (f == e || keep[f] <= expected_mark || keys[f] != keys[e]) continue;
+            const Bond& b = m.bonds[f];
+            const double measured = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm();
+            if (expected[f] > 0 && std::fabs(measured - expected[f]) > near) continue;
+            lo = std::min(lo, measured);
+            hi = std::max(hi, measured);
+            sum += measured;
+            ++count;
+        }
+        if (count > 0 && hi - lo <= kAgree) out[e] = sum / count;
+    }
+    return out;
+}
+
+// A ring bond e found too long or short: one of its atoms was most likely moved along it (a ring atom cannot have
+// its whole side moved). Each end in turn is put back along the bond, with its hydrogens, to the target length; the
+// end whose other bonds (to atoms not themselves given a new length) come nearer their expected lengths by it is
+// kept, when they do come nearer. Returns whether an end was put back.
+bool put_back_along_bond(const Molecule& m, int e, double target, const std::vector<double>& expected,
+                         const std::vector<double>& keep, double expected_mark, std::vector<Eigen::Vector3d>& pos) {
+    const Bond& bond = m.bonds[static_cast<size_t>(e)];
+    auto p = [&](int i) -> const Eigen::Vector3d& { return pos[static_cast<size_t>(i)]; };
+    const double measured = (p(bond.a) - p(bond.b)).norm();
+    if (measured < 1e-6) return false;
+    double best = 0;
+    int chosen = -1;
+    for (int x : {bond.a, bond.b}) {
+        const int y = x == bond.a ? bond.b : bond.a;
+        const Eigen::Vector3d shift = (p(y) - p(x)).normalized() * (measured - target);
+        double gain = 0;
+        int judged = 0;
+        for (const Neighbor& nb : m.neighbors(x)) {
+            if (nb.bond == e || m.atoms[static_cast<size_t>(nb.atom)].z == 1) continue;
+            const double want = expected[static_cast<size_t>(nb.bond)];
+            if (want <= 0) continue;
+            const double now = (p(nb.atom) - p(x)).norm(), then = (p(nb.atom) - p(x) - shift).norm();
+            gain += std::fabs(now - want) - std::fabs(then - want);
+            ++judged;
+        }
+        (void)keep;
+        (void)expected_mark;
+        if (judged > 0 && gain > best) {
+            best = gain;
+            chosen = x;
+        }
+    }
+    if (chosen < 0) return false;
+    const int y = chosen == bond.a ? bond.b : bond.a;
+    const Eigen::Vector3d shift = (p(y) - p(chosen)).normalized() * (measured - target);
+    pos[static_cast<size_t>(chosen)] += shift;
+    for (const Neighbor& nb : m.neighbors(chosen))
+        if (m.atoms[static_cast<size_t>(nb.atom)].z == 1 && m.neighbors(nb.atom).size() == 1)
+            pos[static_cast<size_t>(nb.atom)] += shift;
+    return true;
+}
+
 // The target length of every bond for the refinement. Only what is wrong is changed, so that cleaning does not move
 // sound bonds to the expected lengths (their own errors, up to 0.12 A on sound structures and more for hypervalent
 // centres, would become the structure's): a bond keeps its measured length unless
@@ -147,40 +257,62 @@ OutOfPlace out_of_place(const Molecule& m, const MoleculeDomains& d, const std::
 //   neighbours, which shortened its bonds, so they take the expected lengths; a centre whose angles are wrong but
 //   which is not flat had a group turned about it, which keeps the bonds, so they keep their measured lengths when
 //   within the length threshold.
-// Measured by tests/external/check_audit_damage.py (README, `repel check`).
+// A bond that must take a new length takes, before the expected one, the measured length of its sound equivalents
+// in the same structure (equivalent_lengths). Measured by tests/external/check_audit_damage.py (README, `repel
+// check`).
 void set_length_targets(const Audit& audit, const Molecule& m, const MoleculeDomains& d,
-                        const std::vector<Eigen::Vector3d>& pos, std::vector<double>& lengths) {
+                        std::vector<Eigen::Vector3d>& pos, std::vector<double>& lengths) {
     lengths = corrected_lengths(m, lengths);
     const double near = AuditOptions{}.bond_deviation;
     constexpr double kExpected = -1;  // keep[e] below this: the expected length
-    std::vector<double> keep(m.bonds.size(), 1e9);  // how far from the expected length a bond may lie and keep its own
-    auto limit = [&](int e, double k) { keep[static_cast<size_t>(e)] = std::min(keep[static_cast<size_t>(e)], k); };
     const RingInfo rings = perceive_rings(m);
-    for (const Finding& f : audit.findings) {
-        if (f.atoms.empty()) continue;
-        if (f.kind == "bond length" && f.atoms.size() == 2) {
-            const int e = m.bond_between(f.atoms[0] - 1, f.atoms[1] - 1);
-            if (e < 0) continue;
-            limit(e, kExpected);
-            const bool ring = rings.ring_bond[static_cast<size_t>(e)];
-            for (int a : f.atoms)
-                for (const Neighbor& nb : m.neighbors(a - 1))
-                    limit(nb.bond, ring ? kExpected : near);
-            continue;
-        }
-        for (int a : f.atoms) {
-            const OutOfPlace how = out_of_place(m, d, pos, a - 1);
-            for (const Neighbor& nb : m.neighbors(a - 1)) {
-                const bool moved = how == OutOfPlace::flattened ||
-                                   (how == OutOfPlace::puckered && rings.ring_bond[static_cast<size_t>(nb.bond)]);
-                limit(nb.bond, moved ? kExpected : near);
+    // How far from the expected length each bond may lie and keep its own; `undone`: ring bonds whose misplaced atom
+    // was put back (their neighbours' bonds are then as they were).
+    auto keeps = [&](const std::set<int>& undone) {
+        std::vector<double> keep(m.bonds.size(), 1e9);
+        auto limit = [&](int e, double k) { keep[static_cast<size_t>(e)] = std::min(keep[static_cast<size_t>(e)], k); };
+        for (const Finding& f : audit.findings) {
+            if (f.atoms.empty()) continue;
+            if (f.kind == "bond length" && f.atoms.size() == 2) {
+                const int e = m.bond_between(f.atoms[0] - 1, f.atoms[1] - 1);
+                if (e < 0) continue;
+                limit(e, kExpected);
+                const bool ring = rings.ring_bond[static_cast<size_t>(e)] && !undone.count(e);
+                for (int a : f.atoms)
+                    for (const Neighbor& nb : m.neighbors(a - 1))
+                        if (nb.bond != e) limit(nb.bond, ring ? kExpected : near);
+                continue;
+            }
+            for (int a : f.atoms) {
+                const OutOfPlace how = out_of_place(m, d, pos, a - 1);
+                for (const Neighbor& nb : m.neighbors(a - 1)) {
+                    const bool moved = how == OutOfPlace::flattened ||
+                                       (how == OutOfPlace::puckered && rings.ring_bond[static_cast<size_t>(nb.bond)]);
+                    limit(nb.bond, moved ? kExpected : near);
+                }
             }
         }
+        return keep;
+    };
+    std::vector<double> keep = keeps({});
+    const std::vector<double> equivalent = equivalent_lengths(m, pos, lengths, keep, kExpected, near);
+    auto target = [&](size_t e) { return equivalent[e] > 0 ? equivalent[e] : lengths[e]; };
+    std::set<int> undone;
+    for (const Finding& f : audit.findings) {
+        if (f.kind != "bond length" || f.atoms.size() != 2) continue;
+        const int e = m.bond_between(f.atoms[0] - 1, f.atoms[1] - 1);
+        if (e >= 0 && rings.ring_bond[static_cast<size_t>(e)] && !undone.count(e) &&
+            put_back_along_bond(m, e, target(static_cast<size_t>(e)), lengths, keep, kExpected, pos))
+            undone.insert(e);
     }
+    if (!undone.empty()) keep = keeps(undone);
     for (size_t e = 0; e < m.bonds.size(); ++e) {
         const Bond& b = m.bonds[e];
         const double measured = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm();
-        if (std::fabs(measured - lengths[e]) <= keep[e]) lengths[e] = measured;
+        if (std::fabs(measured - lengths[e]) <= keep[e])
+            lengths[e] = measured;
+        else if (keep[e] <= kExpected)
+            lengths[e] = target(e);
     }
 }
 
@@ -225,7 +357,7 @@ CleanResult clean_structure(const Audit& audit) {
         std::vector<DoubleBondTarget> doubles;
         stereo_as_found(m, d, pos, chiral, doubles);
         const std::vector<Eigen::Vector3d> before = pos;
-        if (d.bond_lengths.size() == m.bonds.size()) set_length_targets(audit, m, d, before, d.bond_lengths);
+        if (d.bond_lengths.size() == m.bonds.size()) set_length_targets(audit, m, d, pos, d.bond_lengths);
         RefineResult r = refine_structure(m, d, chiral, doubles, pos);
         // The refinement must keep each metal's polyhedron: a centre that ends further from the model's polyhedron
         // than the audit's threshold, and further than it started, is left as it was (a refusal, said).
