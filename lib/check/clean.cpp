@@ -2,6 +2,7 @@
 
 #include <fmt/format.h>
 
+#include <Eigen/Eigenvalues>
 #include <Eigen/Geometry>
 #include <algorithm>
 #include <cmath>
@@ -245,6 +246,45 @@ bool put_back_along_bond(const Molecule& m, int e, double target, const std::vec
     return true;
 }
 
+// A ring of trigonal centres found puckered (at least half its atoms out of the plane of their neighbours): its
+// atoms are put back on the ring's least-squares plane, each with its hydrogens and other one-neighbour atoms, which
+// restores the ring bonds the puckering stretched. Returns the atoms moved.
+std::vector<int> flatten_puckered_rings(const Molecule& m, const MoleculeDomains& d, const RingInfo& rings,
+                                        std::vector<Eigen::Vector3d>& pos) {
+    std::vector<int> moved;
+    for (const std::vector<int>& ring : rings.rings) {
+        if (ring.size() < 5 || ring.size() > 8) continue;
+        size_t puckered = 0;
+        bool trigonal = true;
+        for (int a : ring) {
+            trigonal = trigonal && d.atoms[static_cast<size_t>(a)].steric_number == 3;
+            puckered += out_of_place(m, d, pos, a) == OutOfPlace::puckered;
+        }
+        if (!trigonal || 2 * puckered < ring.size()) continue;
+        Eigen::Vector3d centre = Eigen::Vector3d::Zero();
+        for (int a : ring) centre += pos[static_cast<size_t>(a)];
+        centre /= static_cast<double>(ring.size());
+        Eigen::Matrix3d cov = Eigen::Matrix3d::Zero();
+        for (int a : ring) {
+            const Eigen::Vector3d r = pos[static_cast<size_t>(a)] - centre;
+            cov += r * r.transpose();
+        }
+        const Eigen::SelfAdjointEigenSolver<Eigen::Matrix3d> eig(cov);
+        const Eigen::Vector3d normal = eig.eigenvectors().col(0);
+        for (int a : ring) {
+            const Eigen::Vector3d shift = -normal * normal.dot(pos[static_cast<size_t>(a)] - centre);
+            pos[static_cast<size_t>(a)] += shift;
+            moved.push_back(a);
+            for (const Neighbor& nb : m.neighbors(a))
+                if (m.neighbors(nb.atom).size() == 1) {
+                    pos[static_cast<size_t>(nb.atom)] += shift;
+                    moved.push_back(nb.atom);
+                }
+        }
+    }
+    return moved;
+}
+
 // The target length of every bond for the refinement. Only what is wrong is changed, so that cleaning does not move
 // sound bonds to the expected lengths (their own errors, up to 0.12 A on sound structures and more for hypervalent
 // centres, would become the structure's): a bond keeps its measured length unless
@@ -306,6 +346,21 @@ void set_length_targets(const Audit& audit, const Molecule& m, const MoleculeDom
             undone.insert(e);
     }
     if (!undone.empty()) keep = keeps(undone);
+    // Bonds given new lengths because a ring was puckered, or named in a length finding, keep their lengths when the
+    // ring, put back on its plane, gives them back a sound length (0.75 x the threshold, the audit's bound for short
+    // bonds).
+    const std::vector<int> flattened = flatten_puckered_rings(m, d, rings, pos);
+    if (!flattened.empty()) {
+        std::vector<char> was_moved(pos.size(), 0);
+        for (int a : flattened) was_moved[static_cast<size_t>(a)] = 1;
+        for (size_t e = 0; e < m.bonds.size(); ++e) {
+            const Bond& b = m.bonds[e];
+            if (keep[e] > kExpected || !(was_moved[static_cast<size_t>(b.a)] || was_moved[static_cast<size_t>(b.b)]))
+                continue;
+            const double measured = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm();
+            if (std::fabs(measured - lengths[e]) <= 0.75 * near) keep[e] = near;
+        }
+    }
     for (size_t e = 0; e < m.bonds.size(); ++e) {
         const Bond& b = m.bonds[e];
         const double measured = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm();
