@@ -432,3 +432,87 @@ TEST(CheckLengths, BondsWithAnAtomBeyondFluorineHaveAnElementPairFallbackKind) {
     EXPECT_EQ(so, 1);
     EXPECT_EQ(cc, 1);
 }
+
+namespace {
+
+// ClF3 of the G2 set (ase.collections.g2['ClF3'] in Debian's python3-ase; MP2/6-31G(d)): T-shaped, Cl1-F2 equatorial
+// 1.635 A, Cl1-F3 and Cl1-F4 axial 1.718 A.
+const char* kG2ChlorineTrifluoride =
+    "4\nClF3\n"
+    "Cl 0.000000 0.000000 0.376796\nF 0.000000 0.000000 -1.258346\nF 0.000000 1.714544 0.273310\n"
+    "F 0.000000 -1.714544 0.273310\n";
+
+// Pyridine of the same set: ring N1 C3 C6 C2 C5 C4, each C with its H.
+const char* kG2Pyridine =
+    "11\nC5H5N\n"
+    "N 0.000000 0.000000 1.424672\nC 0.000000 0.000000 -1.386178\nC 0.000000 1.144277 0.720306\n"
+    "C 0.000000 -1.144277 0.720306\nC 0.000000 -1.196404 -0.672917\nC 0.000000 1.196404 -0.672917\n"
+    "H 0.000000 0.000000 -2.473052\nH 0.000000 2.060723 1.307477\nH 0.000000 -2.060723 1.307477\n"
+    "H 0.000000 -2.155293 -1.183103\nH 0.000000 2.155293 -1.183103\n";
+
+// Every bond (as the audit perceived them) of the fixed structure against the undamaged one: the largest difference
+// (A).
+double worst_against(const Audit& a, const ReadStructure& sound, const CleanResult& c) {
+    return largest_bond_change(a.structure.molecule, sound.structure.positions, c.structure.positions);
+}
+
+}  // namespace
+
+TEST(CheckFix, AHypervalentBondTakesTheLengthOfItsSoundEquivalent) {
+    // One axial Cl-F of ClF3 stretched or compressed by 0.3 A: --fix gives it the other axial bond's length (found by
+    // symmetry class and by the F across the centre), not the expected Cl-F length (it left 0.058 A before; now
+    // under 0.001 A).
+    const ReadStructure sound = xyz(kG2ChlorineTrifluoride);
+    for (int f : {1, 2})
+        for (double by : {0.3, -0.3}) {
+            ReadStructure r = xyz(kG2ChlorineTrifluoride);
+            stretch(r, 0, f, by);
+            const Audit a = audit_structure(r);
+            ASSERT_TRUE(names_bond(a, 1, f + 1)) << by << "\n" << describe(a);
+            const CleanResult c = clean_structure(a);
+            ASSERT_TRUE(c.refined) << c.summary;
+            // The equatorial bond has no equivalent: it takes the expected length, 0.044 A off (measured).
+            EXPECT_LT(worst_against(a, sound, c), f == 2 ? 0.02 : 0.05) << f << " " << by;
+        }
+}
+
+TEST(CheckFix, ARingAtomMovedAlongARingBondIsPutBack) {
+    // Pyridine's C6 (with its H) moved 0.15 A along C3-C6: the ring bond C6-C2 moved with it. --fix puts C6 back along
+    // the bond it was found on, so every ring bond ends within 0.01 A of the undamaged one (the bonds next to the
+    // named one took the expected aromatic lengths before: 0.014 A off).
+    const ReadStructure sound = xyz(kG2Pyridine);
+    for (double by : {0.15, -0.15, 0.3}) {
+        ReadStructure r = xyz(kG2Pyridine);
+        stretch(r, 2, 5, by);
+        const Audit a = audit_structure(r);
+        ASSERT_FALSE(a.findings.empty()) << by;
+        const CleanResult c = clean_structure(a);
+        ASSERT_TRUE(c.refined) << c.summary;
+        EXPECT_LT(worst_against(a, sound, c), 0.01) << by << "\n" << describe(a);
+    }
+}
+
+TEST(CheckFix, APuckeredAromaticRingIsPutBackOnItsPlane) {
+    // Pyridine with alternate ring atoms moved 0.25 A up and down the ring normal (x), each with its H: --fix puts
+    // the ring back on its plane, so every bond ends within 0.01 A of the undamaged one (before, the refinement left atoms
+    // 0.15 A out of the plane).
+    const ReadStructure sound = xyz(kG2Pyridine);
+    ReadStructure r = xyz(kG2Pyridine);
+    auto& p = r.structure.positions;
+    const int ring[] = {0, 2, 5, 1, 4, 3};
+    for (int k = 0; k < 6; ++k) {
+        const double dx = k % 2 == 0 ? 0.25 : -0.25;
+        p[static_cast<size_t>(ring[k])].x() += dx;
+        for (int h = 6; h < 11; ++h)
+            if ((p[static_cast<size_t>(h)] - p[static_cast<size_t>(ring[k])]).norm() < 1.2) p[static_cast<size_t>(h)].x() += dx;
+    }
+    const Audit a = audit_structure(r);
+    ASSERT_FALSE(a.findings.empty());
+    const CleanResult c = clean_structure(a);
+    ASSERT_TRUE(c.refined) << c.summary;
+    EXPECT_LT(worst_against(a, sound, c), 0.01) << describe(a);
+    double out = 0;
+    for (int k = 0; k < 11; ++k) out = std::max(out, std::fabs(c.structure.positions[static_cast<size_t>(k)].x() -
+                                                                c.structure.positions[0].x()));
+    EXPECT_LT(out, 0.05);
+}
