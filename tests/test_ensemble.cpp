@@ -7,6 +7,7 @@
 #include <cmath>
 #include <nlohmann/json.hpp>
 #include <numbers>
+#include <set>
 #include <repel/repel.hpp>
 
 #include "assemble/ensemble.hpp"
@@ -213,6 +214,107 @@ TEST(Ensemble, WritersCarryTheConformer) {
     EXPECT_NE(pdb.find("REMARK   6 CONFORMER 2 OF 2 ENERGY"), std::string::npos);
     // A single build carries none of it.
     EXPECT_EQ(write(build("CCCC"), WriteFormat::sdf).find("<conformer>"), std::string::npos);
+}
+
+
+// Ring torsions (degrees) of a ring given in ring order.
+std::vector<double> ring_torsions(const std::vector<Vector3d>& x, const std::vector<int>& ring) {
+    std::vector<double> t;
+    const size_t n = ring.size();
+    for (size_t k = 0; k < n; ++k)
+        t.push_back(degrees(dihedral(x[static_cast<size_t>(ring[k])], x[static_cast<size_t>(ring[(k + 1) % n])],
+                                     x[static_cast<size_t>(ring[(k + 2) % n])], x[static_cast<size_t>(ring[(k + 3) % n])])));
+    return t;
+}
+
+// A chair: ring torsions alternate in sign, each at least 30 degrees (cyclohexane's are about 55; common practice).
+bool is_chair(const std::vector<double>& t) {
+    for (size_t k = 0; k < t.size(); ++k)
+        if (std::abs(t[k]) < 30 || (t[k] > 0) == (t[(k + 1) % t.size()] > 0)) return false;
+    return true;
+}
+
+// Other ring puckers are sampled, not only the chairs and their mirror images: N-methyl-4-phenylpiperidine's ensemble
+// holds a ring that is not a chair (a twist-boat or boat, about 5-6 kcal/mol above the chair in cyclohexane, from
+// memory), ranked after both chairs; 2-methylcyclopentanol's holds envelopes with their flaps at different atoms.
+// Before, only the chairs (and the mirror images of envelopes) were built.
+TEST(Ensemble, RingPuckersBeyondTheChairsAreSampled) {
+    const std::vector<Structure> e = build_conformers("CN1CCC(CC1)c1ccccc1", {}, count(10));
+    const std::vector<int> ring{1, 2, 3, 4, 5, 6};
+    size_t chairs = 0, first_other = 0;
+    for (size_t k = 0; k < e.size(); ++k) {
+        if (is_chair(ring_torsions(e[k].positions, ring)))
+            ++chairs;
+        else if (first_other == 0)
+            first_other = k;
+    }
+    EXPECT_GE(chairs, 2u);
+    ASSERT_GT(first_other, 0u) << "no ring shape other than the chair among " << e.size();
+    EXPECT_GT(e[first_other].conformer->relative_energy, 2.0);
+
+    // Envelopes differ by little (0.2-0.4 A over the heavy atoms): seen below the default threshold.
+    ConformerSettings close = count(10);
+    close.distinct_rmsd = 0.2;
+    const std::vector<Structure> c = build_conformers("CC1CCCC1O", {}, close);
+    const std::vector<int> five{1, 2, 3, 4, 5};
+    std::set<int> flaps;  // the ring atom opposite the torsion nearest zero
+    for (const Structure& s : c) {
+        const std::vector<double> t = ring_torsions(s.positions, five);
+        size_t flat = 0;
+        for (size_t k = 1; k < 5; ++k)
+            if (std::abs(t[k]) < std::abs(t[flat])) flat = k;
+        flaps.insert(five[(flat + 3) % 5]);
+    }
+    EXPECT_GE(flaps.size(), 3u) << c.size() << " conformers";
+}
+
+}  // namespace
+}  // namespace repel
+
+namespace repel {
+namespace {
+
+// A ring nitrogen inverts freely: N-methylpiperidine gives its methyl equatorial, then axial (about 3 kcal/mol above
+// in the gas phase, from memory). Before, one conformer came back (the inversion was not sampled).
+TEST(Ensemble, RingNitrogenInversionIsSampled) {
+    const std::vector<Structure> e = build_conformers("CN1CCCCC1", {}, count(10));
+    ASSERT_EQ(e.size(), 2u);
+    const std::vector<int> ring{1, 2, 3, 4, 5, 6};
+    EXPECT_GT(substituent_tilt(e[0].positions, ring, 1, 0), 60);
+    EXPECT_LT(substituent_tilt(e[1].positions, ring, 1, 0), 30);
+    EXPECT_GT(e[1].conformer->relative_energy, 0.5);
+}
+
+// Whether the two methyls of a 1,4-dimethylcyclohexane (atoms 0 and 5 on ring atoms 1 and 4, SMILES CC1CCC(C)CC1) lie
+// on one face of the ring (cis).
+bool cis_dimethyl(const std::vector<Vector3d>& x) {
+    const std::vector<int> ring{1, 2, 3, 4, 6, 7};
+    Vector3d c = Vector3d::Zero();
+    for (int a : ring) c += x[static_cast<size_t>(a)];
+    c /= 6;
+    Eigen::Matrix3d cov = Eigen::Matrix3d::Zero();
+    for (int a : ring) cov += (x[static_cast<size_t>(a)] - c) * (x[static_cast<size_t>(a)] - c).transpose();
+    const Vector3d n = Eigen::SelfAdjointEigenSolver<Eigen::Matrix3d>(cov).eigenvectors().col(0);
+    return ((x[0] - x[1]).dot(n) > 0) == ((x[5] - x[4]).dot(n) > 0);
+}
+
+// An ensemble is of one stereoisomer, also where nothing is written: 1,4-dimethylcyclohexane without marks came out
+// trans and cis mixed (the cis from substituents traded at one ring carbon, and from the other ring shapes); now
+// every conformer has the first one's relative configuration, and both chairs of the trans isomer are there
+// (diequatorial, then diaxial: 2 x 1.7 kcal/mol above by A-values, Eliel and Wilen, from memory).
+TEST(Ensemble, UnwrittenStereocentresKeepTheFirstBuildsConfiguration) {
+    const std::vector<Structure> e = build_conformers("CC1CCC(C)CC1", {}, count(10));
+    ASSERT_GE(e.size(), 2u);
+    const bool cis = cis_dimethyl(e[0].positions);
+    for (const Structure& s : e) EXPECT_EQ(cis_dimethyl(s.positions), cis);
+    if (!cis) {
+        const std::vector<int> ring{1, 2, 3, 4, 6, 7};
+        EXPECT_GT(substituent_tilt(e[0].positions, ring, 1, 0), 60);
+        bool diaxial = false;
+        for (const Structure& s : e)
+            diaxial = diaxial || (substituent_tilt(s.positions, ring, 1, 0) < 30 && substituent_tilt(s.positions, ring, 4, 5) < 30);
+        EXPECT_TRUE(diaxial);
+    }
 }
 
 }  // namespace

@@ -344,23 +344,56 @@ double ranking_energy(const ConformerEnergy& model, const StructureBuilder::Buil
 }
 
 
-// A ring atom whose two substituents may trade places (axial for equatorial): the plane of its two ring bonds
-// reflects one onto the other.
+// A ring atom whose two substituents may trade places (axial for equatorial), or a nitrogen that inverts: the plane
+// of its two ring bonds (of two of its bonds) reflects the atoms of `side`.
 struct SwapCentre {
     int centre = -1, ring1 = -1, ring2 = -1;
     std::vector<int> side;  // both substituents' atoms
 };
 
+// A nitrogen whose pyramid inverts at room temperature: three neighbours and a lone pair (steric number 4; amide
+// and aniline nitrogens are planar, steric number 3), no written stereo mark, no charge, not in a three-membered ring
+// (aziridines invert slowly: barriers near 17-20 kcal/mol against about 6 for amines, from memory).
+bool free_inversion(const Molecule& m, const MoleculeDomains& d, const RingInfo& rings, int i) {
+    const Atom& a = m.atoms[at(i)];
+    if (a.z != 7 || a.charge != 0 || a.chiral_class != ChiralClass::none || m.neighbors(i).size() != 3) return false;
+    const CentreDomains& c = d.atoms[at(i)];
+    if (c.steric_number != 4 || c.lone_pairs != 1) return false;
+    for (const Neighbor& nb : m.neighbors(i))
+        if (rings.smallest_ring_with_bond(m, nb.bond) == 3) return false;
+    return true;
+}
+
+// every: also the centres whose trade makes another stereoisomer (to trade back, match_configuration), and no
+// nitrogen inversions.
 std::vector<SwapCentre> swap_centres(const Molecule& m, const MoleculeDomains& d, const RingInfo& rings,
-                                     const std::vector<int>& classes) {
+                                     const std::vector<int>& classes, bool every = false) {
     std::vector<SwapCentre> out;
+    // Per ring system: its sp3 atoms with two substituents of different classes.
+    std::vector<int> unlike_pairs(rings.systems.size(), 0);
+    for (int i = 0; i < m.atom_count(); ++i) {
+        const int sys = rings.atom_system[at(i)];
+        if (sys < 0 || d.atoms[at(i)].steric_number != 4) continue;
+        std::vector<int> outside;
+        for (const Neighbor& nb : m.neighbors(i))
+            if (rings.atom_system[at(nb.atom)] != sys) outside.push_back(classes[at(nb.atom)]);
+        if (outside.size() == 2 && outside[0] != outside[1]) ++unlike_pairs[at(sys)];
+    }
     for (int i = 0; i < m.atom_count(); ++i) {
         const int sys = rings.atom_system[at(i)];
         if (sys < 0 || d.atoms[at(i)].steric_number != 4 || m.atoms[at(i)].chiral_class != ChiralClass::none) continue;
         std::vector<int> in, outside;
         for (const Neighbor& nb : m.neighbors(i))
             (rings.atom_system[at(nb.atom)] == sys ? in : outside).push_back(nb.atom);
-        if (in.size() != 2 || outside.size() != 2 || classes[at(outside[0])] == classes[at(outside[1])]) continue;
+        // A ring nitrogen with one substituent and its lone pair inverts freely (its substituent axial or
+        // equatorial); two substituents of one symmetry class trade places to the same conformation.
+        const bool invertible = !every && outside.size() == 1 && free_inversion(m, d, rings, i);
+        if (in.size() != 2 || !(invertible || (outside.size() == 2 && classes[at(outside[0])] != classes[at(outside[1])])))
+            continue;
+        // Trading the substituents of a stereocentre (ring neighbours of two classes), or of one of two or more ring
+        // atoms with unlike substituents in one system (cis and trans), makes another stereoisomer, not another
+        // conformation: only a lone such atom with like ring neighbours (methylcyclohexane's) may trade.
+        if (!every && !invertible && (classes[at(in[0])] != classes[at(in[1])] || unlike_pairs[at(sys)] > 1)) continue;
         SwapCentre c{i, in[0], in[1], {}};
         bool separate = true;
         for (int o : outside)
@@ -369,6 +402,31 @@ std::vector<SwapCentre> swap_centres(const Molecule& m, const MoleculeDomains& d
                 c.side.push_back(a);
             }
         if (separate) out.push_back(std::move(c));
+    }
+    // Nitrogen outside rings with three different neighbours: inverting it (one neighbour's side reflected through
+    // the plane of the other two bonds) gives the other pyramid, which no turn of a bond reaches; it matters where the
+    // molecule has another stereocentre (else the two are mirror images, which the comparison takes as one).
+    for (int i = 0; i < m.atom_count() && !every; ++i) {
+        if (rings.atom_system[at(i)] >= 0 || !free_inversion(m, d, rings, i)) continue;
+        const auto& nb = m.neighbors(i);
+        if (classes[at(nb[0].atom)] == classes[at(nb[1].atom)] || classes[at(nb[0].atom)] == classes[at(nb[2].atom)] ||
+            classes[at(nb[1].atom)] == classes[at(nb[2].atom)])
+            continue;
+        // The side reflected: the smallest of the three (fewest atoms moved), which must not hold the other two.
+        std::vector<int> best;
+        int keep1 = -1, keep2 = -1;
+        for (size_t k = 0; k < 3; ++k) {
+            std::vector<int> side = side_of(m, i, nb[k].atom);
+            const int o1 = nb[(k + 1) % 3].atom, o2 = nb[(k + 2) % 3].atom;
+            if (std::find(side.begin(), side.end(), o1) != side.end() || std::find(side.begin(), side.end(), o2) != side.end())
+                continue;
+            if (best.empty() || side.size() < best.size()) {
+                best = std::move(side);
+                keep1 = o1;
+                keep2 = o2;
+            }
+        }
+        if (!best.empty()) out.push_back(SwapCentre{i, keep1, keep2, std::move(best)});
     }
     return out;
 }
@@ -380,6 +438,103 @@ void swap(std::vector<Vector3d>& x, const SwapCentre& c) {
     if (!(n.norm() > 1e-6)) return;
     const Vector3d u = n.normalized();
     for (int a : c.side) x[at(a)] -= 2 * (x[at(a)] - o).dot(u) * u;
+}
+
+// The handedness of the first build's tetrahedral centres, written or not (sp3 atoms with four neighbours, at most
+// one of them hydrogen; three-neighbour centres with a lone pair that do not invert freely: S, P, As ...), so that
+// every conformer is of the stereoisomer the first build is: a candidate is the same when one automorphism of the
+// graph (the comparer's, over the heavy atoms) maps every centre to one of the same handedness. An unwritten
+// stereocentre otherwise comes out either way from other ring shapes and swapped substituents, and so do cis and
+// trans rings (1,4-dimethylcyclohexane's two ring carbons, not stereocentres by their neighbours alone). Past the
+// comparer's cap on automorphisms every candidate is taken as the same.
+class Configuration {
+public:
+    Configuration(const Molecule& m, const MoleculeDomains& d, const std::vector<Vector3d>& reference)
+        : reference_(reference), image_(reference.size(), -1) {
+        const std::vector<int> atoms = compared_atoms(m);
+        std::vector<char> compared(reference.size(), 0);
+        for (int a : atoms) compared[at(a)] = 1;
+        for (int i = 0; i < m.atom_count(); ++i) {
+            const Atom& a = m.atoms[at(i)];
+            const CentreDomains& c = d.atoms[at(i)];
+            const auto& nb = m.neighbors(i);
+            if (c.steric_number != 4 || is_metal_atom(a.z) || !compared[at(i)]) continue;
+            if (nb.size() == 3 && (c.lone_pairs != 1 || a.z == 7)) continue;  // amines invert
+            if (nb.size() != 3 && nb.size() != 4) continue;
+            std::vector<int> heavy;
+            for (const Neighbor& x : nb)
+                if (compared[at(x.atom)]) heavy.push_back(x.atom);
+            if (heavy.size() < 3) continue;
+            std::sort(heavy.begin(), heavy.end());
+            const Centre centre{i, heavy[0], heavy[1], heavy[2]};
+            if (std::abs(volume(reference, centre)) < kFlat) continue;
+            centres_.push_back(centre);
+        }
+        if (centres_.empty()) return;
+        capped_ = !automorphisms(m, atoms, symmetry_classes(m), ConformerComparer::kMaxSymmetries, mappings_);
+        if (mappings_.empty()) mappings_.push_back(atoms);
+        atoms_ = atoms;
+    }
+
+    bool same(const std::vector<Vector3d>& x) const {
+        if (centres_.empty() || capped_) return true;
+        std::vector<int> image(x.size(), -1);
+        for (const std::vector<int>& mapping : mappings_) {
+            for (size_t k = 0; k < atoms_.size(); ++k) image[at(atoms_[k])] = mapping[k];
+            bool all = true;
+            for (const Centre& c : centres_) {
+                const Centre to{image[at(c.c)], image[at(c.a)], image[at(c.b)], image[at(c.e)]};
+                if (std::signbit(volume(x, c)) != std::signbit(volume(reference_, to))) {
+                    all = false;
+                    break;
+                }
+            }
+            if (all) return true;
+        }
+        return false;
+    }
+
+    // The centres whose handedness differs from the first build's, atom for atom.
+    std::vector<int> differing(const std::vector<Vector3d>& x) const {
+        std::vector<int> out;
+        for (const Centre& c : centres_)
+            if (std::signbit(volume(x, c)) != std::signbit(volume(reference_, c))) out.push_back(c.c);
+        return out;
+    }
+
+private:
+    struct Centre {
+        int c, a, b, e;
+    };
+    static double volume(const std::vector<Vector3d>& x, const Centre& c) {
+        return signed_volume(x[at(c.c)], x[at(c.a)], x[at(c.b)], x[at(c.e)]);
+    }
+    static constexpr double kFlat = 0.1;  // A^3: flatter centres have no handedness to keep
+
+    std::vector<Vector3d> reference_;
+    std::vector<int> image_;
+    std::vector<Centre> centres_;
+    std::vector<int> atoms_;
+    std::vector<std::vector<int>> mappings_;
+    bool capped_ = false;
+};
+
+// A base built another way (a ring system's mirror image, another ring shape) whose unwritten centres came out the
+// other way: the substituents of those centres that may trade (all_swaps) trade back, and the copy is refined
+// loosely. False when it is still another stereoisomer.
+bool match_configuration(const StructureBuilder& builder, const Configuration& configuration,
+                         const std::vector<SwapCentre>& all_swaps, StructureBuilder::Built& built) {
+    if (configuration.same(built.structure.positions)) return true;
+    const std::vector<int> wrong = configuration.differing(built.structure.positions);
+    bool swapped = false;
+    for (const SwapCentre& c : all_swaps)
+        if (std::find(wrong.begin(), wrong.end(), c.centre) != wrong.end()) {
+            swap(built.structure.positions, c);
+            swapped = true;
+        }
+    if (!swapped) return false;
+    builder.refine(built, kCandidateTolerance);
+    return builder.stereo_kept(built.structure.positions) && configuration.same(built.structure.positions);
 }
 
 // One candidate from a base build: the turns and swaps chosen for it applied and refined loosely; false when it fails.
@@ -428,7 +583,8 @@ bool polish(const StructureBuilder& builder, const ConformerEnergy& model, Candi
 
 // The candidates: the first build, the ring systems' other mirror images, then turned and swapped copies.
 std::vector<Candidate> make_candidates(const StructureBuilder& builder, const StructureBuilder::Built& first,
-                                       const ConformerEnergy& model, const EnsembleOptions& options) {
+                                       const ConformerEnergy& model, const Configuration& configuration,
+                                       const EnsembleOptions& options) {
     std::vector<Candidate> candidates;
     candidates.push_back({first, ranking_energy(model, first), 0, false});
     const Molecule& m = builder.molecule();
@@ -442,7 +598,9 @@ std::vector<Candidate> make_candidates(const StructureBuilder& builder, const St
         if (first.mirrorable[k] && !metal) mirrorable.push_back(static_cast<int>(k));
     }
     const std::vector<RotatableBond> bonds = rotatable_bonds(m, builder.domains(), builder.rings());
-    const std::vector<SwapCentre> swaps = swap_centres(m, builder.domains(), builder.rings(), symmetry_classes(m));
+    const std::vector<int> classes = symmetry_classes(m);
+    const std::vector<SwapCentre> swaps = swap_centres(m, builder.domains(), builder.rings(), classes);
+    const std::vector<SwapCentre> all_swaps = swap_centres(m, builder.domains(), builder.rings(), classes, true);
     std::vector<std::vector<int>> sides;
     for (const RotatableBond& r : bonds) sides.push_back(side_of(m, r.a, r.b));
     // Bases: the first build and up to three builds with other mirror images (all of them for up to two mirrorable
@@ -456,10 +614,31 @@ std::vector<Candidate> make_candidates(const StructureBuilder& builder, const St
         try {
             Candidate c;
             c.built = builder.build(other);
-            if (!builder.stereo_kept(c.built.structure.positions)) continue;
+            if (!builder.stereo_kept(c.built.structure.positions) ||
+                !match_configuration(builder, configuration, all_swaps, c.built))
+                continue;
+            // Unwritten centres of the mirrored systems come out equatorial again (trans-1,4-dimethylcyclohexane's
+            // mirror image is itself): their substituents traded give the other chair of the same stereoisomer.
+            Candidate flipped;
+            flipped.built = c.built;
+            bool swapped = false;
+            for (const SwapCentre& w : all_swaps)
+                if (other[at(builder.rings().atom_system[at(w.centre)])]) {
+                    swap(flipped.built.structure.positions, w);
+                    swapped = true;
+                }
             c.energy = ranking_energy(model, c.built);
             c.index = static_cast<int>(candidates.size());
             candidates.push_back(std::move(c));
+            if (swapped) {
+                builder.refine(flipped.built, kCandidateTolerance);
+                if (builder.stereo_kept(flipped.built.structure.positions) &&
+                    configuration.same(flipped.built.structure.positions)) {
+                    flipped.energy = ranking_energy(model, flipped.built);
+                    flipped.index = static_cast<int>(candidates.size());
+                    candidates.push_back(std::move(flipped));
+                }
+            }
         } catch (const UnsupportedError&) {
         }
     }
@@ -471,7 +650,9 @@ std::vector<Candidate> make_candidates(const StructureBuilder& builder, const St
         try {
             Candidate c;
             c.built = builder.build({}, variant);
-            if (!builder.stereo_kept(c.built.structure.positions)) continue;
+            if (!builder.stereo_kept(c.built.structure.positions) ||
+                !match_configuration(builder, configuration, all_swaps, c.built))
+                continue;
             c.energy = ranking_energy(model, c.built);
             c.index = static_cast<int>(candidates.size());
             candidates.push_back(std::move(c));
@@ -505,9 +686,10 @@ std::vector<Structure> build_ensemble(const Molecule& molecule, const BuildOptio
     const StructureBuilder::Built first = builder.build();
     const Molecule& m = builder.molecule();
     const ConformerEnergy model(m, builder.domains());
+    const Configuration configuration(m, builder.domains(), first.structure.positions);
     std::vector<Candidate> candidates;
     if (options.count > 1 && build_options.refine && m.atom_count() > 3)
-        candidates = make_candidates(builder, first, model, options);
+        candidates = make_candidates(builder, first, model, configuration, options);
     else
         candidates.push_back({first, ranking_energy(model, first), 0, true});
 
@@ -520,7 +702,9 @@ std::vector<Structure> build_ensemble(const Molecule& molecule, const BuildOptio
     for (Candidate& c : candidates) {
         if (static_cast<int>(kept.size()) >= options.count) break;
         check_deadline("choosing conformers");
-        if (!polish(builder, model, c)) continue;
+        if (!configuration.same(c.built.structure.positions) || !polish(builder, model, c) ||
+            !configuration.same(c.built.structure.positions))
+            continue;
         bool distinct = true;
         for (const Candidate* k : kept)
             if (comparer.rmsd(k->built.structure.positions, c.built.structure.positions) < options.distinct_rmsd) {

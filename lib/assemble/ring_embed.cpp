@@ -34,6 +34,9 @@ constexpr double kOtherSixTorsionMax = 65;
 constexpr double kFiveTorsionMax = 45;
 constexpr double kSevenTorsionMax = 100;
 constexpr double kEnvelopeFlap = 35;
+// The puckering amplitude of a cyclohexane twist-boat start (A): cyclohexane's chair has Q about 0.55-0.63 A (from
+// memory); the twist-boat's is a little larger. A start: the refinement takes the ring to its own minimum.
+constexpr double kTwistBoatPucker = 0.7;
 // The ring angle at a planar centre of a puckered five-membered ring: the regular pentagon's (an envelope's flap
 // takes the puckering; indoline's fusion atoms and a cyclopentanone's carbonyl carbon come near it, from memory).
 constexpr double kPuckeredFiveAngle = 108;
@@ -176,8 +179,20 @@ public:
         variant_ = variant;
         RingSystemEmbedding out = shape();
         out.mirrorable = prefer_equatorial(out.coordinates, other_mirror);
-        out.flexible = flexible_ring();
+        out.flexible = flexible_ring() || puckered_small_ring();
         return out;
+    }
+
+    // A ring of five or six atoms with three or more sp3 atoms not held planar: other embeddings (variant > 0) give
+    // its other puckers (a twist-boat for a chair, another envelope's flap).
+    bool puckered_small_ring() const {
+        for (const auto& ring : rings_local_) {
+            if (ring.size() != 5 && ring.size() != 6) continue;
+            int sp3 = 0;
+            for (int a : ring) sp3 += !planar_[at(a)] && d_.atoms[at(atom(a))].steric_number == 4;
+            if (sp3 >= 3) return true;
+        }
+        return false;
     }
 
     // A ring of seven or more atoms with an atom that is not planar.
@@ -214,8 +229,8 @@ private:
             }
             const bool uniform = longest - shortest < kTemplateBondSpread;
             if (!marked_double && uniform && (size <= 4 || (all_planar && size <= 8))) return polygon(ring, 0, "polygon");
-            if (uniform && size == 6 && all_sp3) return chair(ring);
-            if (uniform && size == 5 && all_sp3) return envelope(ring);
+            if (uniform && size == 6 && all_sp3) return variant_ > 0 ? twist_boat(ring, variant_) : chair(ring);
+            if (uniform && size == 5 && all_sp3) return envelope(rotated(ring, variant_));
         }
         return distance_geometry();
     }
@@ -684,7 +699,10 @@ private:
         for (const auto& ring : rings_local_)
             if (ring.size() == 6)
                 for (int a : ring) six_sp3 = six_sp3 || (!planar_[at(a)] && d_.atoms[at(atom(a))].steric_number == 4);
+        // Another shape asked of a system whose rings are all small: its six-membered rings are not held in chairs.
+        if (variant_ > 0 && !flexible_ring()) chairs_ = false;
         RingSystemEmbedding first = distance_geometry_try();
+        chairs_ = true;
         if (first.met || !six_sp3) return first;
         chairs_ = false;
         RingSystemEmbedding second = distance_geometry_try();
@@ -780,7 +798,7 @@ private:
         std::vector<Vector3d> layout = orient.empty() ? std::vector<Vector3d>{} : planar_start(orient, areas);
         if (!flat)
             for (size_t a = 0; a < layout.size(); ++a) layout[a].z() = a % 2 ? kLift : -kLift;
-        const bool other_shape = variant_ > 0 && !flat && flexible_ring();
+        const bool other_shape = variant_ > 0 && !flat && (flexible_ring() || puckered_small_ring());
         const std::vector<Vector3d> start = other_shape       ? std::vector<Vector3d>{}
                                             : !layout.empty() ? layout
                                                               : fused_start(bounds, torsions, volumes);
@@ -1195,6 +1213,25 @@ private:
             out.coordinates[at(ring[s])] = Vector3d(std::sqrt(r2) * std::cos(phi), std::sqrt(r2) * std::sin(phi), s % 2 ? -h : h);
         }
         out.method = "chair";
+        return out;
+    }
+
+    // The ring's atoms starting at position k (mod its size).
+    static std::vector<int> rotated(const std::vector<int>& ring, int k) {
+        std::vector<int> out(ring.size());
+        for (size_t s = 0; s < ring.size(); ++s) out[s] = ring[(s + static_cast<size_t>(k)) % ring.size()];
+        return out;
+    }
+
+    // Six-membered twist-boat: the Cremer-Pople puckering with the chair amplitude q3 = 0 and q2 = kTwistBoatPucker at
+    // phase 30 + 60 (variant - 1) degrees (Cremer and Pople, J. Am. Chem. Soc. 97 (1975) 1354: z_j = sqrt(1/3) q2
+    // cos(phi2 + 2 pi j * 2/6)), atoms on the polygon's circle; the refinement sets the bonds and angles.
+    RingSystemEmbedding twist_boat(const std::vector<int>& ring, int variant) const {
+        RingSystemEmbedding out = polygon(ring, 0, "twist-boat");
+        const double phase = (30.0 + 60.0 * static_cast<double>(variant - 1)) * kDeg;
+        for (size_t s = 0; s < 6; ++s)
+            out.coordinates[at(ring[s])].z() =
+                std::sqrt(1.0 / 3.0) * kTwistBoatPucker * std::cos(phase + 2 * M_PI * 2 * static_cast<double>(s) / 6);
         return out;
     }
 
