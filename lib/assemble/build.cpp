@@ -355,7 +355,8 @@ const MoleculeDomains& StructureBuilder::domains() const { return a_->domains; }
 const RingInfo& StructureBuilder::rings() const { return a_->rings; }
 bool StructureBuilder::has_hapto_ligands() const { return a_->hapto; }
 
-StructureBuilder::Built StructureBuilder::build(const std::vector<char>& other_mirror, int variant) const {
+StructureBuilder::Built StructureBuilder::build(const std::vector<char>& other_mirror, int variant,
+                                                double tolerance) const {
     const Analysis& a = *a_;
     const Molecule& skeleton = a.frame();
     Built out;
@@ -373,7 +374,7 @@ StructureBuilder::Built StructureBuilder::build(const std::vector<char>& other_m
         RingSystemEmbedding e =
             embed_ring_system(skeleton, a.domains, a.rings, static_cast<int>(k), a.centre_targets, other, variant);
         out.mirrorable[k] = e.mirrorable;
-        out.flexible[k] = e.flexible;
+        out.flexible[k] = static_cast<char>(e.large ? 2 : e.flexible ? 1 : 0);
         note_ring_system(a.rings.systems[k], e, warned_system[k], s.warnings);
         ring_xyz.push_back(std::move(e.coordinates));
     }
@@ -386,8 +387,8 @@ StructureBuilder::Built StructureBuilder::build(const std::vector<char>& other_m
     if (a.hapto) out.restraints = hapto_frame_restraints(skeleton, a.domains.metals, s.positions, site_shift);
     out.warned_system = warned_system;
     out.assembly_warnings = s.warnings;
-    if (a.options.refine && a.molecule.atom_count() > 1) refine(out);
-    finish(out.structure);
+    if (a.options.refine && a.molecule.atom_count() > 1) refine(out, tolerance);
+    if (tolerance <= 0) finish(out.structure);
     return out;
 }
 

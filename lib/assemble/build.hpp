@@ -69,7 +69,8 @@ public:
     struct Built {
         Structure structure;
         std::vector<char> mirrorable;     // per ring system: its mirror image is another conformation
-        std::vector<char> flexible;       // per ring system: other embeddings give other ring shapes (macrocycles)
+        std::vector<char> flexible;       // per ring system: other embeddings give other ring shapes: 2 for a
+                                          // medium or large ring, 1 for other puckers of five- and six-membered ones
         std::vector<char> warned_system;  // per ring system: a warning already names its strain
         std::vector<DistanceRestraint> restraints;  // the hapto frame held in the refinement
         std::vector<std::string> assembly_warnings;  // the structure's warnings before the refinement and final checks
@@ -77,8 +78,9 @@ public:
     };
     // Assembled, refined (unless the options say not) and checked; other_mirror[k]: ring system k taken as the mirror
     // image the equatorial rule would not take (ignored where the system is not mirrorable); variant > 0: flexible
-    // ring systems embedded another way (embed_ring_system).
-    Built build(const std::vector<char>& other_mirror = {}, int variant = 0) const;
+    // ring systems embedded another way (embed_ring_system); tolerance > 0: refined only to that RMS gradient and not
+    // given the final checks (a candidate of the ensemble, refined and checked later when it is considered).
+    Built build(const std::vector<char>& other_mirror = {}, int variant = 0, double tolerance = 0) const;
     // The build's refinement again from built.structure's positions (warnings for what it leaves added), to the
     // options' RMS gradient or to `tolerance` when that is above 0.
     RefineResult refine(Built& built, double tolerance = 0) const;

@@ -179,7 +179,8 @@ public:
         variant_ = variant;
         RingSystemEmbedding out = shape();
         out.mirrorable = prefer_equatorial(out.coordinates, other_mirror);
-        out.flexible = flexible_ring() || puckered_small_ring();
+        out.large = flexible_ring();
+        out.flexible = out.large || puckered_small_ring();
         return out;
     }
 
@@ -231,6 +232,13 @@ private:
             if (!marked_double && uniform && (size <= 4 || (all_planar && size <= 8))) return polygon(ring, 0, "polygon");
             if (uniform && size == 6 && all_sp3) return variant_ > 0 ? twist_boat(ring, variant_) : chair(ring);
             if (uniform && size == 5 && all_sp3) return envelope(rotated(ring, variant_));
+            // Another pucker of a lone puckered ring with heteroatoms or mixed bonds: from the template too (an
+            // embedding from another seed costs several builds' time and mostly finds the chair again); the
+            // refinement sets its bonds and planar atoms.
+            if (variant_ > 0 && !marked_double && puckered_small_ring()) {
+                if (size == 6) return twist_boat(ring, variant_);
+                if (size == 5) return envelope(rotated(ring, variant_));
+            }
         }
         return distance_geometry();
     }

@@ -24,9 +24,11 @@ struct RingSystemEmbedding {
     // The system has no handedness of its own and is not flat, so that its mirror image is another conformation of
     // the same molecule (a cyclohexane's other chair, an envelope's flap on the other side).
     bool mirrorable = false;
-    // The system holds a ring of seven or more atoms that is not flat: other embeddings (variant > 0) give other
-    // ring shapes.
+    // The system holds a ring of seven or more atoms that is not flat, or a five- or six-membered ring of three or
+    // more sp3 atoms: other embeddings (variant > 0) give other ring shapes (other puckers of the small rings).
     bool flexible = false;
+    bool large = false;  // ... and the former: a medium or large ring, whose shapes are many
+
 };
 
 // Embeds ring system `system`. Stereocentres in `chiral` whose neighbours lie (three or more) in the system, and marked
