@@ -371,8 +371,20 @@ StructureBuilder::Built StructureBuilder::build(const std::vector<char>& other_m
     for (size_t k = 0; k < a.rings.systems.size(); ++k) {
         check_deadline("embedding ring systems");
         const bool other = k < other_mirror.size() && other_mirror[k];
-        RingSystemEmbedding e =
-            embed_ring_system(skeleton, a.domains, a.rings, static_cast<int>(k), a.centre_targets, other, variant);
+        // The shape of a system depends on the variant only when it is flexible; its mirror image is its reflection
+        // (embed_ring_system's equatorial rule takes one of the two): embedded once per builder (the ensemble asks
+        // for each system several times).
+        auto known = embedded_.find({k, 0});
+        if (variant > 0 && (known == embedded_.end() || known->second.flexible)) known = embedded_.find({k, variant});
+        if (known == embedded_.end()) {
+            RingSystemEmbedding fresh =
+                embed_ring_system(skeleton, a.domains, a.rings, static_cast<int>(k), a.centre_targets, false, variant);
+            const int key = variant > 0 && fresh.flexible ? variant : 0;
+            known = embedded_.emplace(std::make_pair(k, key), std::move(fresh)).first;
+        }
+        RingSystemEmbedding e = known->second;
+        if (other && e.mirrorable)
+            for (Vector3d& p : e.coordinates) p.x() = -p.x();
         out.mirrorable[k] = e.mirrorable;
         out.flexible[k] = static_cast<char>(e.large ? 2 : e.flexible ? 1 : 0);
         note_ring_system(a.rings.systems[k], e, warned_system[k], s.warnings);

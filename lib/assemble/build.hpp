@@ -1,6 +1,7 @@
 // Whole-molecule building: domain frames assembled into Cartesian coordinates, then refined.
 #pragma once
 
+#include <map>
 #include <memory>
 #include <optional>
 #include <vector>
@@ -10,6 +11,7 @@
 #include "domains/domains.hpp"
 #include "graph/molecule.hpp"
 #include "graph/rings.hpp"
+#include "assemble/ring_embed.hpp"
 #include "refine/refine.hpp"
 
 namespace repel {
@@ -98,6 +100,9 @@ private:
     struct Analysis;
     std::unique_ptr<Analysis> a_;
     mutable std::unique_ptr<Refiner> refiner_;  // made on the first refinement without restraints; one thread only
+    // Ring systems already embedded, by system and variant (0 for a system that is not flexible: its shape does not
+    // depend on the variant), as the equatorial rule takes them; a mirror image asked for is their reflection.
+    mutable std::map<std::pair<size_t, int>, RingSystemEmbedding> embedded_;
 };
 
 }  // namespace repel

@@ -708,7 +708,7 @@ private:
             if (ring.size() == 6)
                 for (int a : ring) six_sp3 = six_sp3 || (!planar_[at(a)] && d_.atoms[at(atom(a))].steric_number == 4);
         // Another shape asked of a system whose rings are all small: its six-membered rings are not held in chairs.
-        if (variant_ > 0 && !flexible_ring()) chairs_ = false;
+        if (variant_ > 0 && !flexible_ring() && puckered_small_ring()) chairs_ = false;
         RingSystemEmbedding first = distance_geometry_try();
         chairs_ = true;
         if (first.met || !six_sp3) return first;
