@@ -44,28 +44,35 @@ TEST(Ensemble, ButaneGivesAntiThenGauche) {
     EXPECT_GT(e[1].conformer->rmsd_to_first, 0.5);
 }
 
-// Angle (degrees) between a substituent's bond and the normal of its six-membered ring's mean plane: near 0 axial,
-// near 70-90 equatorial (common practice).
-double substituent_tilt(const std::vector<Vector3d>& x, const std::vector<int>& ring, int centre, int substituent) {
+// The normal of a ring's least-squares plane.
+Vector3d ring_normal(const std::vector<Vector3d>& x, const std::vector<int>& ring) {
     Vector3d c = Vector3d::Zero();
     for (int a : ring) c += x[static_cast<size_t>(a)];
     c /= static_cast<double>(ring.size());
     Eigen::Matrix3d cov = Eigen::Matrix3d::Zero();
     for (int a : ring) cov += (x[static_cast<size_t>(a)] - c) * (x[static_cast<size_t>(a)] - c).transpose();
-    const Eigen::SelfAdjointEigenSolver<Eigen::Matrix3d> solver(cov);
-    const Vector3d normal = solver.eigenvectors().col(0);
+    return Eigen::SelfAdjointEigenSolver<Eigen::Matrix3d>(cov).eigenvectors().col(0);
+}
+
+// Angle (degrees) between a substituent's bond and the normal of its six-membered ring's mean plane: near 0 axial,
+// near 70-90 equatorial (common practice).
+double substituent_tilt(const std::vector<Vector3d>& x, const std::vector<int>& ring, int centre, int substituent) {
     const Vector3d bond = (x[static_cast<size_t>(substituent)] - x[static_cast<size_t>(centre)]).normalized();
-    return degrees(std::acos(std::abs(bond.dot(normal))));
+    return degrees(std::acos(std::abs(bond.dot(ring_normal(x, ring)))));
+}
+
+// The first conformer has atom 0 (on ring atom 1 of the ring of atoms 1-6) equatorial, the second axial.
+void expect_equatorial_then_axial(const std::vector<Structure>& e) {
+    ASSERT_GE(e.size(), 2u);
+    const std::vector<int> ring{1, 2, 3, 4, 5, 6};
+    EXPECT_GT(substituent_tilt(e[0].positions, ring, 1, 0), 60);
+    EXPECT_LT(substituent_tilt(e[1].positions, ring, 1, 0), 30);
 }
 
 // Methylcyclohexane: both chairs, methyl equatorial first (A-value 1.7 kcal/mol, Eliel and Wilen, from memory), then
 // axial.
 TEST(Ensemble, MethylcyclohexaneGivesBothChairs) {
-    const std::vector<Structure> e = build_conformers("CC1CCCCC1", {}, count(10));
-    ASSERT_GE(e.size(), 2u);
-    const std::vector<int> ring{1, 2, 3, 4, 5, 6};
-    EXPECT_GT(substituent_tilt(e[0].positions, ring, 1, 0), 60);
-    EXPECT_LT(substituent_tilt(e[1].positions, ring, 1, 0), 30);
+    expect_equatorial_then_axial(build_conformers("CC1CCCCC1", {}, count(10)));
 }
 
 // cis-4-tert-butylcyclohexanol (written stereocentres): the two chairs, the tert-butyl equatorial in the first; both
@@ -268,33 +275,20 @@ TEST(Ensemble, RingPuckersBeyondTheChairsAreSampled) {
     EXPECT_GE(flaps.size(), 3u) << c.size() << " conformers";
 }
 
-}  // namespace
-}  // namespace repel
-
-namespace repel {
-namespace {
 
 // A ring nitrogen inverts freely: N-methylpiperidine gives its methyl equatorial, then axial (about 3 kcal/mol above
 // in the gas phase, from memory). Before, one conformer came back (the inversion was not sampled).
 TEST(Ensemble, RingNitrogenInversionIsSampled) {
     const std::vector<Structure> e = build_conformers("CN1CCCCC1", {}, count(10));
     ASSERT_EQ(e.size(), 2u);
-    const std::vector<int> ring{1, 2, 3, 4, 5, 6};
-    EXPECT_GT(substituent_tilt(e[0].positions, ring, 1, 0), 60);
-    EXPECT_LT(substituent_tilt(e[1].positions, ring, 1, 0), 30);
+    expect_equatorial_then_axial(e);
     EXPECT_GT(e[1].conformer->relative_energy, 0.5);
 }
 
 // Whether the two methyls of a 1,4-dimethylcyclohexane (atoms 0 and 5 on ring atoms 1 and 4, SMILES CC1CCC(C)CC1) lie
 // on one face of the ring (cis).
 bool cis_dimethyl(const std::vector<Vector3d>& x) {
-    const std::vector<int> ring{1, 2, 3, 4, 6, 7};
-    Vector3d c = Vector3d::Zero();
-    for (int a : ring) c += x[static_cast<size_t>(a)];
-    c /= 6;
-    Eigen::Matrix3d cov = Eigen::Matrix3d::Zero();
-    for (int a : ring) cov += (x[static_cast<size_t>(a)] - c) * (x[static_cast<size_t>(a)] - c).transpose();
-    const Vector3d n = Eigen::SelfAdjointEigenSolver<Eigen::Matrix3d>(cov).eigenvectors().col(0);
+    const Vector3d n = ring_normal(x, {1, 2, 3, 4, 6, 7});
     return ((x[0] - x[1]).dot(n) > 0) == ((x[5] - x[4]).dot(n) > 0);
 }
 
