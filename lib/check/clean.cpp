@@ -173,14 +173,17 @@ std::vector<double> equivalent_lengths(const Molecule& m, const std::vector<Eige
     using Key = std::vector<int>;
     auto key = [&](size_t e) {
         const Bond& b = m.bonds[e];
-        int a = b.a, c = b.b;
-        if (std::make_pair(classes[static_cast<size_t>(a)], trans_classes(m, pos, classes, a, c)) >
-            std::make_pair(classes[static_cast<size_t>(c)], trans_classes(m, pos, classes, c, a)))
-            std::swap(a, c);
-        Key k{classes[static_cast<size_t>(a)], classes[static_cast<size_t>(c)], b.aromatic ? 4 : b.order, -1};
-        for (int x : trans_classes(m, pos, classes, a, c)) k.push_back(x);
-        k.push_back(-1);
-        for (int x : trans_classes(m, pos, classes, c, a)) k.push_back(x);
+        auto end = [&](int x, int other) {
+            Key k{classes[static_cast<size_t>(x)]};
+            for (int t : trans_classes(m, pos, classes, x, other)) k.push_back(t);
+            k.push_back(-1);
+            return k;
+        };
+        Key first = end(b.a, b.b), second = end(b.b, b.a);
+        if (second < first) std::swap(first, second);
+        Key k{b.aromatic ? 4 : b.order};
+        k.insert(k.end(), first.begin(), first.end());
+        k.insert(k.end(), second.begin(), second.end());
         return k;
     };
     std::vector<Key> keys(nb);
@@ -206,10 +209,9 @@ std::vector<double> equivalent_lengths(const Molecule& m, const std::vector<Eige
 
 // A ring bond e found too long or short: one of its atoms was most likely moved along it (a ring atom cannot have
 // its whole side moved). Each end in turn is put back along the bond, with its hydrogens, to the target length; the
-// end whose other bonds (to atoms not themselves given a new length) come nearer their expected lengths by it is
-// kept, when they do come nearer. Returns whether an end was put back.
+// end whose other bonds to heavy atoms come nearer their expected lengths by it is kept, when they do come nearer. Returns whether an end was put back.
 bool put_back_along_bond(const Molecule& m, int e, double target, const std::vector<double>& expected,
-                         const std::vector<double>& keep, double expected_mark, std::vector<Eigen::Vector3d>& pos) {
+                         std::vector<Eigen::Vector3d>& pos) {
     const Bond& bond = m.bonds[static_cast<size_t>(e)];
     auto p = [&](int i) -> const Eigen::Vector3d& { return pos[static_cast<size_t>(i)]; };
     const double measured = (p(bond.a) - p(bond.b)).norm();
@@ -229,8 +231,6 @@ bool put_back_along_bond(const Molecule& m, int e, double target, const std::vec
             gain += std::fabs(now - want) - std::fabs(then - want);
             ++judged;
         }
-        (void)keep;
-        (void)expected_mark;
         if (judged > 0 && gain > best) {
             best = gain;
             chosen = x;
@@ -288,18 +288,21 @@ std::vector<int> flatten_puckered_rings(const Molecule& m, const MoleculeDomains
 // The target length of every bond for the refinement. Only what is wrong is changed, so that cleaning does not move
 // sound bonds to the expected lengths (their own errors, up to 0.12 A on sound structures and more for hypervalent
 // centres, would become the structure's): a bond keeps its measured length unless
-// - it is named in a length finding: it takes the expected length (the analysis' corrected by kind of bond, what the
-//   audit judged against);
+// - it is named in a length finding: it takes the length of its sound equivalents in the structure where it has any
+//   (equivalent_lengths), else the expected length (the analysis' corrected by kind of bond, what the audit judged
+//   against);
 // - it lies in a ring with a bond named so, at a shared atom: an atom pulled along one ring bond moved along the
-//   other ring bond too (0.15 A along one aromatic C-C shortens the next by about 0.07 A), so it takes the expected
-//   length; any other bond of the two atoms keeps its length when within the length threshold of the expected one;
+//   other ring bond too (0.15 A along one aromatic C-C shortens the next by about 0.07 A), so the atom is put back
+//   along the named bond first (put_back_along_bond) and the other bonds then keep their lengths like those of a
+//   bond in no ring; where neither end can be put back they take the expected lengths; any other bond of the two
+//   atoms keeps its length when within the length threshold of the expected one;
 // - it is a bond of a centre named in a shape finding: a centre drawn flat was moved into the plane of its
 //   neighbours, which shortened its bonds, so they take the expected lengths; a centre whose angles are wrong but
 //   which is not flat had a group turned about it, which keeps the bonds, so they keep their measured lengths when
 //   within the length threshold.
-// A bond that must take a new length takes, before the expected one, the measured length of its sound equivalents
-// in the same structure (equivalent_lengths). Measured by tests/external/check_audit_damage.py (README, `repel
-// check`).
+// A ring of trigonal centres found puckered is put back on its plane first (flatten_puckered_rings); its bonds then
+// keep the lengths that gives them when those are sound. Measured by tests/external/check_audit_damage.py (README,
+// `repel check`).
 void set_length_targets(const Audit& audit, const Molecule& m, const MoleculeDomains& d,
                         std::vector<Eigen::Vector3d>& pos, std::vector<double>& lengths) {
     lengths = corrected_lengths(m, lengths);
@@ -342,7 +345,7 @@ void set_length_targets(const Audit& audit, const Molecule& m, const MoleculeDom
         if (f.kind != "bond length" || f.atoms.size() != 2) continue;
         const int e = m.bond_between(f.atoms[0] - 1, f.atoms[1] - 1);
         if (e >= 0 && rings.ring_bond[static_cast<size_t>(e)] && !undone.count(e) &&
-            put_back_along_bond(m, e, target(static_cast<size_t>(e)), lengths, keep, kExpected, pos))
+            put_back_along_bond(m, e, target(static_cast<size_t>(e)), lengths, pos))
             undone.insert(e);
     }
     if (!undone.empty()) keep = keeps(undone);
