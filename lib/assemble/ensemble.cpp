@@ -467,16 +467,16 @@ void swap(std::vector<Vector3d>& x, const SwapCentre& c) {
 }
 
 // The handedness of the first build's tetrahedral centres, written or not (sp3 atoms with four neighbours, at most
-// one of them hydrogen; three-neighbour centres with a lone pair that do not invert freely: S, P, As ...), so that
+// one of them hydrogen; three-neighbour centres with a lone pair that do not invert: S, P, As ...), so that
 // every conformer is of the stereoisomer the first build is: a candidate is the same when one automorphism of the
-// graph (the comparer's, over the heavy atoms) maps every centre to one of the same handedness. An unwritten
+// graph (over the heavy atoms, as the comparer's) maps every centre to one of the same handedness. An unwritten
 // stereocentre otherwise comes out either way from other ring shapes and swapped substituents, and so do cis and
 // trans rings (1,4-dimethylcyclohexane's two ring carbons, not stereocentres by their neighbours alone). Past the
 // comparer's cap on automorphisms every candidate is taken as the same.
 class Configuration {
 public:
     Configuration(const Molecule& m, const MoleculeDomains& d, const std::vector<Vector3d>& reference)
-        : reference_(reference), image_(reference.size(), -1) {
+        : reference_(reference) {
         const std::vector<int> atoms = compared_atoms(m);
         std::vector<char> compared(reference.size(), 0);
         for (int a : atoms) compared[at(a)] = 1;
@@ -485,7 +485,10 @@ public:
             const CentreDomains& c = d.atoms[at(i)];
             const auto& nb = m.neighbors(i);
             if (c.steric_number != 4 || is_metal_atom(a.z) || !compared[at(i)]) continue;
-            if (nb.size() == 3 && (c.lone_pairs != 1 || a.z == 7)) continue;  // amines invert
+            // Three neighbours and a lone pair: P, As, Sb, S, Se, Te hold their pyramid (barriers of 30 kcal/mol and
+            // more, from memory); N, O+ and carbanions invert.
+            const bool slow = a.z == 15 || a.z == 33 || a.z == 51 || a.z == 16 || a.z == 34 || a.z == 52;
+            if (nb.size() == 3 && (c.lone_pairs != 1 || !slow)) continue;
             if (nb.size() != 3 && nb.size() != 4) continue;
             std::vector<int> heavy;
             for (const Neighbor& x : nb)
@@ -538,7 +541,6 @@ private:
     static constexpr double kFlat = 0.1;  // A^3: flatter centres have no handedness to keep
 
     std::vector<Vector3d> reference_;
-    std::vector<int> image_;
     std::vector<Centre> centres_;
     std::vector<int> atoms_;
     std::vector<std::vector<int>> mappings_;
