@@ -9,12 +9,15 @@ optimised by `xtb --opt normal`. Checks (each could fail):
   - connectivity kept through every optimisation (bonds perceived as common.py does);
   - the two conformers named stay distinct: the heavy-atom RMSD between their optima (superposed, the molecule's
     symmetric atoms allowed to trade places; mirror images allowed, none of these molecules has a stereocentre
-    except the tert-butylcyclohexanol, whose marks both conformers keep) at least 0.3 A: neither start sat on the
+    except the tert-butylcyclohexanol, whose marks both conformers keep, and none is chiral) at least 0.3 A: neither start sat on the
     other's slope;
   - repel's lower-ranked conformer is the lower one in GFN2-xTB too: n-butane anti below gauche (experiment 0.6-0.9
     kcal/mol, from memory), methylcyclohexane's equatorial methyl below axial (A-value 1.74, from memory),
     cis-4-tert-butylcyclohexanol with its tert-butyl equatorial below the other chair (tert-butyl A-value about 4.9,
-    hydroxyl about 0.9, from memory).
+    hydroxyl about 0.9, from memory), N-methylpiperidine's equatorial methyl below the axial one its nitrogen's
+    inversion gives (about 3 kcal/mol in the gas phase, from memory), 1,4-dimethylcyclohexane written without marks:
+    both conformers of the first one's stereoisomer (trans: diequatorial below diaxial, twice the A-value; cis has
+    one chair shape) -- checked by the methyls' faces of the ring in repel's conformers.
 Closes with `N passed, M failed`; exits 1 on any failure.
 """
 
@@ -39,6 +42,8 @@ MOLECULES = [
     ('n-butane', 'CCCC', 2),
     ('methylcyclohexane', 'CC1CCCCC1', 2),
     ('cis-4-tert-butylcyclohexanol', 'CC(C)(C)[C@H]1CC[C@@H](O)CC1', 2),
+    ('N-methylpiperidine', 'CN1CCCCC1', 2),
+    ('1,4-dimethylcyclohexane', 'CC1CCC(C)CC1', 2),
 ]
 
 
@@ -71,6 +76,15 @@ def least_rmsd(a_xyz, b_xyz):
     return best
 
 
+def cis_methyls(xyz):
+    """Whether the methyls of 1,4-dimethylcyclohexane as repel writes CC1CCC(C)CC1 (methyl C0 on ring C1, methyl C5 on
+    ring C4; ring C1 C2 C3 C4 C6 C7) lie on one face of the ring's least-squares plane."""
+    _, x, _, _ = parse_xyz(xyz)
+    ring = x[[1, 2, 3, 4, 6, 7]]
+    normal = np.linalg.svd(ring - ring.mean(axis=0))[2][2]
+    return bool(np.sign(np.dot(x[0] - x[1], normal)) == np.sign(np.dot(x[5] - x[4], normal)))
+
+
 def same_bonds(x1, x2):
     s1, c1, _, _ = parse_xyz(x1)
     s2, c2, _, _ = parse_xyz(x2)
@@ -87,6 +101,9 @@ def main():
             continue
         starts[name] = xyz_frames(r.stdout)
         t.check(len(starts[name]) >= least, f'{name}: {len(starts[name])} conformers, expected at least {least}')
+        if name == '1,4-dimethylcyclohexane':
+            faces = [cis_methyls(x) for x in starts[name]]
+            t.check(len(set(faces)) == 1, f'{name}: cis and trans conformers mixed: {faces}')
     jobs_list = [(name, k, xyz) for name, fr in starts.items() for k, xyz in enumerate(fr[:2])]
     with concurrent.futures.ThreadPoolExecutor(max_workers=jobs) as pool:
         results = list(pool.map(lambda j: optimise(tmp, f'{j[0].replace(" ", "_")}-{j[1]}', j[2]), jobs_list))
