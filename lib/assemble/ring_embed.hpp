@@ -27,7 +27,7 @@ struct RingSystemEmbedding {
     // The system holds a ring of seven or more atoms that is not flat, or a five- or six-membered ring of three or
     // more sp3 atoms: other embeddings (variant > 0) give other ring shapes (other puckers of the small rings).
     bool flexible = false;
-    bool large = false;  // ... and the former: a medium or large ring, whose shapes are many
+    bool large = false;  // flexible by a ring of seven or more atoms (medium, macro), whose shapes are many
 
 };
 
