@@ -37,6 +37,7 @@ double torsion(const std::vector<Eigen::Vector3d>& p, int a, int b, int c, int d
 // A signed volume below this (A^3) is too flat to say which hand the centre has; it is not kept.
 constexpr double kMinVolume = 0.1;
 
+
 // CShM of a metal centre's ligand directions (a hapto ligand at its centroid) against the model's directions.
 double model_shape(const MetalCentre& c, const std::vector<Eigen::Vector3d>& pos) {
     const int cn = c.coordination_number;
@@ -374,6 +375,34 @@ void set_length_targets(const Audit& audit, const Molecule& m, const MoleculeDom
     }
 }
 
+// The centres whose angles the refinement keeps as they are (RefineOptions::held_centres): every centre not touched
+// (named in a finding, moved before the refinement, or an end of a bond given a new length); a centre the damage
+// changed is one of these (an atom moved along a ring bond is named or put back, the neighbours of a centre drawn flat
+// end bonds given new lengths). The touched centres take the model's angles. Without this the refinement pulls every
+// centre toward the model's angles, and where those are off (strained and spiro rings, an Si-O-Si) the sound part of
+// the structure moves with the part that was wrong: G2 spiropentane's ring bonds stretched by 0.07 A when one of its
+// hydrogens was bent. All of a centre's angles or none: a centre held in part leaned (cyclopropane's CH2 next to a
+// stretched C-H, found by tests/external/check_audit_g2.py). Measured by tests/external/check_audit_damage.py.
+std::vector<char> held_centres(const Audit& audit, const Molecule& m, const std::vector<double>& lengths,
+                               const std::vector<Eigen::Vector3d>& before, const std::vector<Eigen::Vector3d>& pos) {
+    const size_t n = pos.size();
+    std::vector<char> touched(n, 0);
+    for (const Finding& f : audit.findings)
+        for (int a : f.atoms)
+            if (a >= 1 && static_cast<size_t>(a) <= n) touched[static_cast<size_t>(a - 1)] = 1;
+    for (size_t i = 0; i < n; ++i)
+        if ((pos[i] - before[i]).norm() > 1e-6) touched[i] = 1;
+    for (size_t e = 0; e < m.bonds.size() && e < lengths.size(); ++e) {
+        const Bond& b = m.bonds[e];
+        const double measured = (pos[static_cast<size_t>(b.a)] - pos[static_cast<size_t>(b.b)]).norm();
+        if (std::fabs(measured - lengths[e]) > 1e-6)
+            touched[static_cast<size_t>(b.a)] = touched[static_cast<size_t>(b.b)] = 1;
+    }
+    std::vector<char> held(n, 0);
+    for (size_t i = 0; i < n; ++i) held[i] = touched[i] ? 0 : 1;
+    return held;
+}
+
 }  // namespace
 
 CleanResult clean_structure(const Audit& audit) {
@@ -416,7 +445,10 @@ CleanResult clean_structure(const Audit& audit) {
         stereo_as_found(m, d, pos, chiral, doubles);
         const std::vector<Eigen::Vector3d> before = pos;
         if (d.bond_lengths.size() == m.bonds.size()) set_length_targets(audit, m, d, pos, d.bond_lengths);
-        RefineResult r = refine_structure(m, d, chiral, doubles, pos);
+        RefineOptions options;
+        options.held_centres = held_centres(audit, m, d.bond_lengths, before, pos);
+        options.held_positions = pos;
+        RefineResult r = refine_structure(m, d, chiral, doubles, pos, options);
         // The refinement must keep each metal's polyhedron: a centre that ends further from the model's polyhedron
         // than the audit's threshold, and further than it started, is left as it was (a refusal, said).
         for (const MetalCentre& c : metals.centres) {

@@ -1,6 +1,7 @@
 // Bonds from coordinates, then bond orders and formal charges that give every atom a normal valence.
 #include "check/perceive.hpp"
 
+#include <Eigen/Geometry>
 #include <algorithm>
 #include <array>
 #include <cmath>
@@ -245,6 +246,67 @@ private:
     long nodes_ = 0;
 };
 
+// A long pair that would close a three- or four-membered ring across a trigonal centre is not a bond: an atom of a
+// flat ring pulled 0.3 A along one ring bond comes within the perception distance of the atom across (adenine's C6
+// and C8 at 1.89 A), and read as bonded it made a four-membered ring, took the ring's aromaticity and hid the bond
+// that was moved. Dropped when the pair lies beyond the radii sum by more than kFalseClosure, both atoms are among
+// B..F, Si..Cl (no metal, where long bonds in small chelate rings are real), and at one end the other neighbours lie
+// in one plane (angle sum 350 degrees or more) that the pair lies in too (within 30 degrees): no such atom has a
+// fourth bond in its own plane. The long bonds of real small rings (bicyclobutane's 1.50 A, [1.1.1]propellane's
+// 1.60 A; from memory) lie far inside the margin, and a stretched ring bond between tetrahedral centres is kept.
+void drop_false_ring_closures(const Molecule& m, const std::vector<Eigen::Vector3d>& pos,
+                              std::vector<std::pair<int, int>>& pairs, const std::vector<char>& excluded) {
+    constexpr double kFalseClosure = 0.25;  // Angstrom beyond the radii sum (a choice: C-C 1.77 A)
+    auto light = [&](int i) {
+        const int z = m.atoms[static_cast<size_t>(i)].z;
+        return (z >= 5 && z <= 9) || (z >= 14 && z <= 17);
+    };
+    auto at = [&](int i) -> const Eigen::Vector3d& { return pos[static_cast<size_t>(i)]; };
+    std::vector<std::vector<int>> adj(static_cast<size_t>(m.atom_count()));
+    for (auto [i, j] : pairs) {
+        if (excluded[static_cast<size_t>(i)] || excluded[static_cast<size_t>(j)]) continue;
+        adj[static_cast<size_t>(i)].push_back(j);
+        adj[static_cast<size_t>(j)].push_back(i);
+    }
+    // At c, the neighbours other than x lie in one plane with c, and x lies near that plane.
+    auto in_own_plane = [&](int c, int x) {
+        std::vector<Eigen::Vector3d> u;
+        for (int o : adj[static_cast<size_t>(c)])
+            if (o != x) u.push_back((at(o) - at(c)).normalized());
+        if (u.size() != 3) return false;
+        double sum = 0;
+        for (size_t p = 0; p < 3; ++p)
+            for (size_t q = p + 1; q < 3; ++q) sum += std::acos(std::clamp(u[p].dot(u[q]), -1.0, 1.0));
+        if (sum * 180.0 / M_PI < 350.0) return false;
+        const Eigen::Vector3d normal = (u[1] - u[0]).cross(u[2] - u[0]);
+        if (normal.norm() < 1e-6) return false;
+        const double s = std::fabs(normal.normalized().dot((at(x) - at(c)).normalized()));
+        return s < std::sin(30.0 * M_PI / 180.0);
+    };
+    auto small_ring = [&](int i, int j) {
+        for (int a : adj[static_cast<size_t>(i)]) {
+            if (a == j) continue;
+            for (int b : adj[static_cast<size_t>(a)]) {
+                if (b == i) continue;
+                if (b == j) return true;  // i-a-j
+                for (int c : adj[static_cast<size_t>(b)])
+                    if (c == j && b != j && a != j) return true;  // i-a-b-j
+            }
+        }
+        return false;
+    };
+    std::vector<std::pair<int, int>> kept;
+    for (auto pr : pairs) {
+        const auto [i, j] = pr;
+        const double r = element(m.atoms[static_cast<size_t>(i)].z).r_perception +
+                         element(m.atoms[static_cast<size_t>(j)].z).r_perception;
+        const bool drop = light(i) && light(j) && (at(i) - at(j)).norm() > r + kFalseClosure && small_ring(i, j) &&
+                          (in_own_plane(i, j) || in_own_plane(j, i));
+        if (!drop) kept.push_back(pr);
+    }
+    pairs.swap(kept);
+}
+
 }  // namespace
 
 std::vector<Overlap> perceive_bonds(Molecule& m, const std::vector<Eigen::Vector3d>& pos,
@@ -330,6 +392,7 @@ std::vector<Overlap> perceive_bonds(Molecule& m, const std::vector<Eigen::Vector
             if (!std::binary_search(dropped.begin(), dropped.end(), pr)) kept.push_back(pr);
         pairs.swap(kept);
     }
+    drop_false_ring_closures(m, pos, pairs, excluded);
     for (auto [i, j] : pairs) {
         if (excluded[static_cast<size_t>(i)] || excluded[static_cast<size_t>(j)]) continue;
         if (m.bond_between(i, j) < 0) m.add_bond(i, j, 1);

@@ -118,7 +118,7 @@ struct Refiner::State {
     int atoms = 0;
     State(const Molecule& molecule, const MoleculeDomains& domains, const std::vector<ChiralTarget>& c,
           const std::vector<DoubleBondTarget>& d, const RefineOptions& options)
-        : terms(refine::build_terms(molecule, domains, c, d, options.ring_graph, &options.restraints)),
+        : terms(refine::build_terms(molecule, domains, c, d, options.ring_graph, &options.restraints, &options)),
           contacts(molecule), chiral(c), double_bonds(d), atoms(molecule.atom_count()) {}
 };
 

@@ -36,6 +36,11 @@ struct RefineOptions {
     // hapto ligands are bonded to the metal through every atom, and those bonds make no ring angles.
     const Molecule* ring_graph = nullptr;
     std::vector<DistanceRestraint> restraints;
+    // Centres held as they are: every angle at a held centre takes its angle in `held_positions` as its target
+    // instead of the analysis' (or a ring's), all or none, so that a centre's targets stay consistent;
+    // `repel check --fix` keeps what it found sound as it was. Per atom, nonzero for held; empty: none.
+    std::vector<char> held_centres;
+    std::vector<Eigen::Vector3d> held_positions;
 };
 
 // A bond a-b (c = -1) or an angle a-b-c (centre b) of the refined structure far from its target.

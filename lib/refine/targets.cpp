@@ -82,6 +82,18 @@ public:
         for (int i = 0; i < n; ++i) fit_angles_to_rings(i, rings);
     }
 
+    // The angle targets of the held centres become their angles in `pos` (RefineOptions::held_centres).
+    void hold_angles(const std::vector<char>& held, const std::vector<Eigen::Vector3d>& pos) {
+        for (size_t i = 0; i < held.size(); ++i) {
+            if (held[i] == 0) continue;
+            for (PredictedAngle& p : angles_[i]) {
+                const Eigen::Vector3d u = pos[static_cast<size_t>(p.a)] - pos[i], v = pos[static_cast<size_t>(p.b)] - pos[i];
+                if (u.norm() < 1e-6 || v.norm() < 1e-6) continue;
+                p.degrees = std::acos(std::clamp(u.normalized().dot(v.normalized()), -1.0, 1.0)) / kDegree;
+            }
+        }
+    }
+
     EnergyTerms build(const std::vector<ChiralTarget>& chiral, const std::vector<DoubleBondTarget>& double_bonds) {
         EnergyTerms t;
         for (size_t b = 0; b < m_.bonds.size(); ++b)
@@ -139,11 +151,17 @@ private:
         return false;
     }
 
-    // The angle a ring forces at a consecutive triple (degrees), or 0 when it forces none: three- and four-membered
-    // rings always, flat rings up to kLargestPolygonRing atoms as the regular polygon.
-    double polygon_angle(const std::vector<int>& ring) const {
+    // The angle a ring forces at a consecutive triple a-centre-b (degrees), or 0 when it forces none: three- and
+    // four-membered rings always, flat rings up to kLargestPolygonRing atoms as the regular polygon. A three-membered
+    // ring's angles follow from its three target lengths (the law of cosines: cyclopropene's C=C 1.30 A against
+    // C-C 1.51 A gives 51 degrees at the CH2, not 60), so that the angle terms do not pull its bonds off their lengths.
+    double polygon_angle(const std::vector<int>& ring, int a, int centre, int b) const {
         const int size = static_cast<int>(ring.size());
-        if (size == 3) return 60;
+        if (size == 3) {
+            const double x = length(centre, a), y = length(centre, b), z = length(a, b);
+            if (std::fabs(x - y) < 1e-9 && std::fabs(x - z) < 1e-9) return 60;
+            return std::acos(std::clamp((x * x + y * y - z * z) / (2 * x * y), -1.0, 1.0)) / kDegree;
+        }
         if (size == 4) return 90;
         if (size == 0 || size > kLargestPolygonRing) return 0;
         for (int atom : ring)
@@ -167,7 +185,7 @@ private:
         for (size_t q = 0; q < angles.size(); ++q) {
             PredictedAngle& p = angles[q];
             const std::vector<int> ring = rings.ring_through(p.a, i, p.b, kLargestPolygonRing);
-            const double polygon = polygon_angle(ring);
+            const double polygon = polygon_angle(ring, p.a, i, p.b);
             if (polygon > 0) {
                 p.degrees = polygon;
                 fixed_sum += polygon;
@@ -180,6 +198,7 @@ private:
         }
         if (!planar) {
             if (fixed == 3 && angles.size() == 6) point_away_from_ring_bonds(angles, forced);
+            if (fixed == 2 && angles.size() == 6) open_spiro_centre(angles, forced);
             return;
         }
         if (fixed == 3) {
@@ -212,6 +231,24 @@ private:
             for (const PredictedAngle& a : angles) sum += a.degrees;
             for (PredictedAngle& a : angles) a.degrees *= 360.0 / sum;
         }
+    }
+
+    // A spiro centre of two small rings (two forced angles with no neighbour in common): the analysis' angles between
+    // the rings (about 109.5 degrees) cannot be met beside 60- or 90-degree ring angles, and the strain would go into
+    // the ring bonds. With the two rings in perpendicular planes and their bisectors opposite, a bond of one ring
+    // makes acos(-cos(a/2) cos(b/2)) with a bond of the other (a, b the two ring angles): 137 degrees in
+    // spiropentane (G2's MP2 geometry, Debian's python3-ase: 137.2), 120 in spiro[3.3]heptane.
+    static void open_spiro_centre(std::vector<PredictedAngle>& angles, const std::vector<char>& forced) {
+        std::vector<size_t> ring;
+        for (size_t q = 0; q < angles.size(); ++q)
+            if (forced[q]) ring.push_back(q);
+        if (ring.size() != 2) return;
+        const PredictedAngle &x = angles[ring[0]], &y = angles[ring[1]];
+        if (x.a == y.a || x.a == y.b || x.b == y.a || x.b == y.b) return;
+        const double cross =
+            std::acos(-std::cos(x.degrees * kDegree / 2) * std::cos(y.degrees * kDegree / 2)) / kDegree;
+        for (size_t q = 0; q < angles.size(); ++q)
+            if (!forced[q]) angles[q].degrees = cross;
     }
 
     // A centre with four neighbours whose three ring angles are all forced (the bridgeheads of bicyclobutane, the
@@ -364,8 +401,16 @@ private:
 
 EnergyTerms build_terms(const Molecule& molecule, const MoleculeDomains& domains,
                         const std::vector<ChiralTarget>& chiral, const std::vector<DoubleBondTarget>& double_bonds,
-                        const Molecule* ring_graph, const std::vector<DistanceRestraint>* restraints) {
-    EnergyTerms terms = TermBuilder(molecule, domains, ring_graph).build(chiral, double_bonds);
+                        const Molecule* ring_graph, const std::vector<DistanceRestraint>* restraints,
+                        const RefineOptions* held) {
+    TermBuilder builder(molecule, domains, ring_graph);
+    if (held != nullptr && !held->held_centres.empty()) {
+        require(held->held_centres.size() == static_cast<size_t>(molecule.atom_count()) &&
+                    held->held_positions.size() == held->held_centres.size(),
+                "held centres and their positions do not match the molecule");
+        builder.hold_angles(held->held_centres, held->held_positions);
+    }
+    EnergyTerms terms = builder.build(chiral, double_bonds);
     if (restraints != nullptr)
         for (const DistanceRestraint& r : *restraints) {
             require(r.a >= 0 && r.b >= 0 && r.a < molecule.atom_count() && r.b < molecule.atom_count() && r.a != r.b,

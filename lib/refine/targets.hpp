@@ -15,10 +15,12 @@ namespace repel::refine {
 // Throws std::invalid_argument when the domain analysis does not belong to the molecule (a count that differs, an
 // angle between atoms that are not bonded to the centre) or a stereo target names atoms that do not exist.
 // `ring_graph`, when given, is the graph searched for small and flat rings (the molecule without the bonds of hapto
-// ligands); the molecule itself otherwise.
+// ligands); the molecule itself otherwise. `held`, when given, holds the angles of the centres it names
+// (RefineOptions::held_centres).
 EnergyTerms build_terms(const Molecule& molecule, const MoleculeDomains& domains,
                         const std::vector<ChiralTarget>& chiral, const std::vector<DoubleBondTarget>& double_bonds,
                         const Molecule* ring_graph = nullptr,
-                        const std::vector<DistanceRestraint>* restraints = nullptr);
+                        const std::vector<DistanceRestraint>* restraints = nullptr,
+                        const RefineOptions* held = nullptr);
 
 }  // namespace repel::refine
