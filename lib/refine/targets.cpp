@@ -198,7 +198,9 @@ private:
         }
         if (!planar) {
             if (fixed == 3 && angles.size() == 6) point_away_from_ring_bonds(angles, forced);
-            if (fixed == 2 && angles.size() == 6) open_spiro_centre(angles, forced);
+            // Tetrahedral centres only: a square-planar metal with two four-membered chelate rings is no spiro centre.
+            if (fixed == 2 && angles.size() == 6 && steric(i) == 4 && !is_transition_metal(atom_z(i)))
+                open_spiro_centre(angles, forced);
             return;
         }
         if (fixed == 3) {
