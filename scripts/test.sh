@@ -8,7 +8,8 @@
 #                             each libFuzzer target briefly (scripts/fuzz.sh, build-fuzz/).
 # Further arguments go to the ctest runs (for example -R hostile, or -L unit: see the labels in tests/CMakeLists.txt).
 # Environment: REPEL_SANITIZE_SUITE=0 skips the sanitizer suite, REPEL_FUZZ_SECONDS (default 30; 0 skips) sets the
-# time per fuzz target.
+# time per fuzz target, REPEL_BATCH_RECORDS (default 2500 in the sanitizer suite, 10,000 in the normal one) the
+# size of the thread/shard/MPI identity batch.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 quick=0
@@ -34,6 +35,7 @@ if [ "${REPEL_SANITIZE_SUITE:-1}" != 0 ]; then
     # Every finding is fatal (halt_on_error); leaks are findings too.
     ASAN_OPTIONS=${ASAN_OPTIONS:-detect_leaks=1:halt_on_error=1:abort_on_error=1} \
     UBSAN_OPTIONS=${UBSAN_OPTIONS:-halt_on_error=1:print_stacktrace=1} \
+    REPEL_BATCH_RECORDS=${REPEL_BATCH_RECORDS:-2500} \
         ctest --test-dir build-asan --output-on-failure -j "$jobs" "$@"
     echo "test: sanitizer suite passed (${SECONDS}s so far)"
 fi
