@@ -7,6 +7,7 @@
 #include <map>
 #include <numbers>
 #include <numeric>
+#include <set>
 
 #include "core/element.hpp"
 #include "core/error.hpp"
@@ -223,7 +224,10 @@ bool automorphisms(const Molecule& m, const std::vector<int>& atoms, const std::
 }  // namespace
 
 ConformerComparer::ConformerComparer(const Molecule& m, bool mirror_images_equal)
-    : atoms_(compared_atoms(m)), classes_(symmetry_classes(m)), mirror_(mirror_images_equal) {
+    : ConformerComparer(m, mirror_images_equal, symmetry_classes(m)) {}
+
+ConformerComparer::ConformerComparer(const Molecule& m, bool mirror_images_equal, const std::vector<int>& classes)
+    : atoms_(compared_atoms(m)), classes_(classes), mirror_(mirror_images_equal) {
     capped_ = !automorphisms(m, atoms_, classes_, kMaxSymmetries, mappings_);
     if (mappings_.empty()) mappings_.push_back(atoms_);
 }
@@ -364,6 +368,10 @@ constexpr int kRingShapes = 4;
 // find, and most drug molecules have such a ring (measured on the drug set: four cost 1.2 times the ensemble's time).
 constexpr int kSmallRingShapes = 2;
 
+// Draws of turns and swaps per try at most: a draw made before is drawn again (it would only be refined to the same
+// shape), up to this many times the tries.
+constexpr int kDrawsPerTry = 8;
+
 // The energy conformers are ranked by (refine/conformer_energy.hpp: torsions, van der Waals, electrostatics).
 double ranking_energy(const ConformerEnergy& model, const StructureBuilder::Built& built) {
     return model.energy(built.structure.positions).total;
@@ -475,7 +483,8 @@ void swap(std::vector<Vector3d>& x, const SwapCentre& c) {
 // comparer's cap on automorphisms every candidate is taken as the same.
 class Configuration {
 public:
-    Configuration(const Molecule& m, const MoleculeDomains& d, const std::vector<Vector3d>& reference)
+    Configuration(const Molecule& m, const MoleculeDomains& d, const std::vector<int>& classes,
+                  const std::vector<Vector3d>& reference)
         : reference_(reference) {
         const std::vector<int> atoms = compared_atoms(m);
         std::vector<char> compared(reference.size(), 0);
@@ -500,7 +509,7 @@ public:
             centres_.push_back(centre);
         }
         if (centres_.empty()) return;
-        capped_ = !automorphisms(m, atoms, symmetry_classes(m), ConformerComparer::kMaxSymmetries, mappings_);
+        capped_ = !automorphisms(m, atoms, classes, ConformerComparer::kMaxSymmetries, mappings_);
         if (mappings_.empty()) mappings_.push_back(atoms);
         atoms_ = atoms;
     }
@@ -566,29 +575,39 @@ bool match_configuration(const StructureBuilder& builder, const Configuration& c
 }
 
 // One candidate from a base build: the turns and swaps chosen for it applied and refined loosely; false when it fails.
-bool sample(const StructureBuilder& builder, const StructureBuilder::Built& base,
-            const std::vector<RotatableBond>& bonds, const std::vector<std::vector<int>>& sides,
-            const std::vector<SwapCentre>& swaps, const ConformerEnergy& model, Stream& stream, Candidate& out) {
+enum class Sampled { made, failed, repeated };
+Sampled sample(const StructureBuilder& builder, const StructureBuilder::Built& base, std::uint32_t base_index,
+               const std::vector<RotatableBond>& bonds, const std::vector<std::vector<int>>& sides,
+               const std::vector<SwapCentre>& swaps, const ConformerEnergy& model, Stream& stream,
+               std::set<std::vector<std::uint32_t>>& drawn, Candidate& out) {
+    // The choices first: a draw made before (or one that changes nothing) is not refined again.
+    std::vector<std::uint32_t> choices{base_index};
+    bool turned = false;
+    for (size_t k = 0; k < swaps.size(); ++k)
+        if (stream.below(4) == 0) {  // one centre in four: most substituents stay where the build put them
+            choices.push_back(static_cast<std::uint32_t>(k));
+            turned = true;
+        }
+    choices.push_back(~std::uint32_t{0});
+    for (const RotatableBond& r : bonds) {
+        const size_t choice = stream.below(r.turns.size() + 1);  // 0: as built
+        choices.push_back(static_cast<std::uint32_t>(choice));
+        turned = turned || choice != 0;
+    }
+    if (!turned || !drawn.insert(choices).second) return Sampled::repeated;
     out.built = base;
     StructureBuilder::Built& built = out.built;
     built.structure.warnings = base.assembly_warnings;
-    bool turned = false;
-    for (const SwapCentre& c : swaps)
-        if (stream.below(4) == 0) {  // one centre in four: most substituents stay where the build put them
-            swap(built.structure.positions, c);
-            turned = true;
-        }
+    size_t next = 1;
+    for (; choices[next] != ~std::uint32_t{0}; ++next) swap(built.structure.positions, swaps[choices[next]]);
     for (size_t k = 0; k < bonds.size(); ++k) {
-        const size_t choice = stream.below(bonds[k].turns.size() + 1);  // 0: as built
-        if (choice == 0) continue;
-        turn(built.structure.positions, sides[k], bonds[k].a, bonds[k].b, bonds[k].turns[choice - 1]);
-        turned = true;
+        const std::uint32_t choice = choices[next + 1 + k];
+        if (choice != 0) turn(built.structure.positions, sides[k], bonds[k].a, bonds[k].b, bonds[k].turns[choice - 1]);
     }
-    if (!turned) return false;
     builder.refine(built, kCandidateTolerance);
-    if (!builder.stereo_kept(built.structure.positions)) return false;
+    if (!builder.stereo_kept(built.structure.positions)) return Sampled::failed;
     out.energy = ranking_energy(model, built);
-    return true;
+    return Sampled::made;
 }
 
 // Refined to the build's tolerance and given the build's final checks; false when it fails them (overlapping atoms,
@@ -612,7 +631,7 @@ bool polish(const StructureBuilder& builder, const ConformerEnergy& model, Candi
 // The candidates: the first build, the ring systems' other mirror images, then turned and swapped copies.
 std::vector<Candidate> make_candidates(const StructureBuilder& builder, const StructureBuilder::Built& first,
                                        const ConformerEnergy& model, const Configuration& configuration,
-                                       const EnsembleOptions& options) {
+                                       const std::vector<int>& classes, const EnsembleOptions& options) {
     std::vector<Candidate> candidates;
     candidates.push_back({first, ranking_energy(model, first), 0, false});
     const Molecule& m = builder.molecule();
@@ -626,7 +645,6 @@ std::vector<Candidate> make_candidates(const StructureBuilder& builder, const St
         if (first.mirrorable[k] && !metal) mirrorable.push_back(static_cast<int>(k));
     }
     const std::vector<RotatableBond> bonds = rotatable_bonds(m, builder.domains(), builder.rings());
-    const std::vector<int> classes = symmetry_classes(m);
     const std::vector<SwapCentre> swaps = swap_centres(m, builder.domains(), builder.rings(), classes);
     const std::vector<SwapCentre> all_swaps = swap_centres(m, builder.domains(), builder.rings(), classes, true);
     std::vector<std::vector<int>> sides;
@@ -694,12 +712,18 @@ std::vector<Candidate> make_candidates(const StructureBuilder& builder, const St
     std::vector<StructureBuilder::Built> base_copies;  // candidates grows: the bases are copied first
     for (const StructureBuilder::Built* b : bases) base_copies.push_back(*b);
     Stream stream(options.seed);
-    for (int t = static_cast<int>(candidates.size()); t < tries; ++t) {
+    // A repeated draw costs no try; the draws are bounded (a molecule with few choices has few new ones).
+    std::set<std::vector<std::uint32_t>> drawn;
+    for (int t = static_cast<int>(candidates.size()), draws = 0; t < tries && draws < kDrawsPerTry * tries; ++draws) {
         check_deadline("sampling conformers");
         Candidate c;
         c.index = static_cast<int>(candidates.size());
-        if (sample(builder, base_copies[at(t) % base_copies.size()], bonds, sides, swaps, model, stream, c))
-            candidates.push_back(std::move(c));
+        const size_t b = at(t) % base_copies.size();
+        const Sampled result = sample(builder, base_copies[b], static_cast<std::uint32_t>(b), bonds, sides, swaps,
+                                      model, stream, drawn, c);
+        if (result == Sampled::repeated) continue;
+        ++t;
+        if (result == Sampled::made) candidates.push_back(std::move(c));
     }
     return candidates;
 }
@@ -716,10 +740,11 @@ std::vector<Structure> build_ensemble(const Molecule& molecule, const BuildOptio
     const StructureBuilder::Built first = builder.build();
     const Molecule& m = builder.molecule();
     const ConformerEnergy model(m, builder.domains());
-    const Configuration configuration(m, builder.domains(), first.structure.positions);
+    const std::vector<int> classes = symmetry_classes(m);
+    const Configuration configuration(m, builder.domains(), classes, first.structure.positions);
     std::vector<Candidate> candidates;
     if (options.count > 1 && build_options.refine && m.atom_count() > 3)
-        candidates = make_candidates(builder, first, model, configuration, options);
+        candidates = make_candidates(builder, first, model, configuration, classes, options);
     else
         candidates.push_back({first, ranking_energy(model, first), 0, true});
 
@@ -727,7 +752,7 @@ std::vector<Structure> build_ensemble(const Molecule& molecule, const BuildOptio
         return p.energy < q.energy || (p.energy == q.energy && p.index < q.index);
     });
     // In order of energy, each candidate refined fully and kept when no kept one is closer than the threshold.
-    const ConformerComparer comparer(m, !may_be_chiral(m, builder.domains(), symmetry_classes(m)));
+    const ConformerComparer comparer(m, !may_be_chiral(m, builder.domains(), classes), classes);
     std::vector<Candidate*> kept;
     for (Candidate& c : candidates) {
         if (static_cast<int>(kept.size()) >= options.count) break;

@@ -45,6 +45,8 @@ class ConformerComparer {
 public:
     static constexpr int kMaxSymmetries = 64;
     explicit ConformerComparer(const Molecule& molecule, bool mirror_images_equal);
+    // classes: symmetry_classes(molecule), when the caller has them.
+    ConformerComparer(const Molecule& molecule, bool mirror_images_equal, const std::vector<int>& classes);
     double rmsd(const std::vector<Eigen::Vector3d>& a, const std::vector<Eigen::Vector3d>& b) const;
     int symmetries() const { return static_cast<int>(mappings_.size()); }
 
