@@ -13,6 +13,7 @@
 #include "core/error.hpp"
 #include "core/geometry.hpp"
 #include "core/limits.hpp"
+#include "graph/conjugation.hpp"
 #include "graph/symmetry.hpp"
 #include "refine/conformer_energy.hpp"
 
@@ -54,25 +55,6 @@ bool symmetric_rotor(const Molecule& m, int end, int other) {
         z = nz;
     }
     return true;
-}
-
-bool has_double_to_hetero(const Molecule& m, int atom) {
-    for (const Neighbor& nb : m.neighbors(atom)) {
-        const Bond& b = m.bonds[at(nb.bond)];
-        const int z = m.atoms[at(nb.atom)].z;
-        if (b.order == 2 && (z == 7 || z == 8 || z == 16)) return true;
-    }
-    return false;
-}
-
-// The C-N / C-O / C-S link of an amide, ester, thioamide, amidine, carbamate or urea: planar, kept in its built form.
-bool planar_link(const Molecule& m, int a, int b) {
-    for (int side = 0; side < 2; ++side) {
-        const int c = side ? b : a, x = side ? a : b;
-        const int zx = m.atoms[at(x)].z;
-        if (m.atoms[at(c)].z == 6 && (zx == 7 || zx == 8 || zx == 16) && has_double_to_hetero(m, c)) return true;
-    }
-    return false;
 }
 
 bool linear_centre(const CentreDomains& c) { return c.bonded == 2 && c.lone_pairs + c.single_electrons == 0 && c.steric_number == 2; }
@@ -331,7 +313,7 @@ std::vector<RotatableBond> rotatable_bonds(const Molecule& m, const MoleculeDoma
         if (symmetric_rotor(m, a, b) || symmetric_rotor(m, b, a)) continue;
         const CentreDomains& ca = d.atoms[at(a)];
         const CentreDomains& cb = d.atoms[at(b)];
-        if (linear_centre(ca) || linear_centre(cb) || planar_link(m, a, b)) continue;
+        if (linear_centre(ca) || linear_centre(cb) || amide_like_link(m, a, b)) continue;
         // The smaller side turns (fewer atoms to move; the same shapes either way).
         const std::vector<int> sb = side_of(m, a, b), sa = side_of(m, b, a);
         if (sb.size() + sa.size() != at(m.atom_count())) continue;  // a ring the perception did not list: leave it

@@ -44,6 +44,29 @@ bool is_polar_bridge_neighbour(int z) {
            element(8).electronegativity - j.electronegativity >= kPolarBridge;
 }
 
+namespace {
+
+bool has_double_to_hetero(const Molecule& m, int atom) {
+    for (const Neighbor& nb : m.neighbors(atom)) {
+        const Bond& b = m.bonds[static_cast<size_t>(nb.bond)];
+        const int z = m.atoms[static_cast<size_t>(nb.atom)].z;
+        if (b.order == 2 && (z == 7 || z == 8 || z == 16)) return true;
+    }
+    return false;
+}
+
+}  // namespace
+
+bool amide_like_link(const Molecule& m, int a, int b) {
+    for (int side = 0; side < 2; ++side) {
+        const int c = side ? b : a, x = side ? a : b;
+        const int zx = m.atoms[static_cast<size_t>(x)].z;
+        if (m.atoms[static_cast<size_t>(c)].z == 6 && (zx == 7 || zx == 8 || zx == 16) && has_double_to_hetero(m, c))
+            return true;
+    }
+    return false;
+}
+
 bool delocalised_lone_pair(const Molecule& m, int i, int lone_pairs, int single_electrons) {
     const Atom& a = m.atoms[static_cast<size_t>(i)];
     if ((a.z != 7 && a.z != 8) || a.charge != 0 || lone_pairs < 1 || single_electrons != 0) return false;

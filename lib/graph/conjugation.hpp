@@ -13,7 +13,7 @@
 // - conjugated_nitrogen (the audit's tolerance for a flattened N, check/audit.cpp): an N with one lone pair in the
 //   Lewis structure (delocalised or not) and three bonds, next to an atom with a bond under kPiBondKekule (double or
 //   triple as written, aromatic flags ignored, the bond to the N included).
-// Besides them, crowded_biaryl_bond: where sterics break the conjugation across a biaryl axis (the assembly's start
+// Besides them, amide_like_link (the assembly's torsions and the ensemble's rotatable bonds) and crowded_biaryl_bond: where sterics break the conjugation across a biaryl axis (the assembly's start
 // and the refinement's torsions).
 #pragma once
 
@@ -46,6 +46,11 @@ bool empty_p_acceptor(const Molecule& m, int j);
 // A neighbour that draws a bridging oxygen's lone pair towards it: a p-block atom of period 3 or later less
 // electronegative than O by at least 0.8 Pauling units (Si, P, S, Al, Ge, As; not Cl, Br, I).
 bool is_polar_bridge_neighbour(int z);
+
+// The C-N, C-O or C-S link of an amide, ester, thioamide, amidine, carbamate or urea: a carbon with a double bond
+// to N, O or S, single-bonded to the other end (N, O or S). Planar in one of its two forms (common practice): the
+// assembly tries only those two, and the conformer ensemble keeps the built one.
+bool amide_like_link(const Molecule& m, int a, int b);
 
 // Whether one lone pair of atom i is delocalised into a neighbouring pi system, so that it takes no sigma domain of
 // its own (common practice: the lone pair of an amide N, an aniline N, a pyrrole N, an ester or aryl-ether O, the
