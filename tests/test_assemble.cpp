@@ -242,6 +242,20 @@ TEST(Chains, EsterIsZ) {
 // went to the cis amide (measured); from the planar start 8 and 8. Expected (common practice; GFN2-xTB's optimum of
 // paracetamol, measured: O=C-N-C 179.1 in its cis form, the trans one lower): the carbonyl O syn to the single-bonded
 // partner (O=C-X-Y within 10 degrees of 0), and the O...H contact opened past 2.0 A by the refinement.
+// A benzylic CH2 of an alkyl chain: the chain's carbon perpendicular to the ring (ethylbenzene's ethyl group, from
+// memory; GFN2-xTB's minimum 1.34 kcal/mol below the in-plane saddle the assembly used to build, measured). A CH2
+// bearing O stays in the plane (benzyl alcohol: xtb reached a lower minimum from there, measured).
+TEST(Chains, BenzylicAlkylChainStandsPerpendicularToTheRing) {
+    for (const auto& [smiles, atoms] : {std::pair{"CCc1ccccc1", std::array<int, 4>{0, 1, 2, 3}},
+                                        std::pair{"CCCc1ccccc1", std::array<int, 4>{1, 2, 3, 4}}}) {
+        const Structure s = build_smiles(smiles);
+        EXPECT_NEAR(std::abs(torsion(s, atoms[0], atoms[1], atoms[2], atoms[3])), 90.0, 10.0) << smiles;
+    }
+    const Structure alcohol = build_smiles("OCc1ccccc1");
+    const double phi = std::abs(torsion(alcohol, 0, 1, 2, 3));
+    EXPECT_LT(std::min(phi, 180 - phi), 10.0);
+}
+
 TEST(Chains, AmideAndEsterLinksOnAromaticRingsArePlanar) {
     struct Case {
         const char* smiles;

@@ -55,6 +55,14 @@ MOLECULES = [
     # A crowded alkene: tetraphenylethylene's rings turned out of the C=C plane (about 47 degrees at the GFN2-xTB
     # optimum, measured; a coplanar start would be a saddle). Atoms: the other alkene C, the alkene C, ipso, ortho.
     ('tetraphenylethylene', 'C(c1ccccc1)(c1ccccc1)=C(c1ccccc1)c1ccccc1', (13, 0, 1, 2), 'propeller'),
+    # Benzylic alkyl chains: the chain's carbon perpendicular to the ring plane (ethylbenzene's ethyl, from memory);
+    # an in-plane start is a saddle xtb keeps by symmetry (ethylbenzene 1.34 kcal/mol above the perpendicular minimum,
+    # GFN2-xTB, measured). Atoms: the chain carbon, the CH2, ipso, ortho.
+    ('ethylbenzene', 'CCc1ccccc1', (0, 1, 2, 3), 90),
+    ('propylbenzene', 'CCCc1ccccc1', (1, 2, 3, 4), 90),
+    # An amide link on an aromatic ring, planar ('0': 0 or 180): built perpendicular it took xtb 46 cycles and went to
+    # the cis amide (measured). Atoms: the carbonyl O, C, N, ipso.
+    ('paracetamol (acetanilide link)', 'CC(=O)Nc1ccc(O)cc1', (2, 1, 3, 4), 0),
     # Helicenes ('helix': folded into 0..90, within 10..40): built flat, [6]helicene is a saddle xtb keeps, 97 kcal/mol
     # above the helix (measured with GFN2-xTB); in the helix the inner-rim torsions are 15-30 degrees (GFN2-xTB,
     # measured; crystal [6]helicene about 30, from memory). Atoms: a torsion of the inner rim.
