@@ -4,6 +4,7 @@
 
 #include <Eigen/Eigenvalues>
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <cstdint>
 #include <limits>
@@ -43,6 +44,7 @@ struct Problem {
     const std::vector<VolumeCondition>* volumes;
     const std::vector<TorsionCondition>* torsions;
     const std::vector<AreaCondition>* areas;
+    std::vector<std::array<double, 2>> torsion_cosines;  // cos(upper), cos(lower) of each torsion condition
 };
 
 // Dihedral angle i-j-k-l and, when grad is given, its gradient (Blondel and Karplus, J. Comput. Chem. 17 (1996)
@@ -66,6 +68,23 @@ double torsion_of(const double* x, const TorsionCondition& t, Vector3d* grad) {
         }
     }
     return phi;
+}
+
+// Whether torsion t lies inside its range [lower, upper] (of |phi|) with a margin, tested by the cosine of the angle
+// (cos is decreasing on [0, pi]) without the arctangent; false when in doubt, and the caller then takes torsion_of.
+// The margin keeps the answer the arctangent's wherever this says true.
+bool torsion_surely_inside(const double* x, const TorsionCondition& t, const std::array<double, 2>& cosines) {
+    constexpr double kMargin = 1e-9;
+    const Vector3d pi(x + 3 * t.i), pj(x + 3 * t.j), pk(x + 3 * t.k), pl(x + 3 * t.l);
+    const Vector3d f = pi - pj, g = pj - pk, h = pl - pk;
+    const Vector3d a = f.cross(g), b = h.cross(g);
+    const double gn = g.norm();
+    if (!(gn > 1e-9)) return false;
+    const double sine = b.cross(a).dot(g) / gn, cosine = a.dot(b);
+    const double r2 = sine * sine + cosine * cosine;
+    if (!(r2 > 1e-24)) return false;
+    const double c = cosine / std::sqrt(r2);
+    return c > cosines[0] + kMargin && c < cosines[1] - kMargin;
 }
 
 double volume_of(const double* x, const VolumeCondition& v, double* gb, double* gd, double* ge) {
@@ -134,7 +153,9 @@ double error_function(const Problem& p, const double* x, double* g) {
             g[3 * q.j + 2] -= f * dz;
         }
     }
-    for (const TorsionCondition& t : *p.torsions) {
+    for (size_t ti = 0; ti < p.torsions->size(); ++ti) {
+        const TorsionCondition& t = (*p.torsions)[ti];
+        if (torsion_surely_inside(x, t, p.torsion_cosines[ti])) continue;
         const double phi = torsion_of(x, t, nullptr);
         const double a = std::abs(phi);
         double excess = 0;
@@ -184,6 +205,8 @@ Problem make_problem(const DistanceBounds& b, const std::vector<VolumeCondition>
     p.areas = &areas;
     p.volumes = &volumes;
     p.torsions = &torsions;
+    p.torsion_cosines.reserve(torsions.size());
+    for (const TorsionCondition& t : torsions) p.torsion_cosines.push_back({std::cos(t.upper), std::cos(t.lower)});
     const int n = b.size();
     for (int i = 0; i < n; ++i)
         for (int j = i + 1; j < n; ++j) {

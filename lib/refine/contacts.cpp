@@ -54,12 +54,19 @@ ContactModel::ContactModel(const Molecule& molecule) : neighbourhood_(molecule) 
     max_distance_ = kContactFraction * 2.0 * largest;
     const int n = molecule.atom_count();
     use_all_pairs_ = n <= kAllPairsAtoms;
-    if (use_all_pairs_)
-        for (int i = 0; i < n; ++i)
+    if (use_all_pairs_) {
+        all_pairs_.reserve(static_cast<size_t>(n) * static_cast<size_t>(std::max(0, n - 1)) / 2);
+        for (int i = 0; i < n; ++i) {
+            // The neighbourhood of i is sorted by atom: walk it beside j instead of searching it for every j.
+            const auto near = neighbourhood_.of(i);
+            auto it = std::lower_bound(near.begin(), near.end(), std::pair<int, std::uint8_t>{i + 1, 0});
             for (int j = i + 1; j < n; ++j) {
-                const int apart = neighbourhood_.bonds_apart(i, j);
+                int apart = 0;
+                if (it != near.end() && it->first == j) apart = (it++)->second;
                 if (apart != 1 && apart != 2) all_pairs_.push_back(pair_for(i, j, apart));
             }
+        }
+    }
 }
 
 ContactPair ContactModel::pair_for(int i, int j, int apart) const {

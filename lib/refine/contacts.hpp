@@ -20,6 +20,11 @@ public:
     explicit BondNeighbourhood(const Molecule& molecule);
     // 1, 2 or 3 for atoms that many bonds apart (the shortest path), 0 when further.
     int bonds_apart(int i, int j) const;
+    // The atoms within three bonds of i with their distance in bonds, sorted by atom.
+    std::span<const std::pair<int, std::uint8_t>> of(int i) const {
+        return {entries_.data() + offsets_[static_cast<size_t>(i)],
+                static_cast<size_t>(offsets_[static_cast<size_t>(i) + 1] - offsets_[static_cast<size_t>(i)])};
+    }
 
 private:
     std::vector<int> offsets_;

@@ -142,12 +142,8 @@ private:
             a_[slot] = rho_[slot] * dot(s, d_.data(), n_);
             add_scaled(d_.data(), -a_[slot], y, n_);
         }
-        if (k > 0) {
-            const double* s = &s_[newest_ * n_];
-            const double* y = &y_[newest_ * n_];
-            const double gamma = dot(s, y, n_) / dot(y, y, n_);
-            for (double& v : d_) v *= gamma;
-        }
+        if (k > 0)
+            for (double& v : d_) v *= gamma_;
         for (size_t i = k; i-- > 0;) {
             const size_t slot = (newest_ + memory_ - i) % memory_;
             const double* s = &s_[slot * n_];
@@ -172,6 +168,7 @@ private:
         f_ = ft_;
         if (!(sy > kMinCurvature * std::sqrt(ss * yy))) return;  // no positive curvature: keep the old pairs
         rho_[slot] = 1.0 / sy;
+        gamma_ = sy / yy;  // the scale of the initial matrix, s.y / y.y of the newest pair
         newest_ = slot;
         pairs_ = std::min(pairs_ + 1, memory_);
     }
@@ -230,6 +227,7 @@ private:
     double f_ = 0, ft_ = 0;
     std::vector<double> s_, y_, rho_, a_;  // pairs: slot i holds s at s_[i n, (i+1) n), likewise y
     size_t pairs_ = 0, newest_ = 0;
+    double gamma_ = 1;
     int evaluations_ = 0;
     bool converged_ = false, non_finite_ = false;
     double best_f_ = std::numeric_limits<double>::infinity();
