@@ -48,6 +48,8 @@ constexpr double kBladeTwist = kPropellerTorsion * kPi / 180;
 const std::vector<double> kPropellerOffsets{kPi - kBladeTwist, kBladeTwist, kBladeTwist - kPi, -kBladeTwist, kPi / 2,
                                             -kPi / 2};
 const std::vector<double> kFixedOffset{0};
+// A ring-side hydrogen (ring_side_substituent): in the ring's plane on either side before the staggered turns.
+const std::vector<double> kInPlaneFirstOffsets{0, kPi, 2 * kPi / 3, -2 * kPi / 3, kPi / 3, -kPi / 3, kPi / 2, -kPi / 2};
 
 double wrap(double a) {
     while (a > kPi) a -= 2 * kPi;
@@ -243,6 +245,8 @@ private:
         const Bond& b = m_.bonds[at(bond)];
         if (b.order == 2 && !b.aromatic) return kDoubleBondOffsets;
         if (crowded_biaryl_bond(m_, bond)) return kCrowdedBiarylOffsets;
+        double unused = 0;
+        if (const int s = ring_side_substituent(p, c, &unused); s >= 0 && m_.atoms[at(s)].z == 1) return kInPlaneFirstOffsets;
         if (propeller_blade_bond(m_, bond)) return kPropellerOffsets;
         if (planar_centre(m_, d_.atoms[at(p)], p) && planar_centre(m_, d_.atoms[at(c)], c))
             return amide_like_link(m_, p, c) ? kPlanarLinkOffsets : kPlanarOffsets;
@@ -274,7 +278,68 @@ private:
         *target = kPi;  // anti
         if (*r >= 0 && *n >= 0) straight_chain_reference(p, c, r, target);
         if (*r >= 0 && *n >= 0 && benzylic_bond(p, c)) *target = kPi / 2;
+        double side_target = 0;
+        if (const int s = ring_side_substituent(p, c, &side_target); s >= 0 && *r >= 0 && *n >= 0) {
+            if (std::find(children.begin(), children.end(), s) != children.end()) {  // the ring placed: s is c's
+                *n = s;
+                *target = side_target;
+            } else if (placed_[at(s)] && m_.bond_between(p, s) >= 0) {  // the ring being entered: s is p's, placed
+                *r = s;
+                *target = side_target;
+            }
+        }
         return *r >= 0 && *n >= 0;
+    }
+
+    // A tetrahedral centre on an aromatic ring atom (one of p, c; single bond) with one substituent whose place
+    // about the bond is known: returns that substituent and its dihedral from the ring's plane (to a ring neighbour
+    // of the ring atom), or -1. Both measured with GFN2-xTB (Debian's xtb) from starts turned in 30- and 60-degree
+    // steps (scratch runs of 2026-12-05):
+    // - a CH with two heavy substituents, neither aromatic nor in a three-membered ring (cumene, 1-phenylethanol,
+    //   1-phenylethylamine, 2-phenylpropanoic acid): its hydrogen near the ring plane (at the optimum 0-35 degrees
+    //   out of it; cumene's in it, from memory). From the build's former start, a methyl in the plane, xtb needed
+    //   54-94 cycles and from the hydrogen in the plane 8-29. In the drug set's GFN2-xTB optima such hydrogens lie a
+    //   median 17 degrees from the plane (ibuprofen 5, venlafaxine 8, amoxicillin 1).
+    // - a sulfonyl S(=O)(=O)X: X perpendicular to the ring (benzenesulfonamide's N 88-98 degrees at the optimum). In
+    //   the plane it is a saddle xtb keeps by symmetry: methyl phenyl sulfone 2.25 kcal/mol above the perpendicular
+    //   minimum.
+    // Diaryl and aryl-heteroaryl methines are propellers (letrozole's and cetirizine's hydrogens 58 and 88 degrees
+    // out of the plane at the xtb optimum) and keep the common rule.
+    int ring_side_substituent(int p, int c, double* target) const {
+        const int bond = m_.bond_between(p, c);
+        if (bond < 0 || m_.bonds[at(bond)].order != 1) return -1;
+        for (const auto& [ring, sp3] : {std::pair{p, c}, std::pair{c, p}}) {
+            if (!m_.atoms[at(ring)].aromatic || m_.atoms[at(sp3)].aromatic || d_.atoms[at(sp3)].steric_number != 4 ||
+                m_.degree(sp3) != 4)
+                continue;
+            const int z = m_.atoms[at(sp3)].z;
+            int hydrogen = -1, hydrogens = 0, terminal_oxygens = 0, other = -1, others = 0;
+            bool aromatic_or_small_ring = false;
+            for (const Neighbor& x : m_.neighbors(sp3)) {
+                aromatic_or_small_ring = aromatic_or_small_ring || rings_.smallest_ring_with_bond(m_, x.bond) == 3;
+                if (x.atom == ring) continue;
+                const Atom& a = m_.atoms[at(x.atom)];
+                if (a.z == 1) {
+                    hydrogen = x.atom;
+                    ++hydrogens;
+                } else if (a.z == 8 && m_.degree(x.atom) == 1) {
+                    ++terminal_oxygens;
+                } else {
+                    other = x.atom;
+                    ++others;
+                    aromatic_or_small_ring = aromatic_or_small_ring || a.aromatic;
+                }
+            }
+            if (z == 6 && hydrogens == 1 && terminal_oxygens + others == 2 && !aromatic_or_small_ring) {
+                *target = 0;
+                return hydrogen;
+            }
+            if (z == 16 && hydrogens == 0 && terminal_oxygens == 2 && others == 1) {
+                *target = kPi / 2;
+                return other;
+            }
+        }
+        return -1;
     }
 
     // A single bond from an aromatic ring atom to a tetrahedral carbon whose one heavy substituent besides the ring is

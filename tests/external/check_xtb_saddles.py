@@ -15,7 +15,8 @@ Allene-like Systems"), the sign too: for FC=[C@]=CF the mark's list is F, H | H,
 from the definition by hand; the test of the same sign in tests/test_assemble.cpp computes the determinant). Crowded
 biaryls (an ortho substituent or a peri ring): the ring-ring dihedral, folded into 0..90, within 45..90 in the start
 and at the optimum (a coplanar start is a saddle xtb keeps); propeller blades (benzophenone, triphenylborane) within
-15..50; helicenes ([4], [5], [6]) an inner-rim torsion within 10..40 (a flat start is a saddle xtb keeps). Closes with `N passed, M failed`; exits 1 on any failure.
+15..50; helicenes ([4], [5], [6]) an inner-rim torsion within 10..40 (a flat start is a saddle xtb keeps); benzylic chains
+and a sulfonyl's substituent perpendicular to their ring, a methine's hydrogen in it, amide links planar, within 10. Closes with `N passed, M failed`; exits 1 on any failure.
 """
 
 import concurrent.futures
@@ -60,6 +61,14 @@ MOLECULES = [
     # GFN2-xTB, measured). Atoms: the chain carbon, the CH2, ipso, ortho.
     ('ethylbenzene', 'CCc1ccccc1', (0, 1, 2, 3), 90),
     ('propylbenzene', 'CCCc1ccccc1', (1, 2, 3, 4), 90),
+    # A sulfonyl on an aromatic ring: its other substituent perpendicular to the ring (benzenesulfonamide's N 88-98
+    # degrees out of the plane at the GFN2-xTB optimum, measured); methyl phenyl sulfone built in the plane is a saddle
+    # xtb keeps, 2.25 kcal/mol above the perpendicular minimum (measured). Atoms: ortho, ipso, S, the methyl C.
+    ('methyl phenyl sulfone', 'CS(=O)(=O)c1ccccc1', (5, 4, 1, 0), 90),
+    # A methine on an aromatic ring: its hydrogen in the ring plane (cumene, from memory; GFN2-xTB's optimum too,
+    # measured: from a start with a methyl in the plane xtb needed 94 cycles, from this one 8). Atoms: ortho, ipso,
+    # the methine C, its H.
+    ('cumene', 'CC(C)c1ccccc1', (4, 3, 1, 12), 0),
     # An amide link on an aromatic ring, planar ('0': 0 or 180): built perpendicular it took xtb 46 cycles and went to
     # the cis amide (measured). Atoms: the carbonyl O, C, N, ipso.
     ('paracetamol (acetanilide link)', 'CC(=O)Nc1ccc(O)cc1', (2, 1, 3, 4), 0),
