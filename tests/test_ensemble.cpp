@@ -202,6 +202,26 @@ TEST(Ensemble, ComparerSeesSymmetryAndMirrors) {
     EXPECT_FALSE(may_be_chiral(s.molecule, analyse_domains(s.molecule, true, nullptr), symmetry_classes(s.molecule)));
 }
 
+// closer_than answers rmsd < threshold without the full minimum, for every pair of an ensemble and thresholds on
+// both sides of their RMSDs, with mirror images equal or not (the bound it skips matchings by must never change the
+// answer).
+TEST(Ensemble, CloserThanAgreesWithTheRmsd) {
+    for (const char* smiles : {"CC(C)(C)CCOCC(C)C", "CCCCC(=O)OCC1CCCCC1", "C[C@H](N)C(=O)N[C@@H](Cc1ccccc1)C(=O)O"}) {
+        const std::vector<Structure> e = build_conformers(smiles, {}, count(10));
+        const Molecule& m = e.front().molecule;
+        for (bool mirror : {false, true}) {
+            const ConformerComparer comparer(m, mirror);
+            for (size_t i = 0; i < e.size(); ++i)
+                for (size_t j = 0; j < e.size(); ++j) {
+                    const double d = comparer.rmsd(e[i].positions, e[j].positions);
+                    for (double t : {0.05, 0.3, 0.5, 0.8, 1.2, d, d + 1e-6, std::max(0.0, d - 1e-6)})
+                        EXPECT_EQ(comparer.closer_than(e[i].positions, e[j].positions, t), d < t)
+                            << smiles << " " << i << "/" << j << " rmsd " << d << " threshold " << t;
+                }
+        }
+    }
+}
+
 // The writers carry each conformer's rank, count, energies and RMSD: SD data items, extended-XYZ keys, a JSON object
 // per conformer.
 TEST(Ensemble, WritersCarryTheConformer) {

@@ -277,6 +277,48 @@ double ConformerComparer::rmsd_one(const std::vector<Vector3d>& a, const std::ve
     return best;
 }
 
+bool ConformerComparer::any_closer(const std::vector<Vector3d>& a, const std::vector<Vector3d>& b,
+                                   double threshold) const {
+    if (atoms_.empty()) return 0 < threshold;
+    // The lower bound of rmsd_one: each atom's distance from the centroid. A margin keeps the answer rmsd's where
+    // the bound and the superposed RMSD would differ only by rounding.
+    constexpr double kBoundMargin = 1e-9;
+    Vector3d ma = Vector3d::Zero(), mb = Vector3d::Zero();
+    for (int k : atoms_) {
+        ma += a[at(k)];
+        mb += b[at(k)];
+    }
+    ma /= static_cast<double>(atoms_.size());
+    mb /= static_cast<double>(atoms_.size());
+    std::vector<double> ra(b.size(), 0.0), rb(b.size(), 0.0);
+    for (int k : atoms_) {
+        ra[at(k)] = (a[at(k)] - ma).norm();
+        rb[at(k)] = (b[at(k)] - mb).norm();
+    }
+    Eigen::Matrix3d r;
+    Vector3d ca, cb;
+    for (const std::vector<int>& match : mappings_) {
+        double bound = 0;
+        for (size_t k = 0; k < atoms_.size(); ++k) {
+            const double x = ra[at(atoms_[k])] - rb[at(match[k])];
+            bound += x * x;
+        }
+        if (std::sqrt(bound / static_cast<double>(atoms_.size())) >= threshold + kBoundMargin) continue;
+        if (rmsd_of(a, b, atoms_, match, &r, &ca, &cb) < threshold) return true;
+    }
+    return false;
+}
+
+bool ConformerComparer::closer_than(const std::vector<Vector3d>& a, const std::vector<Vector3d>& b,
+                                    double threshold) const {
+    if (capped_) return rmsd(a, b) < threshold;  // the matchings listed are not all: rmsd_one's nearest-atom step
+    if (any_closer(a, b, threshold)) return true;
+    if (!mirror_) return false;
+    std::vector<Vector3d> mirrored = b;
+    for (Vector3d& p : mirrored) p.x() = -p.x();
+    return any_closer(a, mirrored, threshold);
+}
+
 double ConformerComparer::rmsd(const std::vector<Vector3d>& a, const std::vector<Vector3d>& b) const {
     double d = rmsd_one(a, b);
     if (mirror_) {
@@ -744,7 +786,7 @@ std::vector<Structure> build_ensemble(const Molecule& molecule, const BuildOptio
             continue;
         bool distinct = true;
         for (const Candidate* k : kept)
-            if (comparer.rmsd(k->built.structure.positions, c.built.structure.positions) < options.distinct_rmsd) {
+            if (comparer.closer_than(k->built.structure.positions, c.built.structure.positions, options.distinct_rmsd)) {
                 distinct = false;
                 break;
             }

@@ -48,10 +48,16 @@ public:
     // classes: symmetry_classes(molecule), when the caller has them.
     ConformerComparer(const Molecule& molecule, bool mirror_images_equal, const std::vector<int>& classes);
     double rmsd(const std::vector<Eigen::Vector3d>& a, const std::vector<Eigen::Vector3d>& b) const;
+    // rmsd(a, b) < threshold, answered without the full minimum: the first matching under the threshold ends it,
+    // and a matching whose lower bound is at or above it is not superposed.
+    bool closer_than(const std::vector<Eigen::Vector3d>& a, const std::vector<Eigen::Vector3d>& b,
+                     double threshold) const;
     int symmetries() const { return static_cast<int>(mappings_.size()); }
 
 private:
     double rmsd_one(const std::vector<Eigen::Vector3d>& a, const std::vector<Eigen::Vector3d>& b) const;
+    bool any_closer(const std::vector<Eigen::Vector3d>& a, const std::vector<Eigen::Vector3d>& b,
+                    double threshold) const;
     std::vector<int> atoms_;
     std::vector<int> classes_;
     std::vector<std::vector<int>> mappings_;  // images of atoms_, the identity first
