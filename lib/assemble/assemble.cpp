@@ -128,6 +128,8 @@ private:
     // Set by torsion_reference when the target came from a measured preference (ring_side_substituent,
     // carbonyl_alpha_pair): then a slight overlap at that target is left to the refinement (kMeasuredTargetOverlap).
     mutable bool measured_target_ = false;
+    // Set by torsion_reference for offsets(): the bond's ring-side substituent is a hydrogen (kInPlaneFirstOffsets).
+    mutable bool side_hydrogen_ = false;
 
     size_t at(int i) const { return static_cast<size_t>(i); }
 
@@ -257,14 +259,13 @@ private:
                                                                                                         : plain;
     }
 
-    // Offsets to try for the torsion about the bond p-c.
+    // Offsets to try for the torsion about the bond p-c (after torsion_reference for the same bond).
     const std::vector<double>& offsets(int p, int c, int bond, bool stereo) const {
         if (stereo) return kFixedOffset;
         const Bond& b = m_.bonds[at(bond)];
         if (b.order == 2 && !b.aromatic) return kDoubleBondOffsets;
         if (crowded_biaryl_bond(m_, bond)) return kCrowdedBiarylOffsets;
-        double unused = 0;
-        if (const int s = ring_side_substituent(p, c, &unused); s >= 0 && m_.atoms[at(s)].z == 1) return kInPlaneFirstOffsets;
+        if (side_hydrogen_) return kInPlaneFirstOffsets;
         if (propeller_blade_bond(m_, bond)) return kPropellerOffsets;
         if (planar_centre(m_, d_.atoms[at(p)], p) && planar_centre(m_, d_.atoms[at(c)], c))
             return amide_like_link(m_, p, c) ? kPlanarLinkOffsets : kPlanarOffsets;
@@ -279,6 +280,7 @@ private:
         const Bond& b = m_.bonds[at(bond)];
         *stereo = false;
         measured_target_ = false;
+        side_hydrogen_ = false;
         if (b.stereo != BondStereo::none && b.ref_a >= 0 && b.ref_b >= 0) {
             const int rp = p == b.a ? b.ref_a : b.ref_b, rc = p == b.a ? b.ref_b : b.ref_a;
             if (placed_[at(rp)] && std::find(children.begin(), children.end(), rc) != children.end()) {
@@ -298,7 +300,9 @@ private:
         if (*r >= 0 && *n >= 0) straight_chain_reference(p, c, r, target);
         if (*r >= 0 && *n >= 0 && benzylic_bond(p, c)) *target = kPi / 2;
         double side_target = 0;
-        if (const int s = ring_side_substituent(p, c, &side_target); s >= 0 && *r >= 0 && *n >= 0) {
+        const int s = ring_side_substituent(p, c, &side_target);
+        side_hydrogen_ = s >= 0 && m_.atoms[at(s)].z == 1;
+        if (s >= 0 && *r >= 0 && *n >= 0) {
             if (std::find(children.begin(), children.end(), s) != children.end()) {  // the ring placed: s is c's
                 *n = s;
                 *target = side_target;

@@ -49,12 +49,32 @@ struct Problem {
 
 // Dihedral angle i-j-k-l and, when grad is given, its gradient (Blondel and Karplus, J. Comput. Chem. 17 (1996)
 // 1132), with the sign convention of place.hpp's dihedral().
-double torsion_of(const double* x, const TorsionCondition& t, Vector3d* grad) {
+// The vectors of torsion i-j-k-l (f = i-j, g = j-k, h = l-k; a = f x g, b = h x g) and the sine and cosine parts
+// of its angle, phi = atan2(sine, cosine).
+struct TorsionParts {
+    Vector3d f, g, h, a, b;
+    double gn, sine, cosine;
+};
+
+TorsionParts torsion_parts(const double* x, const TorsionCondition& t) {
     const Vector3d pi(x + 3 * t.i), pj(x + 3 * t.j), pk(x + 3 * t.k), pl(x + 3 * t.l);
-    const Vector3d f = pi - pj, g = pj - pk, h = pl - pk;
-    const Vector3d a = f.cross(g), b = h.cross(g);
-    const double a2 = a.squaredNorm(), b2 = b.squaredNorm(), gn = g.norm();
-    const double phi = std::atan2(b.cross(a).dot(g) / gn, a.dot(b));
+    TorsionParts p;
+    p.f = pi - pj;
+    p.g = pj - pk;
+    p.h = pl - pk;
+    p.a = p.f.cross(p.g);
+    p.b = p.h.cross(p.g);
+    p.gn = p.g.norm();
+    p.sine = p.b.cross(p.a).dot(p.g) / p.gn;
+    p.cosine = p.a.dot(p.b);
+    return p;
+}
+
+double torsion_of(const double* x, const TorsionCondition& t, Vector3d* grad) {
+    const TorsionParts p = torsion_parts(x, t);
+    const Vector3d &f = p.f, &g = p.g, &h = p.h, &a = p.a, &b = p.b;
+    const double a2 = a.squaredNorm(), b2 = b.squaredNorm(), gn = p.gn;
+    const double phi = std::atan2(p.sine, p.cosine);
     if (grad) {
         if (a2 < 1e-12 || b2 < 1e-12 || gn < 1e-9) {
             for (int q = 0; q < 4; ++q) grad[q].setZero();
@@ -75,15 +95,11 @@ double torsion_of(const double* x, const TorsionCondition& t, Vector3d* grad) {
 // The margin keeps the answer the arctangent's wherever this says true.
 bool torsion_surely_inside(const double* x, const TorsionCondition& t, const std::array<double, 2>& cosines) {
     constexpr double kMargin = 1e-9;
-    const Vector3d pi(x + 3 * t.i), pj(x + 3 * t.j), pk(x + 3 * t.k), pl(x + 3 * t.l);
-    const Vector3d f = pi - pj, g = pj - pk, h = pl - pk;
-    const Vector3d a = f.cross(g), b = h.cross(g);
-    const double gn = g.norm();
-    if (!(gn > 1e-9)) return false;
-    const double sine = b.cross(a).dot(g) / gn, cosine = a.dot(b);
-    const double r2 = sine * sine + cosine * cosine;
+    const TorsionParts p = torsion_parts(x, t);
+    if (!(p.gn > 1e-9)) return false;
+    const double r2 = p.sine * p.sine + p.cosine * p.cosine;
     if (!(r2 > 1e-24)) return false;
-    const double c = cosine / std::sqrt(r2);
+    const double c = p.cosine / std::sqrt(r2);
     return c > cosines[0] + kMargin && c < cosines[1] - kMargin;
 }
 

@@ -203,6 +203,39 @@ bool automorphisms(const Molecule& m, const std::vector<int>& atoms, const std::
     }
 }
 
+// Each compared atom's distance from the centroid of the compared atoms, in a and in b (indexed by atom). They give a
+// lower bound of any matching's RMSD which no rotation can beat (matching_bound): the centroid is the same for every
+// matching, which only permutes the atoms.
+struct CentroidDistances {
+    std::vector<double> a, b;
+};
+
+CentroidDistances centroid_distances(const std::vector<Vector3d>& a, const std::vector<Vector3d>& b,
+                                     const std::vector<int>& atoms) {
+    Vector3d ma = Vector3d::Zero(), mb = Vector3d::Zero();
+    for (int k : atoms) {
+        ma += a[at(k)];
+        mb += b[at(k)];
+    }
+    ma /= static_cast<double>(atoms.size());
+    mb /= static_cast<double>(atoms.size());
+    CentroidDistances d{std::vector<double>(b.size(), 0.0), std::vector<double>(b.size(), 0.0)};
+    for (int k : atoms) {
+        d.a[at(k)] = (a[at(k)] - ma).norm();
+        d.b[at(k)] = (b[at(k)] - mb).norm();
+    }
+    return d;
+}
+
+double matching_bound(const CentroidDistances& d, const std::vector<int>& atoms, const std::vector<int>& match) {
+    double bound = 0;
+    for (size_t k = 0; k < atoms.size(); ++k) {
+        const double x = d.a[at(atoms[k])] - d.b[at(match[k])];
+        bound += x * x;
+    }
+    return std::sqrt(bound / static_cast<double>(atoms.size()));
+}
+
 }  // namespace
 
 ConformerComparer::ConformerComparer(const Molecule& m, bool mirror_images_equal)
@@ -220,30 +253,11 @@ double ConformerComparer::rmsd_one(const std::vector<Vector3d>& a, const std::ve
     Vector3d ca, cb;
     double best = 1e300;
     std::vector<int> best_match;
-    // A lower bound of any matching's RMSD, which no rotation can beat: each atom's distance from the centroid (the
-    // same centroid for every matching, which only permutes the atoms). A matching whose bound is no better than the
-    // best so far is not superposed (most of the symmetric matchings of a molecule with a few methyl-like groups).
-    Vector3d ma = Vector3d::Zero(), mb = Vector3d::Zero();
-    for (int k : atoms_) {
-        ma += a[at(k)];
-        mb += b[at(k)];
-    }
-    ma /= static_cast<double>(atoms_.size());
-    mb /= static_cast<double>(atoms_.size());
-    std::vector<double> ra(b.size(), 0.0), rb(b.size(), 0.0);
-    for (int k : atoms_) {
-        ra[at(k)] = (a[at(k)] - ma).norm();
-        rb[at(k)] = (b[at(k)] - mb).norm();
-    }
+    // A matching whose lower bound is no better than the best so far is not superposed (most of the symmetric
+    // matchings of a molecule with a few methyl-like groups).
+    const CentroidDistances distances = centroid_distances(a, b, atoms_);
     for (const std::vector<int>& match : mappings_) {
-        if (!best_match.empty()) {
-            double bound = 0;
-            for (size_t k = 0; k < atoms_.size(); ++k) {
-                const double x = ra[at(atoms_[k])] - rb[at(match[k])];
-                bound += x * x;
-            }
-            if (std::sqrt(bound / static_cast<double>(atoms_.size())) >= best) continue;
-        }
+        if (!best_match.empty() && matching_bound(distances, atoms_, match) >= best) continue;
         const double d = rmsd_of(a, b, atoms_, match, &r, &ca, &cb);
         if (d < best) {
             best = d;
@@ -280,30 +294,13 @@ double ConformerComparer::rmsd_one(const std::vector<Vector3d>& a, const std::ve
 bool ConformerComparer::any_closer(const std::vector<Vector3d>& a, const std::vector<Vector3d>& b,
                                    double threshold) const {
     if (atoms_.empty()) return 0 < threshold;
-    // The lower bound of rmsd_one: each atom's distance from the centroid. A margin keeps the answer rmsd's where
-    // the bound and the superposed RMSD would differ only by rounding.
+    // A margin keeps the answer rmsd's where the bound and the superposed RMSD would differ only by rounding.
     constexpr double kBoundMargin = 1e-9;
-    Vector3d ma = Vector3d::Zero(), mb = Vector3d::Zero();
-    for (int k : atoms_) {
-        ma += a[at(k)];
-        mb += b[at(k)];
-    }
-    ma /= static_cast<double>(atoms_.size());
-    mb /= static_cast<double>(atoms_.size());
-    std::vector<double> ra(b.size(), 0.0), rb(b.size(), 0.0);
-    for (int k : atoms_) {
-        ra[at(k)] = (a[at(k)] - ma).norm();
-        rb[at(k)] = (b[at(k)] - mb).norm();
-    }
+    const CentroidDistances distances = centroid_distances(a, b, atoms_);
     Eigen::Matrix3d r;
     Vector3d ca, cb;
     for (const std::vector<int>& match : mappings_) {
-        double bound = 0;
-        for (size_t k = 0; k < atoms_.size(); ++k) {
-            const double x = ra[at(atoms_[k])] - rb[at(match[k])];
-            bound += x * x;
-        }
-        if (std::sqrt(bound / static_cast<double>(atoms_.size())) >= threshold + kBoundMargin) continue;
+        if (matching_bound(distances, atoms_, match) >= threshold + kBoundMargin) continue;
         if (rmsd_of(a, b, atoms_, match, &r, &ca, &cb) < threshold) return true;
     }
     return false;

@@ -13,8 +13,9 @@
 // - conjugated_nitrogen (the audit's tolerance for a flattened N, check/audit.cpp): an N with one lone pair in the
 //   Lewis structure (delocalised or not) and three bonds, next to an atom with a bond under kPiBondKekule (double or
 //   triple as written, aromatic flags ignored, the bond to the N included).
-// Besides them, amide_like_link (the assembly's torsions and the ensemble's rotatable bonds) and crowded_biaryl_bond: where sterics break the conjugation across a biaryl axis (the assembly's start
-// and the refinement's torsions).
+// Besides them, amide_like_link (the assembly's torsions and the ensemble's rotatable bonds) and
+// crowded_biaryl_bond: where sterics break the conjugation across a biaryl axis (the assembly's start and the
+// refinement's torsions).
 #pragma once
 
 #include <vector>
